@@ -1,0 +1,226 @@
+// ASTDump.cpp - the stable text dump behind `brine check --emit ast`, and node spellings.
+#include "AST.h"
+
+#include <cstdio>
+#include <sstream>
+
+namespace brine::ast {
+
+const char *spelling(BinaryOp op) {
+  switch (op) {
+  case BinaryOp::Add: return "+";
+  case BinaryOp::Sub: return "-";
+  case BinaryOp::Mul: return "*";
+  case BinaryOp::Div: return "/";
+  case BinaryOp::Pow: return "^";
+  case BinaryOp::Eq: return "==";
+  case BinaryOp::Ne: return "!=";
+  case BinaryOp::Lt: return "<";
+  case BinaryOp::Le: return "<=";
+  case BinaryOp::Gt: return ">";
+  case BinaryOp::Ge: return ">=";
+  case BinaryOp::And: return "and";
+  case BinaryOp::Or: return "or";
+  }
+  return "?";
+}
+
+const char *spelling(GateRate r) {
+  switch (r) {
+  case GateRate::Opening: return "opening";
+  case GateRate::Closing: return "closing";
+  case GateRate::Steady: return "steady";
+  case GateRate::Tau: return "tau";
+  }
+  return "?";
+}
+
+const char *describe(DeclKind k) {
+  switch (k) {
+  case DeclKind::Model: return "model";
+  case DeclKind::Use: return "use";
+  case DeclKind::Temperature: return "temperature";
+  case DeclKind::Ion: return "ion";
+  case DeclKind::Const: return "constant";
+  case DeclKind::Fn: return "function";
+  case DeclKind::Solution: return "outside solution";
+  case DeclKind::Compartment: return "compartment";
+  case DeclKind::Channel: return "channel";
+  case DeclKind::Pump: return "pump";
+  }
+  return "declaration";
+}
+
+namespace {
+
+std::string num(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.10g", v);
+  return buf;
+}
+
+std::string at(const SourceRange &r) {
+  return "<" + std::to_string(r.begin.line) + ":" + std::to_string(r.begin.column) + ">";
+}
+
+class Dumper {
+public:
+  std::ostringstream out;
+
+  void line(int depth, const std::string &text) { out << std::string(2 * depth, ' ') << text << "\n"; }
+
+  void expr(int depth, const char *label, const Expr *e) {
+    if (!e)
+      return;
+    std::string head = std::string(label) + ": ";
+    switch (e->kind) {
+    case ExprKind::Number: {
+      auto *n = static_cast<const NumberExpr *>(e);
+      line(depth, head + "Number " + num(n->written) + (n->unitText.empty() ? "" : " " + n->unitText) + " = " +
+                      num(n->value) + " SI " + at(e->range));
+      break;
+    }
+    case ExprKind::Name:
+      line(depth, head + "Name " + static_cast<const NameExpr *>(e)->name + " " + at(e->range));
+      break;
+    case ExprKind::Concentration: {
+      auto *c = static_cast<const ConcentrationExpr *>(e);
+      line(depth, head + "Concentration [" + c->ion + "]" + (c->side == Side::Inside ? "in" : "out") + " " +
+                      at(e->range));
+      break;
+    }
+    case ExprKind::Call: {
+      auto *c = static_cast<const CallExpr *>(e);
+      line(depth, head + "Call " + c->callee + " " + at(e->range));
+      for (auto &a : c->args)
+        expr(depth + 1, "arg", a.get());
+      break;
+    }
+    case ExprKind::Unary: {
+      auto *u = static_cast<const UnaryExpr *>(e);
+      const char *op = u->op == UnaryOp::Negate ? "-" : u->op == UnaryOp::Plus ? "+" : "not";
+      line(depth, head + "Unary " + op + " " + at(e->range));
+      expr(depth + 1, "operand", u->operand.get());
+      break;
+    }
+    case ExprKind::Binary: {
+      auto *b = static_cast<const BinaryExpr *>(e);
+      line(depth, head + "Binary " + spelling(b->op) + " " + at(e->range));
+      expr(depth + 1, "lhs", b->lhs.get());
+      expr(depth + 1, "rhs", b->rhs.get());
+      break;
+    }
+    case ExprKind::If: {
+      auto *i = static_cast<const IfExpr *>(e);
+      line(depth, head + "If " + at(e->range));
+      expr(depth + 1, "cond", i->cond.get());
+      expr(depth + 1, "then", i->thenExpr.get());
+      expr(depth + 1, "else", i->elseExpr.get());
+      break;
+    }
+    }
+  }
+
+  void solution(int depth, const SolutionBody &b) {
+    for (auto &e : b.entries)
+      expr(depth, ("[" + e.ion + "]").c_str(), e.value.get());
+    for (auto &i : b.impermeants)
+      expr(depth, ("impermeant valence " + num(i.valence.value)).c_str(), i.amount.get());
+  }
+
+  void decl(const Decl &d) {
+    std::string head = std::string(describe(d.kind)) + " " + d.name + " " + at(d.range);
+    line(0, head);
+    if (!d.doc.empty())
+      line(1, "doc: " + d.doc);
+    switch (d.kind) {
+    case DeclKind::Model:
+      line(1, "title: " + static_cast<const ModelDecl &>(d).title);
+      break;
+    case DeclKind::Use:
+      line(1, std::string(static_cast<const UseDecl &>(d).isPath ? "path" : "module"));
+      break;
+    case DeclKind::Temperature:
+      expr(1, "value", static_cast<const TemperatureDecl &>(d).value.get());
+      break;
+    case DeclKind::Ion:
+      line(1, "valence " + num(static_cast<const IonDecl &>(d).valence.value));
+      break;
+    case DeclKind::Const: {
+      auto &c = static_cast<const ConstDecl &>(d);
+      if (c.annotated)
+        line(1, "unit " + c.declared.text);
+      expr(1, "value", c.value.get());
+      break;
+    }
+    case DeclKind::Fn: {
+      auto &f = static_cast<const FnDecl &>(d);
+      for (auto &p : f.params)
+        line(1, "param " + p.name + ": " + p.unit.text);
+      line(1, "result " + f.result.text);
+      expr(1, "body", f.body.get());
+      break;
+    }
+    case DeclKind::Solution:
+      solution(1, static_cast<const SolutionDecl &>(d).body);
+      break;
+    case DeclKind::Compartment: {
+      auto &c = static_cast<const CompartmentDecl &>(d);
+      static const char *shapes[] = {"none", "sphere", "cylinder", "area"};
+      line(1, std::string("geometry ") + shapes[static_cast<int>(c.geometry.shape)]);
+      expr(2, "diameter", c.geometry.diameter.get());
+      expr(2, "length", c.geometry.length.get());
+      expr(2, "area", c.geometry.area.get());
+      expr(1, "capacitance", c.capacitance.get());
+      expr(1, "initial V", c.initialV.get());
+      if (!c.bathName.empty())
+        line(1, "outside " + c.bathName);
+      if (c.hasInside) {
+        line(1, "inside");
+        solution(2, c.inside);
+      }
+      for (auto &m : c.membrane) {
+        line(1, "membrane " + m.mechanism);
+        expr(2, "density", m.density.get());
+        expr(2, "reversal", m.reversal.get());
+      }
+      break;
+    }
+    case DeclKind::Channel: {
+      auto &c = static_cast<const ChannelDecl &>(d);
+      for (auto &k : c.carries)
+        line(1, "carries " + k.ion + (k.hasRatio ? " " + num(k.ratio.value) : ""));
+      expr(1, "reversal", c.reversal.get());
+      for (auto &g : c.gates) {
+        line(1, "gate " + g.name + " power " + num(g.power.value));
+        expr(2, "opening", g.opening.get());
+        expr(2, "closing", g.closing.get());
+        expr(2, "steady", g.steady.get());
+        expr(2, "tau", g.tau.get());
+      }
+      expr(1, "q10", c.q10.get());
+      expr(1, "q10 at", c.q10Reference.get());
+      break;
+    }
+    case DeclKind::Pump: {
+      auto &p = static_cast<const PumpDecl &>(d);
+      line(1, p.exchanger ? "exchanger" : "pump");
+      for (auto &t : p.cycle)
+        line(1, "moves " + num(t.count.value) + " " + t.ion + (t.direction == Direction::In ? " in" : " out"));
+      expr(1, "activity", p.activity.get());
+      break;
+    }
+    }
+  }
+};
+
+} // namespace
+
+std::string dump(const Module &m) {
+  Dumper d;
+  for (auto &decl : m.decls)
+    d.decl(*decl);
+  return d.out.str();
+}
+
+} // namespace brine::ast

@@ -1,0 +1,81 @@
+// Analyze.h - Stage 5: computes every static value of the model in coherent SI.
+//
+// Temperature, solutions, geometry, capacitance, densities, reversal potentials (Nernst,
+// GHK or as written) and each compartment's GHK resting potential. CheckCharge,
+// CheckPhysics and `brine show` read the result; none of them recompute it.
+#pragma once
+#include "AST.h"
+#include "Resolve.h"
+
+#include <map>
+#include <optional>
+#include <vector>
+
+namespace brine {
+class DiagnosticEngine;
+class Evaluator;
+
+struct SolutionValues {
+  std::map<const ast::IonDecl *, double> concentration; // mol/m^3 (= mM)
+  std::map<const ast::IonDecl *, const ast::ConcentrationEntry *> entry;
+  std::vector<std::pair<double, double>> impermeant; // (valence, mol/m^3)
+  std::optional<double> get(const ast::IonDecl *ion) const {
+    auto it = concentration.find(ion);
+    return it == concentration.end() ? std::nullopt : std::optional<double>(it->second);
+  }
+};
+
+enum class DensityKind { Unknown, Conductance, Permeability, Current, Turnover };
+enum class ReversalKind { None, Nernst, Ghk, Written };
+
+struct Placement {
+  const ast::MembraneEntry *entry = nullptr;
+  const ast::ChannelDecl *channel = nullptr; // one of channel / pump is set
+  const ast::PumpDecl *pump = nullptr;
+  std::optional<double> density; // SI for its kind
+  DensityKind densityKind = DensityKind::Unknown;
+  ReversalKind reversalKind = ReversalKind::None;
+  std::optional<double> reversal;              // volts, what the model uses
+  std::optional<double> concentrationReversal; // volts, from the concentrations (Nernst/GHK)
+  const ast::Expr *writtenReversal = nullptr;  // where a hand-written reversal came from
+};
+
+struct CompartmentValues {
+  const ast::CompartmentDecl *decl = nullptr;
+  const ast::SolutionDecl *bath = nullptr;
+  const SolutionValues *outside = nullptr;
+  SolutionValues inside;
+  std::optional<double> area;        // m^2
+  std::optional<double> capacitance; // F/m^2
+  std::optional<double> initialV;    // V
+  std::vector<const ast::IonDecl *> ions; // every ion with a concentration on either side, by name
+  std::vector<Placement> placements;
+  std::optional<double> ghkRest;     // V, from ungated permeability channels
+  size_t ghkChannels = 0;            // how many channels entered the GHK rest
+  std::optional<double> concentration(const ast::IonDecl *ion, ast::Side side) const;
+  std::optional<double> nernst(const ast::IonDecl *ion, double kelvin) const;
+};
+
+struct PumpValues {
+  bool chargeKnown = false;
+  int netOutwardCharge = 0; // elementary charges moved outward per cycle
+};
+
+struct Model {
+  const ast::ModelDecl *header = nullptr;
+  const ast::TemperatureDecl *temperatureDecl = nullptr;
+  std::optional<double> temperature; // K
+  std::map<const ast::SolutionDecl *, SolutionValues> baths;
+  std::vector<CompartmentValues> compartments;
+  std::map<const ast::PumpDecl *, PumpValues> pumps;
+  std::vector<const ast::IonDecl *> ions;
+  std::vector<const ast::ChannelDecl *> channels;
+};
+
+/// Fills `model`. Returns false if it reported an error.
+bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator,
+             DiagnosticEngine &diags, Model &model);
+
+/// Valence of an ion as an integer, or nullopt if it is not a non-zero whole number.
+std::optional<int> integerValence(const ast::IonDecl &ion);
+} // namespace brine

@@ -1,0 +1,243 @@
+// Commands.cpp - `brine check` and `brine show`: options, output and exit codes.
+#include "Commands.h"
+
+#include "Pipeline.h"
+#include "Show.h"
+#include "parse/Parse.h"
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <memory>
+#include <unistd.h>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *checkHelp = R"(usage: brine check [options] FILE...
+
+Checks each spec and every module it uses: syntax, names, units of every expression,
+valences and charge (electroneutrality, pump stoichiometry), and physical plausibility
+(temperatures, capacitances, concentrations, reversal potentials, gate kinetics).
+
+options:
+  --format text|json      diagnostics as text on stderr (default) or one JSON document on stdout
+  --warnings-as-errors    fail (exit 65) when there are warnings
+  --color auto|always|never  colour text diagnostics (default: auto, when stderr is a terminal)
+  --emit tokens|ast       print the token stream or the syntax tree of FILE instead of checking
+  --version               print the version
+  --help                  show this help
+
+exit status: 0 no errors, 64 bad usage, 65 errors (or warnings with --warnings-as-errors),
+             70 internal fault
+)";
+
+const char *showHelp = R"(usage: brine show [options] FILE
+
+Prints the resolved model: temperature; for every compartment and ion the inside and
+outside concentrations, the valence and the Nernst potential at the model temperature;
+each membrane mechanism with its density and reversal potential (Nernst, GHK or as
+written); the GHK resting potential of each compartment from its ungated permeability
+channels; each pump's net charge moved outward per cycle. Conventions: V is inside minus
+outside, membrane current is positive outward.
+
+options:
+  --format text|json  readable summary (default) or JSON (keys in docs/language.md)
+  -o FILE             write to FILE (atomically) instead of standard output
+  --version           print the version
+  --help              show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
+             73 the output file could not be written
+)";
+
+struct Options {
+  std::vector<std::string> files;
+  std::string format = "text";
+  std::string emit;
+  std::string output;
+  std::string color = "auto";
+  bool werror = false;
+  bool help = false;
+  bool version = false;
+};
+
+int usageError(const std::string &message, const char *help) {
+  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), help);
+  return Usage;
+}
+
+// Returns an exit code when parsing must stop, or -1 to go on.
+int parseOptions(const std::vector<std::string> &args, Options &o, const char *help, bool allowCheckOptions) {
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    auto value = [&](const std::string &name, std::string &into) -> bool {
+      if (a.rfind(name + "=", 0) == 0) {
+        into = a.substr(name.size() + 1);
+        return true;
+      }
+      if (a == name && i + 1 < args.size()) {
+        into = args[++i];
+        return true;
+      }
+      return false;
+    };
+    if (a == "--help" || a == "-h")
+      o.help = true;
+    else if (a == "--version")
+      o.version = true;
+    else if (value("--format", o.format)) {
+      if (o.format != "text" && o.format != "json")
+        return usageError("--format must be 'text' or 'json', not '" + o.format + "'", help);
+    } else if (allowCheckOptions && a == "--warnings-as-errors")
+      o.werror = true;
+    else if (allowCheckOptions && value("--color", o.color)) {
+      if (o.color != "auto" && o.color != "always" && o.color != "never")
+        return usageError("--color must be 'auto', 'always' or 'never'", help);
+    } else if (allowCheckOptions && value("--emit", o.emit)) {
+      if (o.emit != "tokens" && o.emit != "ast")
+        return usageError("--emit must be 'tokens' or 'ast', not '" + o.emit + "'", help);
+    } else if (!allowCheckOptions && value("-o", o.output)) {
+    } else if (a == "--") {
+      o.files.insert(o.files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
+      break;
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usageError("unknown option '" + a + "'", help);
+    } else {
+      o.files.push_back(a);
+    }
+  }
+  if (o.help) {
+    std::fputs(help, stdout);
+    return Ok;
+  }
+  if (o.version) {
+    std::printf("brine %s\n", BRINE_VERSION);
+    return Ok;
+  }
+  if (o.files.empty())
+    return usageError("no spec file given", help);
+  return -1;
+}
+
+void printDiagnostics(const DiagnosticEngine &diags, bool colour) {
+  for (const Diagnostic &d : diags.all())
+    std::fputs(renderText(d, colour).c_str(), stderr);
+}
+
+bool useColour(const std::string &setting) {
+  if (setting == "always")
+    return true;
+  if (setting == "never")
+    return false;
+  return isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
+}
+
+} // namespace
+
+bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
+  std::string temporary = path + ".tmp-" + std::to_string(getpid());
+  {
+    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
+    if (!out) {
+      error = "cannot create '" + temporary + "'";
+      return false;
+    }
+    out << text;
+    out.flush();
+    if (!out) {
+      error = "cannot write '" + temporary + "'";
+      std::remove(temporary.c_str());
+      return false;
+    }
+  }
+  std::error_code ec;
+  std::filesystem::rename(temporary, path, ec);
+  if (ec) {
+    error = "cannot rename '" + temporary + "' to '" + path + "': " + ec.message();
+    std::remove(temporary.c_str());
+    return false;
+  }
+  return true;
+}
+
+int checkCommand(const std::vector<std::string> &args) {
+  Options o;
+  if (int code = parseOptions(args, o, checkHelp, true); code >= 0)
+    return code;
+  if (!o.emit.empty()) {
+    if (o.files.size() != 1)
+      return usageError("--emit takes exactly one file", checkHelp);
+    Compilation c;
+    std::string error;
+    const SourceFile *file = c.sources.load(o.files[0], error);
+    if (!file) {
+      std::fprintf(stderr, "brine: cannot read '%s': %s\n", o.files[0].c_str(), error.c_str());
+      return SpecErrors;
+    }
+    if (o.emit == "tokens") {
+      std::fputs(dumpTokens(*file).c_str(), stdout);
+      return Ok;
+    }
+    auto module = parse(*file, c.diags);
+    printDiagnostics(c.diags, useColour(o.color));
+    if (!module)
+      return SpecErrors;
+    std::fputs(ast::dump(*module).c_str(), stdout);
+    return c.diags.errorCount() ? SpecErrors : Ok;
+  }
+  // Diagnostics point into their compilation's files, so keep every compilation alive.
+  std::vector<std::unique_ptr<Compilation>> compilations;
+  std::vector<Diagnostic> all;
+  size_t errors = 0, warnings = 0;
+  bool colour = useColour(o.color);
+  for (const std::string &path : o.files) {
+    auto c = std::make_unique<Compilation>();
+    compileFile(path, *c);
+    errors += c->diags.errorCount();
+    warnings += c->diags.warningCount();
+    if (o.format == "json")
+      all.insert(all.end(), c->diags.all().begin(), c->diags.all().end());
+    else
+      printDiagnostics(c->diags, colour);
+    compilations.push_back(std::move(c));
+  }
+  if (o.format == "json")
+    std::fputs(renderJson(all).c_str(), stdout);
+  bool failed = errors > 0 || (o.werror && warnings > 0);
+  if (o.format == "text" && o.files.size() > 1)
+    std::fprintf(stderr, "%zu file%s checked: %zu error%s, %zu warning%s\n", o.files.size(),
+                 o.files.size() == 1 ? "" : "s", errors, errors == 1 ? "" : "s", warnings, warnings == 1 ? "" : "s");
+  return failed ? SpecErrors : Ok;
+}
+
+int showCommand(const std::vector<std::string> &args) {
+  Options o;
+  if (int code = parseOptions(args, o, showHelp, false); code >= 0)
+    return code;
+  if (o.files.size() != 1)
+    return usageError("show takes exactly one spec file", showHelp);
+  Compilation c;
+  compileFile(o.files[0], c);
+  printDiagnostics(c.diags, useColour("auto"));
+  if (c.diags.errorCount() > 0)
+    return SpecErrors;
+  std::string text = o.format == "json" ? showJson(c) : showText(c);
+  if (o.output.empty()) {
+    std::fputs(text.c_str(), stdout);
+    return Ok;
+  }
+  std::string error;
+  if (!writeFileAtomically(o.output, text, error)) {
+    std::fprintf(stderr, "brine: %s\n", error.c_str());
+    return CannotWrite;
+  }
+  return Ok;
+}
+
+} // namespace brine::cli

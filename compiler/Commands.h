@@ -1,0 +1,16 @@
+// Commands.h - the subcommands of the brine executable.
+#pragma once
+#include <string>
+#include <vector>
+
+namespace brine::cli {
+
+/// Exit codes (sysexits): documented in every --help.
+enum ExitCode { Ok = 0, ExpectationsFailed = 1, Usage = 64, SpecErrors = 65, Internal = 70, CannotWrite = 73 };
+
+int checkCommand(const std::vector<std::string> &args);
+int showCommand(const std::vector<std::string> &args);
+
+/// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
+bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
+} // namespace brine::cli

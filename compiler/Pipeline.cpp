@@ -1,0 +1,52 @@
+// Pipeline.cpp - parse and load, resolve, units, analyze, charge, physics: in that order.
+#include "Pipeline.h"
+
+#include "CheckCharge.h"
+#include "CheckPhysics.h"
+#include "CheckUnits.h"
+#include "Modules.h"
+
+#include <filesystem>
+
+namespace brine {
+
+namespace {
+
+void run(const SourceFile &root, Compilation &c) {
+  if (!loadProgram(root, c.sources, c.diags, c.program))
+    return;
+  // Resolve and CheckUnits both run before stopping: a name error leaves its expression
+  // "unknown", which CheckUnits never reports again.
+  bool resolved = resolveNames(c.program, c.symbols, c.diags);
+  bool units = checkUnits(c.program, c.evaluator, c.diags);
+  if (!resolved || !units)
+    return;
+  if (!analyze(c.program, c.symbols, c.evaluator, c.diags, c.model))
+    return;
+  bool charge = checkCharge(c.program, c.model, c.diags);
+  bool physics = checkPhysics(c.program, c.model, c.evaluator, c.diags);
+  c.checked = charge && physics;
+}
+
+} // namespace
+
+void compileFile(const std::string &path, Compilation &c) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    c.diags.error({}, "'" + path + "' is a directory, not a spec file");
+    return;
+  }
+  std::string error;
+  const SourceFile *file = c.sources.load(path, error);
+  if (!file) {
+    c.diags.error({}, "cannot read '" + path + "': " + error);
+    return;
+  }
+  run(*file, c);
+}
+
+void compileText(const std::string &path, std::string text, Compilation &c) {
+  run(*c.sources.add(path, std::move(text)), c);
+}
+
+} // namespace brine

@@ -1,0 +1,24 @@
+// Resolve.h - Stage 3: name resolution.
+//
+// Builds one namespace from every module of the program, binds every name, concentration,
+// call and membrane entry to its declaration, and rejects names used where they have no
+// meaning (V inside a function, a channel used as a number). CheckUnits relies on it.
+#pragma once
+#include "AST.h"
+
+#include <map>
+#include <string>
+
+namespace brine {
+class DiagnosticEngine;
+
+/// The program's declarations by name, and its single temperature (if any).
+struct SymbolTable {
+  std::map<std::string, ast::Decl *> byName;
+  ast::TemperatureDecl *temperature = nullptr;
+  ast::ModelDecl *model = nullptr; // the root's header
+};
+
+/// Binds every name in the program. Returns false if it reported an error.
+bool resolveNames(ast::Program &program, SymbolTable &symbols, DiagnosticEngine &diags);
+} // namespace brine

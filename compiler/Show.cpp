@@ -1,0 +1,192 @@
+// Show.cpp - renders the analysed model: concentrations, reversal potentials, GHK rest.
+#include "Show.h"
+
+#include "Physics.h"
+#include "Pipeline.h"
+
+#include <cstdio>
+#include <nlohmann/json.hpp>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine {
+
+using namespace ast;
+using json = nlohmann::ordered_json;
+
+namespace {
+
+const char *caution = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+
+json optional(std::optional<double> v, double scale = 1) { return v ? json(*v * scale) : json(nullptr); }
+
+const char *densityUnit(DensityKind k) {
+  switch (k) {
+  case DensityKind::Conductance: return "mS/cm2";
+  case DensityKind::Permeability: return "cm/s";
+  case DensityKind::Current: return "uA/cm2";
+  case DensityKind::Turnover: return "mol/cm2/s";
+  case DensityKind::Unknown: break;
+  }
+  return "";
+}
+
+// SI -> the unit named by densityUnit.
+double densityScale(DensityKind k) {
+  switch (k) {
+  case DensityKind::Conductance: return 0.1;  // S/m2 -> mS/cm2
+  case DensityKind::Permeability: return 100; // m/s -> cm/s
+  case DensityKind::Current: return 100;      // A/m2 -> uA/cm2
+  case DensityKind::Turnover: return 1e-4;    // mol/m2/s -> mol/cm2/s
+  case DensityKind::Unknown: break;
+  }
+  return 1;
+}
+
+const char *reversalSource(ReversalKind k) {
+  switch (k) {
+  case ReversalKind::Nernst: return "nernst";
+  case ReversalKind::Ghk: return "ghk";
+  case ReversalKind::Written: return "written";
+  case ReversalKind::None: break;
+  }
+  return "none";
+}
+
+json compartmentJson(const CompartmentValues &c, const Model &m) {
+  json ions = json::array();
+  for (const IonDecl *ion : c.ions) {
+    auto z = integerValence(*ion);
+    ions.push_back({{"ion", ion->name},
+                    {"charge", z ? json(*z) : json(nullptr)},
+                    {"inside_mM", optional(c.inside.get(ion))},
+                    {"outside_mM", optional(c.outside ? c.outside->get(ion) : std::nullopt)},
+                    {"reversal_mV", optional(m.temperature ? c.nernst(ion, *m.temperature) : std::nullopt, 1e3)}});
+  }
+  json membrane = json::array();
+  for (const Placement &p : c.placements) {
+    json entry{{"mechanism", p.entry->mechanism},
+               {"kind", p.channel ? "channel" : p.pump ? (p.pump->exchanger ? "exchanger" : "pump") : "unknown"},
+               {"density", optional(p.density, densityScale(p.densityKind))},
+               {"density_unit", densityUnit(p.densityKind)}};
+    if (p.channel) {
+      entry["reversal_mV"] = optional(p.reversal, 1e3);
+      entry["reversal_from"] = reversalSource(p.reversalKind);
+    }
+    membrane.push_back(entry);
+  }
+  json shape = nullptr;
+  if (c.decl->geometry.shape == Shape::Sphere)
+    shape = "sphere";
+  else if (c.decl->geometry.shape == Shape::Cylinder)
+    shape = "cylinder";
+  else if (c.decl->geometry.shape == Shape::Area)
+    shape = "area";
+  return {{"name", c.decl->name},
+          {"outside", c.bath ? json(c.bath->name) : json(nullptr)},
+          {"geometry", shape},
+          {"area_um2", optional(c.area, 1e12)},
+          {"capacitance_uF_per_cm2", optional(c.capacitance, 100)},
+          {"initial_mV", optional(c.initialV, 1e3)},
+          {"ions", ions},
+          {"ghk_rest_mV", optional(c.ghkRest, 1e3)},
+          {"ghk_channels", c.ghkChannels},
+          {"membrane", membrane}};
+}
+
+} // namespace
+
+std::string showJson(const Compilation &c) {
+  const Model &m = c.model;
+  json doc;
+  doc["tool"] = "brine";
+  doc["version"] = BRINE_VERSION;
+  doc["caution"] = caution;
+  doc["model"] = m.header ? json(m.header->name) : json(nullptr);
+  doc["title"] = m.header && !m.header->title.empty() ? json(m.header->title) : json(nullptr);
+  doc["conventions"] = {{"membrane_potential", "inside minus outside"},
+                        {"membrane_current", "positive outward"},
+                        {"reversal", "Nernst (RT/zF) ln(out/in) with concentrations, not activities"}};
+  doc["constants"] = {{"R_J_per_mol_K", physics::gasConstant}, {"F_C_per_mol", physics::faraday}};
+  doc["temperature_K"] = optional(m.temperature);
+  doc["temperature_degC"] = m.temperature ? json(*m.temperature - physics::zeroCelsius) : json(nullptr);
+  json compartments = json::array();
+  for (const CompartmentValues &cv : m.compartments)
+    compartments.push_back(compartmentJson(cv, m));
+  doc["compartments"] = compartments;
+  json pumps = json::array();
+  for (auto &[pump, values] : m.pumps) {
+    json cycle = json::array();
+    for (const StoichTerm &t : pump->cycle)
+      cycle.push_back({{"ion", t.ion}, {"count", t.count.value}, {"direction", t.direction == Direction::In ? "in" : "out"}});
+    pumps.push_back({{"name", pump->name},
+                     {"kind", pump->exchanger ? "exchanger" : "pump"},
+                     {"cycle", cycle},
+                     {"net_charge_out_per_cycle", values.chargeKnown ? json(values.netOutwardCharge) : json(nullptr)}});
+  }
+  doc["pumps"] = pumps;
+  return doc.dump(2) + "\n";
+}
+
+namespace {
+std::string num(const char *format, std::optional<double> v, double scale = 1) {
+  if (!v)
+    return "-";
+  char buf[48];
+  std::snprintf(buf, sizeof buf, format, *v * scale);
+  return buf;
+}
+} // namespace
+
+std::string showText(const Compilation &c) {
+  const Model &m = c.model;
+  std::string out;
+  auto line = [&](const std::string &s) { out += s + "\n"; };
+  line("model " + std::string(m.header ? m.header->name : "(unnamed)") +
+       (m.header && !m.header->title.empty() ? " - " + m.header->title : ""));
+  line("temperature " + num("%.2f K", m.temperature) + " (" +
+       num("%.2f degC", m.temperature ? std::optional<double>(*m.temperature - physics::zeroCelsius) : std::nullopt) + ")");
+  line("conventions: V is inside minus outside; membrane current is positive outward");
+  for (const CompartmentValues &cv : m.compartments) {
+    line("");
+    line("compartment " + cv.decl->name + " (outside: " + (cv.bath ? cv.bath->name : "-") + ")");
+    line("  area " + num("%.6g um2", cv.area, 1e12) + ", capacitance " + num("%.4g uF/cm2", cv.capacitance, 100) +
+         ", initial V " + num("%.4g mV", cv.initialV, 1e3));
+    char header[128];
+    std::snprintf(header, sizeof header, "  %-8s %6s %12s %12s %14s", "ion", "charge", "inside mM", "outside mM",
+                  "reversal mV");
+    line(header);
+    for (const IonDecl *ion : cv.ions) {
+      auto z = integerValence(*ion);
+      char row[160];
+      std::snprintf(row, sizeof row, "  %-8s %6s %12s %12s %14s", ion->name.c_str(), z ? num("%+.0f", double(*z)).c_str() : "?",
+                    num("%.6g", cv.inside.get(ion)).c_str(),
+                    num("%.6g", cv.outside ? cv.outside->get(ion) : std::nullopt).c_str(),
+                    num("%.3f", m.temperature ? cv.nernst(ion, *m.temperature) : std::nullopt, 1e3).c_str());
+      line(row);
+    }
+    if (cv.ghkRest)
+      line("  GHK resting potential " + num("%.3f mV", cv.ghkRest, 1e3) + " (from " + std::to_string(cv.ghkChannels) +
+           " ungated permeability channel" + (cv.ghkChannels == 1 ? "" : "s") + ")");
+    for (const Placement &p : cv.placements) {
+      std::string s = "  " + p.entry->mechanism + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
+                      densityUnit(p.densityKind);
+      if (p.channel)
+        s += ", reversal " + num("%.3f mV", p.reversal, 1e3) + " (" + reversalSource(p.reversalKind) + ")";
+      line(s);
+    }
+  }
+  if (!m.pumps.empty()) {
+    line("");
+    for (auto &[pump, values] : m.pumps)
+      line(std::string(pump->exchanger ? "exchanger " : "pump ") + pump->name + ": net charge out per cycle " +
+           (values.chargeKnown ? num("%+.0f", double(values.netOutwardCharge)) : "?"));
+  }
+  line("");
+  line(std::string("note: ") + caution);
+  return out;
+}
+
+} // namespace brine

@@ -1,0 +1,123 @@
+// Source.cpp - line tables and UTF-8 handling for source files.
+#include "Source.h"
+
+#include <algorithm>
+#include <fstream>
+#include <sstream>
+
+namespace brine {
+
+namespace {
+bool isContinuation(unsigned char c) { return (c & 0xC0) == 0x80; }
+} // namespace
+
+std::optional<size_t> findInvalidUtf8(std::string_view text) {
+  size_t i = 0;
+  while (i < text.size()) {
+    auto c = static_cast<unsigned char>(text[i]);
+    size_t len = 0;
+    uint32_t cp = 0;
+    if (c < 0x80) {
+      ++i;
+      continue;
+    } else if ((c & 0xE0) == 0xC0) {
+      len = 2;
+      cp = c & 0x1F;
+    } else if ((c & 0xF0) == 0xE0) {
+      len = 3;
+      cp = c & 0x0F;
+    } else if ((c & 0xF8) == 0xF0) {
+      len = 4;
+      cp = c & 0x07;
+    } else {
+      return i;
+    }
+    if (i + len > text.size())
+      return i;
+    for (size_t k = 1; k < len; ++k) {
+      auto d = static_cast<unsigned char>(text[i + k]);
+      if (!isContinuation(d))
+        return i;
+      cp = (cp << 6) | (d & 0x3F);
+    }
+    // Reject overlong forms, surrogates and values past U+10FFFF.
+    static const uint32_t minimum[] = {0, 0, 0x80, 0x800, 0x10000};
+    if (cp < minimum[len] || (cp >= 0xD800 && cp <= 0xDFFF) || cp > 0x10FFFF)
+      return i;
+    i += len;
+  }
+  return std::nullopt;
+}
+
+SourceFile::SourceFile(std::string path, std::string text)
+    : path_(std::move(path)), text_(std::move(text)) {
+  lineStarts_.push_back(0);
+  for (uint32_t i = 0; i < text_.size(); ++i) {
+    auto c = static_cast<unsigned char>(text_[i]);
+    if (!isContinuation(c))
+      codePointOffsets_.push_back(i);
+    if (c == '\n')
+      lineStarts_.push_back(i + 1);
+  }
+}
+
+std::string_view SourceFile::lineText(uint32_t line) const {
+  if (line == 0 || line > lineStarts_.size())
+    return {};
+  uint32_t begin = lineStarts_[line - 1];
+  uint32_t end = line < lineStarts_.size() ? lineStarts_[line] - 1 : static_cast<uint32_t>(text_.size());
+  if (end > begin && text_[end - 1] == '\r')
+    --end;
+  return std::string_view(text_).substr(begin, end - begin);
+}
+
+SourceLoc SourceFile::locAtOffset(uint32_t offset) const {
+  offset = std::min<uint32_t>(offset, static_cast<uint32_t>(text_.size()));
+  auto it = std::upper_bound(lineStarts_.begin(), lineStarts_.end(), offset);
+  uint32_t line = static_cast<uint32_t>(it - lineStarts_.begin());
+  uint32_t lineStart = lineStarts_[line - 1];
+  uint32_t column = 1;
+  for (uint32_t i = lineStart; i < offset; ++i)
+    if (!isContinuation(static_cast<unsigned char>(text_[i])))
+      ++column;
+  return SourceLoc{this, offset, line, column};
+}
+
+SourceLoc SourceFile::locAtCodePoint(size_t index) const {
+  if (index >= codePointOffsets_.size())
+    return endLoc();
+  return locAtOffset(codePointOffsets_[index]);
+}
+
+SourceLoc SourceFile::endLoc() const { return locAtOffset(static_cast<uint32_t>(text_.size())); }
+
+const SourceFile *SourceManager::load(const std::string &path, std::string &error) {
+  if (auto *f = find(path))
+    return f;
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    error = "cannot open file";
+    return nullptr;
+  }
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  if (in.bad()) {
+    error = "cannot read file";
+    return nullptr;
+  }
+  return add(path, buffer.str());
+}
+
+const SourceFile *SourceManager::add(std::string path, std::string text) {
+  files_.push_back(std::make_unique<SourceFile>(std::move(path), std::move(text)));
+  return files_.back().get();
+}
+
+const SourceFile *SourceManager::find(const std::string &path) const {
+  for (auto &f : files_)
+    if (f->path() == path)
+      return f.get();
+  return nullptr;
+}
+
+} // namespace brine

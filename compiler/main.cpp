@@ -1,0 +1,74 @@
+// main.cpp - the brine command line: dispatches to a subcommand.
+#include "Commands.h"
+
+#include <cstdio>
+#include <exception>
+#include <string>
+#include <vector>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace {
+
+const char *usage = R"(brine - checked specs of biophysical membrane models
+
+usage: brine <command> [options] FILE...
+
+commands:
+  check FILE...   check specs for syntax, units, charge and physical plausibility
+  show FILE       print the resolved model: concentrations, reversal potentials, GHK rest
+  help [COMMAND]  show this help, or a command's help
+
+options:
+  --help          show help (also after a command: brine check --help)
+  --version       print the version
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
+             73 an output file could not be written
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+} // namespace
+
+int main(int argc, char **argv) {
+  try {
+    std::vector<std::string> args(argv + 1, argv + argc);
+    if (args.empty()) {
+      std::fputs(usage, stderr);
+      return brine::cli::Usage;
+    }
+    std::string command = args.front();
+    std::vector<std::string> rest(args.begin() + 1, args.end());
+    if (command == "--help" || command == "-h") {
+      std::fputs(usage, stdout);
+      return brine::cli::Ok;
+    }
+    if (command == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return brine::cli::Ok;
+    }
+    if (command == "help") {
+      if (rest.empty()) {
+        std::fputs(usage, stdout);
+        return brine::cli::Ok;
+      }
+      command = rest.front();
+      rest = {"--help"};
+    }
+    if (command == "check")
+      return brine::cli::checkCommand(rest);
+    if (command == "show")
+      return brine::cli::showCommand(rest);
+    std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
+    return brine::cli::Usage;
+  } catch (const std::exception &e) {
+    std::fprintf(stderr, "brine: internal error: %s\n", e.what());
+    return brine::cli::Internal;
+  } catch (...) {
+    std::fprintf(stderr, "brine: internal error\n");
+    return brine::cli::Internal;
+  }
+}

@@ -1,0 +1,714 @@
+// BuildAST.cpp - builds the AST from ANTLR's parse tree; the parse tree dies after this.
+//
+// Each builder method starts with the grammar rule it handles. Slips that the grammar
+// cannot see (unknown units, repeated clauses) are reported here and the node is marked
+// so later stages stay quiet about it.
+#include "ParseInternal.h"
+
+#include <cerrno>
+#include <cmath>
+#include <cstdlib>
+
+namespace brine::parsing {
+
+using P = grammar::BrineParser;
+using namespace ast;
+
+namespace {
+
+class ASTBuilder {
+public:
+  ASTBuilder(antlr4::CommonTokenStream &tokens, const SourceFile &file, DiagnosticEngine &diags)
+      : tokens_(tokens), file_(file), diags_(diags) {}
+
+  std::unique_ptr<Module> build(P::SpecContext *spec) {
+    auto module = std::make_unique<Module>();
+    module->file = &file_;
+    for (P::ItemContext *item : spec->item())
+      if (DeclPtr d = buildItem(item)) {
+        d->doc = docAbove(item->getStart());
+        module->decls.push_back(std::move(d));
+      }
+    return module;
+  }
+
+private:
+  antlr4::CommonTokenStream &tokens_;
+  const SourceFile &file_;
+  DiagnosticEngine &diags_;
+
+  SourceRange range(antlr4::ParserRuleContext *ctx) {
+    SourceRange r = tokenRange(file_, ctx->getStart());
+    if (ctx->getStop() && ctx->getStop()->getTokenIndex() >= ctx->getStart()->getTokenIndex())
+      r.end = tokenRange(file_, ctx->getStop()).end;
+    return r;
+  }
+  SourceRange range(antlr4::tree::TerminalNode *node) { return tokenRange(file_, node->getSymbol()); }
+  SourceRange range(antlr4::Token *t) { return tokenRange(file_, t); }
+
+  // "##" lines directly above a declaration are its documentation.
+  std::string docAbove(antlr4::Token *start) {
+    std::string doc;
+    for (antlr4::Token *t : tokens_.getHiddenTokensToLeft(start->getTokenIndex())) {
+      if (t->getType() != P::DOC_COMMENT)
+        continue;
+      std::string line = t->getText().substr(2);
+      if (!line.empty() && line[0] == ' ')
+        line.erase(0, 1);
+      if (!doc.empty())
+        doc += "\n";
+      doc += line;
+    }
+    return doc;
+  }
+
+  void duplicate(SourceRange here, SourceRange first, const std::string &what, const std::string &owner) {
+    auto &d = diags_.error(here, what + " is given twice in " + owner);
+    DiagnosticEngine::note(d, first, "first given here");
+  }
+
+  double parseNumber(antlr4::tree::TerminalNode *node) {
+    std::string text = node->getText();
+    errno = 0;
+    double v = std::strtod(text.c_str(), nullptr);
+    if (errno == ERANGE || !std::isfinite(v)) {
+      if (std::isinf(v) || std::fabs(v) > 1.0) {
+        diags_.error(range(node), "number '" + text + "' is too large to represent");
+        return 0;
+      }
+      // Underflow to a denormal or zero is a number too small to matter: keep it.
+    }
+    return v;
+  }
+
+  // signedNumber : sign=('+' | '-')? NUMBER ;
+  SignedNumber build(P::SignedNumberContext *ctx) {
+    double v = parseNumber(ctx->NUMBER());
+    if (ctx->sign && ctx->sign->getText() == "-")
+      v = -v;
+    return {v, range(ctx)};
+  }
+
+  DeclPtr buildItem(P::ItemContext *item) {
+    if (auto *c = item->modelHeader())
+      return build(c);
+    if (auto *c = item->useDecl())
+      return build(c);
+    if (auto *c = item->temperatureDecl())
+      return build(c);
+    if (auto *c = item->ionDecl())
+      return build(c);
+    if (auto *c = item->constDecl())
+      return build(c);
+    if (auto *c = item->fnDecl())
+      return build(c);
+    if (auto *c = item->outsideDecl())
+      return build(c);
+    if (auto *c = item->compartmentDecl())
+      return build(c);
+    if (auto *c = item->channelDecl())
+      return build(c);
+    if (auto *c = item->pumpDecl())
+      return build(c);
+    return nullptr; // a stray ';'
+  }
+
+  template <typename T> std::unique_ptr<T> named(antlr4::ParserRuleContext *ctx, antlr4::tree::TerminalNode *name) {
+    auto d = std::make_unique<T>(range(ctx));
+    d->name = name->getText();
+    d->nameRange = range(name);
+    return d;
+  }
+
+  static std::string unquote(const std::string &s) {
+    std::string out;
+    for (size_t i = 1; i + 1 < s.size(); ++i) {
+      if (s[i] == '\\' && i + 2 < s.size()) {
+        ++i;
+        out += s[i] == 'n' ? '\n' : s[i] == 't' ? '\t' : s[i];
+      } else {
+        out += s[i];
+      }
+    }
+    return out;
+  }
+
+  // modelHeader : MODEL IDENT STRING? ;
+  DeclPtr build(P::ModelHeaderContext *ctx) {
+    auto d = named<ModelDecl>(ctx, ctx->IDENT());
+    if (ctx->STRING())
+      d->title = unquote(ctx->STRING()->getText());
+    return d;
+  }
+
+  // useDecl : USE (modulePath | STRING) ;
+  DeclPtr build(P::UseDeclContext *ctx) {
+    auto d = std::make_unique<UseDecl>(range(ctx));
+    if (ctx->STRING()) {
+      d->target = unquote(ctx->STRING()->getText());
+      d->isPath = true;
+      d->targetRange = range(ctx->STRING());
+    } else {
+      d->target = ctx->modulePath()->getText();
+      d->targetRange = range(ctx->modulePath());
+    }
+    d->name = d->target;
+    d->nameRange = d->targetRange;
+    return d;
+  }
+
+  // temperatureDecl : TEMPERATURE expr ;
+  DeclPtr build(P::TemperatureDeclContext *ctx) {
+    auto d = std::make_unique<TemperatureDecl>(range(ctx));
+    d->name = "temperature";
+    d->nameRange = range(ctx->TEMPERATURE());
+    d->value = build(ctx->expr());
+    return d;
+  }
+
+  // ionDecl : ION IDENT VALENCE signedNumber ;
+  DeclPtr build(P::IonDeclContext *ctx) {
+    auto d = named<IonDecl>(ctx, ctx->IDENT());
+    d->valence = build(ctx->signedNumber());
+    return d;
+  }
+
+  // constDecl : CONST IDENT (':' unitType)? '=' expr ;
+  DeclPtr build(P::ConstDeclContext *ctx) {
+    auto d = named<ConstDecl>(ctx, ctx->IDENT());
+    if (ctx->unitType()) {
+      d->annotated = true;
+      d->declared = build(ctx->unitType());
+    }
+    d->value = build(ctx->expr());
+    return d;
+  }
+
+  // fnDecl : FN IDENT '(' (param (',' param)*)? ')' '->' unitType '=' expr ;
+  DeclPtr build(P::FnDeclContext *ctx) {
+    auto d = named<FnDecl>(ctx, ctx->IDENT());
+    for (P::ParamContext *p : ctx->param()) {
+      Param param{p->IDENT()->getText(), range(p->IDENT()), build(p->unitType())};
+      for (const Param &earlier : d->params)
+        if (earlier.name == param.name) {
+          auto &diag = diags_.error(param.range, "parameter '" + param.name + "' is declared twice");
+          DiagnosticEngine::note(diag, earlier.range, "first declared here");
+        }
+      d->params.push_back(std::move(param));
+    }
+    d->result = build(ctx->unitType());
+    d->body = build(ctx->expr());
+    return d;
+  }
+
+  // unitType : unitTypeTerm (('*' | '/' | DOT) unitTypeTerm)* ;
+  UnitAnnotation build(P::UnitTypeContext *ctx) {
+    UnitAnnotation a;
+    a.text = ctx->getText();
+    a.range = range(ctx);
+    a.valid = true;
+    bool divide = false;
+    bool first = true;
+    for (antlr4::tree::ParseTree *child : ctx->children) {
+      if (auto *term = dynamic_cast<P::UnitTypeTermContext *>(child)) {
+        Unit u = buildTerm(term, a.valid);
+        a.unit = first ? u : divide ? a.unit / u : a.unit * u;
+        first = false;
+      } else {
+        divide = child->getText() == "/";
+      }
+    }
+    a.unit.scale = 1; // an annotation names a dimension, not a scale
+    return a;
+  }
+
+  // unitTypeTerm : NUMBER | IDENT ('^' '-'? NUMBER)? | '(' unitType ')' ;
+  Unit buildTerm(P::UnitTypeTermContext *ctx, bool &valid) {
+    if (ctx->unitType()) {
+      UnitAnnotation inner = build(ctx->unitType());
+      valid = valid && inner.valid;
+      return inner.unit;
+    }
+    if (!ctx->IDENT()) {
+      if (ctx->NUMBER()->getText() != "1") {
+        diags_.error(range(ctx), "only '1' may stand for a dimensionless unit, not '" + ctx->getText() + "'");
+        valid = false;
+      }
+      return {};
+    }
+    std::string symbol = ctx->IDENT()->getText();
+    auto found = lookupUnitSymbol(symbol);
+    if (!found) {
+      diags_.error(range(ctx->IDENT()), "unknown unit '" + symbol + "'");
+      valid = false;
+      return {};
+    }
+    Unit u = found->unit;
+    if (ctx->NUMBER()) {
+      int power = exponent(ctx->NUMBER(), ctx->getText().find("^-") != std::string::npos, valid);
+      u = u.pow(power);
+    }
+    return u;
+  }
+
+  int exponent(antlr4::tree::TerminalNode *number, bool negative, bool &valid) {
+    double p = parseNumber(number);
+    if (p != std::floor(p) || p < 1 || p > 9) {
+      diags_.error(range(number), "a unit's exponent must be a whole number from 1 to 9, not '" +
+                                      number->getText() + "'");
+      valid = false;
+      return 1;
+    }
+    return negative ? -static_cast<int>(p) : static_cast<int>(p);
+  }
+
+  // outsideDecl : OUTSIDE IDENT solutionBlock ;
+  DeclPtr build(P::OutsideDeclContext *ctx) {
+    auto d = named<SolutionDecl>(ctx, ctx->IDENT());
+    d->body = build(ctx->solutionBlock(), "outside solution '" + d->name + "'");
+    return d;
+  }
+
+  // solutionBlock : '{' solutionEntry* '}' ;
+  SolutionBody build(P::SolutionBlockContext *ctx, const std::string &owner) {
+    SolutionBody body;
+    body.range = range(ctx);
+    for (P::SolutionEntryContext *entry : ctx->solutionEntry()) {
+      if (auto *c = dynamic_cast<P::ConcentrationEntryContext *>(entry)) {
+        // '[' IDENT ']' '=' expr
+        ConcentrationEntry e{c->IDENT()->getText(), range(c->IDENT()), range(c), build(c->expr()), nullptr};
+        for (const ConcentrationEntry &earlier : body.entries)
+          if (earlier.ion == e.ion)
+            duplicate(e.range, earlier.range, "the concentration of '" + e.ion + "'", owner);
+        body.entries.push_back(std::move(e));
+      }
+      if (auto *c = dynamic_cast<P::ImpermeantEntryContext *>(entry)) {
+        // IMPERMEANT expr VALENCE signedNumber
+        body.impermeants.push_back({range(c), build(c->expr()), build(c->signedNumber())});
+      }
+    }
+    return body;
+  }
+
+  // compartmentDecl : COMPARTMENT IDENT '{' compartmentItem* '}' ;
+  DeclPtr build(P::CompartmentDeclContext *ctx) {
+    auto d = named<CompartmentDecl>(ctx, ctx->IDENT());
+    std::string owner = "compartment '" + d->name + "'";
+    SourceRange capacitanceAt, initialAt, insideAt;
+    auto setGeometry = [&](Shape shape, SourceRange r) {
+      if (d->geometry.shape != Shape::None) {
+        auto &diag = diags_.error(r, owner + " has more than one geometry");
+        DiagnosticEngine::note(diag, d->geometry.range, "geometry first given here");
+        return false;
+      }
+      d->geometry.shape = shape;
+      d->geometry.range = r;
+      return true;
+    };
+    for (P::CompartmentItemContext *item : ctx->compartmentItem()) {
+      if (auto *c = dynamic_cast<P::SphereItemContext *>(item)) {
+        // SPHERE DIAMETER expr
+        if (setGeometry(Shape::Sphere, range(c)))
+          d->geometry.diameter = build(c->expr());
+      }
+      if (auto *c = dynamic_cast<P::CylinderItemContext *>(item)) {
+        // CYLINDER LENGTH expr DIAMETER expr
+        if (setGeometry(Shape::Cylinder, range(c))) {
+          d->geometry.length = build(c->expr(0));
+          d->geometry.diameter = build(c->expr(1));
+        }
+      }
+      if (auto *c = dynamic_cast<P::AreaItemContext *>(item)) {
+        // AREA expr
+        if (setGeometry(Shape::Area, range(c)))
+          d->geometry.area = build(c->expr());
+      }
+      if (auto *c = dynamic_cast<P::CapacitanceItemContext *>(item)) {
+        // CAPACITANCE expr
+        if (d->capacitance)
+          duplicate(range(c), capacitanceAt, "the capacitance", owner);
+        else {
+          d->capacitance = build(c->expr());
+          capacitanceAt = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::InitialItemContext *>(item)) {
+        // INITIAL IDENT '=' expr
+        if (c->IDENT()->getText() != "V") {
+          auto &diag = diags_.error(range(c->IDENT()), "'initial' sets the membrane potential 'V', not '" +
+                                                           c->IDENT()->getText() + "'");
+          DiagnosticEngine::note(diag, {}, "write 'initial V = -65 mV'");
+        } else if (d->initialV) {
+          duplicate(range(c), initialAt, "the initial potential", owner);
+        } else {
+          d->initialV = build(c->expr());
+          initialAt = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::BathItemContext *>(item)) {
+        // OUTSIDE IDENT
+        if (!d->bathName.empty())
+          duplicate(range(c), d->bathRange, "the outside solution", owner);
+        else {
+          d->bathName = c->IDENT()->getText();
+          d->bathRange = range(c->IDENT());
+        }
+      }
+      if (auto *c = dynamic_cast<P::InsideItemContext *>(item)) {
+        // INSIDE solutionBlock
+        if (d->hasInside)
+          duplicate(range(c), insideAt, "the inside solution", owner);
+        else {
+          d->hasInside = true;
+          d->inside = build(c->solutionBlock(), "the inside of " + owner);
+          insideAt = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::MembraneItemContext *>(item)) {
+        // MEMBRANE '{' membraneEntry* '}'
+        for (P::MembraneEntryContext *e : c->membraneEntry()) {
+          // membraneEntry : IDENT expr (REVERSAL expr)? ';'? ;
+          MembraneEntry entry;
+          entry.mechanism = e->IDENT()->getText();
+          entry.nameRange = range(e->IDENT());
+          entry.range = range(e);
+          entry.density = build(e->expr(0));
+          if (e->expr().size() > 1)
+            entry.reversal = build(e->expr(1));
+          for (const MembraneEntry &earlier : d->membrane)
+            if (earlier.mechanism == entry.mechanism)
+              duplicate(entry.range, earlier.range, "'" + entry.mechanism + "'", "the membrane of " + owner);
+          d->membrane.push_back(std::move(entry));
+        }
+      }
+    }
+    return d;
+  }
+
+  // channelDecl : CHANNEL IDENT '{' channelItem* '}' ;
+  DeclPtr build(P::ChannelDeclContext *ctx) {
+    auto d = named<ChannelDecl>(ctx, ctx->IDENT());
+    std::string owner = "channel '" + d->name + "'";
+    SourceRange reversalAt;
+    for (P::ChannelItemContext *item : ctx->channelItem()) {
+      if (auto *c = dynamic_cast<P::CarriesItemContext *>(item)) {
+        // CARRIES carried (',' carried)*
+        if (!d->carries.empty()) {
+          duplicate(range(c), d->carriesRange, "'carries'", owner);
+          continue;
+        }
+        d->carriesRange = range(c);
+        for (P::CarriedContext *k : c->carried()) {
+          // carried : IDENT NUMBER? ;
+          CarriedIon ion;
+          ion.ion = k->IDENT()->getText();
+          ion.range = range(k);
+          if (k->NUMBER()) {
+            ion.hasRatio = true;
+            ion.ratio = {parseNumber(k->NUMBER()), range(k->NUMBER())};
+          }
+          for (const CarriedIon &earlier : d->carries)
+            if (earlier.ion == ion.ion)
+              duplicate(ion.range, earlier.range, "ion '" + ion.ion + "'", "what " + owner + " carries");
+          d->carries.push_back(std::move(ion));
+        }
+      }
+      if (auto *c = dynamic_cast<P::ReversalItemContext *>(item)) {
+        // REVERSAL expr
+        if (d->reversal)
+          duplicate(range(c), reversalAt, "the reversal potential", owner);
+        else {
+          d->reversal = build(c->expr());
+          reversalAt = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::GateDeclContext *>(item)) {
+        Gate g = build(c);
+        for (const Gate &earlier : d->gates)
+          if (earlier.name == g.name) {
+            auto &diag = diags_.error(g.nameRange, owner + " has two gates named '" + g.name + "'");
+            DiagnosticEngine::note(diag, earlier.nameRange, "first gate '" + g.name + "' here");
+          }
+        d->gates.push_back(std::move(g));
+      }
+      if (auto *c = dynamic_cast<P::Q10ItemContext *>(item)) {
+        // Q10 expr AT expr
+        if (d->q10)
+          duplicate(range(c), d->q10Range, "'q10'", owner);
+        else {
+          d->q10 = build(c->expr(0));
+          d->q10Reference = build(c->expr(1));
+          d->q10Range = range(c);
+        }
+      }
+    }
+    return d;
+  }
+
+  // gateDecl : GATE IDENT (POWER NUMBER)? '{' gateItem* '}' ;
+  Gate build(P::GateDeclContext *ctx) {
+    Gate g;
+    g.name = ctx->IDENT()->getText();
+    g.nameRange = range(ctx->IDENT());
+    g.range = range(ctx);
+    g.power = {1, g.nameRange};
+    if (ctx->NUMBER()) {
+      g.hasPower = true;
+      g.power = {parseNumber(ctx->NUMBER()), range(ctx->NUMBER())};
+    }
+    std::string owner = "gate '" + g.name + "'";
+    SourceRange at[4];
+    for (P::GateItemContext *item : ctx->gateItem()) {
+      // gateItem : rate=(OPENING | CLOSING | STEADY | TAU) '=' expr ';'? ;
+      GateRate rate = item->rate->getType() == P::OPENING   ? GateRate::Opening
+                      : item->rate->getType() == P::CLOSING ? GateRate::Closing
+                      : item->rate->getType() == P::STEADY  ? GateRate::Steady
+                                                            : GateRate::Tau;
+      ExprPtr &slot = rate == GateRate::Opening   ? g.opening
+                      : rate == GateRate::Closing ? g.closing
+                      : rate == GateRate::Steady  ? g.steady
+                                                  : g.tau;
+      int i = static_cast<int>(rate);
+      if (slot) {
+        duplicate(range(item), at[i], std::string("'") + spelling(rate) + "'", owner);
+        continue;
+      }
+      slot = build(item->expr());
+      at[i] = range(item);
+    }
+    return g;
+  }
+
+  // pumpDecl : kind=(PUMP | EXCHANGER) IDENT '{' pumpItem* '}' ;
+  DeclPtr build(P::PumpDeclContext *ctx) {
+    auto d = named<PumpDecl>(ctx, ctx->IDENT());
+    d->exchanger = ctx->kind->getType() == P::EXCHANGER;
+    std::string owner = std::string(d->exchanger ? "exchanger" : "pump") + " '" + d->name + "'";
+    SourceRange activityAt;
+    for (P::PumpItemContext *item : ctx->pumpItem()) {
+      if (auto *c = dynamic_cast<P::CycleItemContext *>(item)) {
+        // CYCLE stoichTerm (',' stoichTerm)*
+        if (!d->cycle.empty()) {
+          duplicate(range(c), d->cycleRange, "the cycle", owner);
+          continue;
+        }
+        d->cycleRange = range(c);
+        for (P::StoichTermContext *t : c->stoichTerm()) {
+          // stoichTerm : NUMBER IDENT dir=(IN | OUT) ;
+          StoichTerm term;
+          term.count = {parseNumber(t->NUMBER()), range(t->NUMBER())};
+          term.ion = t->IDENT()->getText();
+          term.ionRange = range(t->IDENT());
+          term.range = range(t);
+          term.direction = t->dir->getType() == P::IN ? Direction::In : Direction::Out;
+          d->cycle.push_back(std::move(term));
+        }
+      }
+      if (auto *c = dynamic_cast<P::ActivityItemContext *>(item)) {
+        // ACTIVITY '=' expr
+        if (d->activity)
+          duplicate(range(c), activityAt, "the activity law", owner);
+        else {
+          d->activity = build(c->expr());
+          activityAt = range(c);
+        }
+      }
+    }
+    return d;
+  }
+
+  // ---- expressions ----
+
+  // expr : IF expr THEN expr ELSE expr | orExpr ;
+  ExprPtr build(P::ExprContext *ctx) {
+    if (auto *c = dynamic_cast<P::IfExprContext *>(ctx)) {
+      auto e = std::make_unique<IfExpr>(range(c));
+      e->cond = build(c->expr(0));
+      e->thenExpr = build(c->expr(1));
+      e->elseExpr = build(c->expr(2));
+      return e;
+    }
+    return build(static_cast<P::PlainExprContext *>(ctx)->orExpr());
+  }
+
+  ExprPtr binary(BinaryOp op, antlr4::Token *opToken, ExprPtr lhs, ExprPtr rhs) {
+    auto e = std::make_unique<BinaryExpr>(SourceRange::join(lhs->range, rhs->range));
+    e->op = op;
+    e->opRange = range(opToken);
+    e->lhs = std::move(lhs);
+    e->rhs = std::move(rhs);
+    return e;
+  }
+
+  // orExpr : andExpr (OR andExpr)* ;
+  ExprPtr build(P::OrExprContext *ctx) {
+    ExprPtr e = build(ctx->andExpr(0));
+    for (size_t i = 1; i < ctx->andExpr().size(); ++i)
+      e = binary(BinaryOp::Or, ctx->OR(i - 1)->getSymbol(), std::move(e), build(ctx->andExpr(i)));
+    return e;
+  }
+
+  // andExpr : notExpr (AND notExpr)* ;
+  ExprPtr build(P::AndExprContext *ctx) {
+    ExprPtr e = build(ctx->notExpr(0));
+    for (size_t i = 1; i < ctx->notExpr().size(); ++i)
+      e = binary(BinaryOp::And, ctx->AND(i - 1)->getSymbol(), std::move(e), build(ctx->notExpr(i)));
+    return e;
+  }
+
+  // notExpr : NOT notExpr | cmpExpr ;
+  ExprPtr build(P::NotExprContext *ctx) {
+    if (ctx->NOT()) {
+      auto e = std::make_unique<UnaryExpr>(range(ctx));
+      e->op = UnaryOp::Not;
+      e->operand = build(ctx->notExpr());
+      return e;
+    }
+    return build(ctx->cmpExpr());
+  }
+
+  // cmpExpr : addExpr (op=('==' | '!=' | '<' | '<=' | '>' | '>=') addExpr)? ;
+  ExprPtr build(P::CmpExprContext *ctx) {
+    ExprPtr lhs = build(ctx->addExpr(0));
+    if (!ctx->op)
+      return lhs;
+    std::string t = ctx->op->getText();
+    BinaryOp op = t == "==" ? BinaryOp::Eq
+                  : t == "!=" ? BinaryOp::Ne
+                  : t == "<"  ? BinaryOp::Lt
+                  : t == "<=" ? BinaryOp::Le
+                  : t == ">"  ? BinaryOp::Gt
+                              : BinaryOp::Ge;
+    return binary(op, ctx->op, std::move(lhs), build(ctx->addExpr(1)));
+  }
+
+  // addExpr : mulExpr (ops+=('+' | '-') mulExpr)* ;
+  ExprPtr build(P::AddExprContext *ctx) {
+    ExprPtr e = build(ctx->mulExpr(0));
+    for (size_t i = 1; i < ctx->mulExpr().size(); ++i) {
+      antlr4::Token *op = ctx->ops[i - 1];
+      e = binary(op->getText() == "+" ? BinaryOp::Add : BinaryOp::Sub, op, std::move(e), build(ctx->mulExpr(i)));
+    }
+    return e;
+  }
+
+  // mulExpr : unaryExpr (ops+=('*' | '/') unaryExpr)* ;
+  ExprPtr build(P::MulExprContext *ctx) {
+    ExprPtr e = build(ctx->unaryExpr(0));
+    for (size_t i = 1; i < ctx->unaryExpr().size(); ++i) {
+      antlr4::Token *op = ctx->ops[i - 1];
+      e = binary(op->getText() == "*" ? BinaryOp::Mul : BinaryOp::Div, op, std::move(e), build(ctx->unaryExpr(i)));
+    }
+    return e;
+  }
+
+  // unaryExpr : op=('-' | '+') unaryExpr | powExpr ;
+  ExprPtr build(P::UnaryExprContext *ctx) {
+    if (ctx->powExpr())
+      return build(ctx->powExpr());
+    auto e = std::make_unique<UnaryExpr>(range(ctx));
+    e->op = ctx->op->getText() == "-" ? UnaryOp::Negate : UnaryOp::Plus;
+    e->operand = build(ctx->unaryExpr());
+    return e;
+  }
+
+  // powExpr : primary ('^' unaryExpr)? ;
+  ExprPtr build(P::PowExprContext *ctx) {
+    ExprPtr base = build(ctx->primary());
+    if (!ctx->unaryExpr())
+      return base;
+    auto *caret = dynamic_cast<antlr4::tree::TerminalNode *>(ctx->children.at(1));
+    return binary(BinaryOp::Pow, caret->getSymbol(), std::move(base), build(ctx->unaryExpr()));
+  }
+
+  ExprPtr build(P::PrimaryContext *ctx) {
+    if (auto *c = dynamic_cast<P::QuantityPrimaryContext *>(ctx))
+      return build(c->quantity());
+    if (auto *c = dynamic_cast<P::CallPrimaryContext *>(ctx)) {
+      // IDENT '(' (expr (',' expr)*)? ')'
+      auto e = std::make_unique<CallExpr>(range(c));
+      e->callee = c->IDENT()->getText();
+      e->calleeRange = range(c->IDENT());
+      for (P::ExprContext *a : c->expr())
+        e->args.push_back(build(a));
+      return e;
+    }
+    if (auto *c = dynamic_cast<P::NamePrimaryContext *>(ctx)) {
+      auto e = std::make_unique<NameExpr>(range(c));
+      e->name = c->IDENT()->getText();
+      return e;
+    }
+    if (auto *c = dynamic_cast<P::ConcentrationPrimaryContext *>(ctx)) {
+      // '[' IDENT ']' side=(IN | OUT)
+      auto e = std::make_unique<ConcentrationExpr>(range(c));
+      e->ion = c->IDENT()->getText();
+      e->ionRange = range(c->IDENT());
+      e->side = c->side->getType() == P::IN ? Side::Inside : Side::Outside;
+      return e;
+    }
+    auto *c = static_cast<P::ParenPrimaryContext *>(ctx);
+    ExprPtr inner = build(c->expr());
+    inner->range = range(c); // keep the parentheses in the range for underlines
+    return inner;
+  }
+
+  // quantity : NUMBER ({unitStarts()}? unit)? ;
+  ExprPtr build(P::QuantityContext *ctx) {
+    auto e = std::make_unique<NumberExpr>(range(ctx));
+    e->written = parseNumber(ctx->NUMBER());
+    e->value = e->written;
+    if (!ctx->unit())
+      return e;
+    P::UnitContext *u = ctx->unit();
+    e->unitText = u->getText();
+    e->unitRange = range(u);
+    // unit : leadingSlash=SLASH? unitFactor ({unitContinues()}? unitOp unitFactor)* ;
+    Unit unit;
+    bool celsius = false;
+    auto factors = u->unitFactor();
+    for (size_t i = 0; i < factors.size(); ++i) {
+      P::UnitFactorContext *f = factors[i];
+      // unitFactor : IDENT ({exponentFollows()}? '^' '-'? NUMBER)? ;
+      std::string symbol = f->IDENT()->getText();
+      auto found = lookupUnitSymbol(symbol);
+      if (!found) {
+        auto &d = diags_.error(range(f->IDENT()), "unknown unit '" + symbol + "'");
+        if (factors.size() == 1 && !u->leadingSlash)
+          DiagnosticEngine::note(d, {}, "a unit follows its number directly; to multiply by a name, write '*'");
+        e->unitValid = false;
+        continue;
+      }
+      Unit fu = found->unit;
+      if (found->celsius) {
+        celsius = true;
+        if (factors.size() > 1 || f->NUMBER() || u->leadingSlash) {
+          auto &d = diags_.error(range(f->IDENT()), "'" + symbol + "' can only stand alone, as an absolute temperature");
+          DiagnosticEngine::note(d, {}, "use 'K' in compound units and for temperature differences");
+          e->unitValid = false;
+        }
+      }
+      if (f->NUMBER()) {
+        bool valid = true;
+        fu = fu.pow(exponent(f->NUMBER(), f->getText().find("^-") != std::string::npos, valid));
+        e->unitValid = e->unitValid && valid;
+      }
+      bool divide = (i == 0) ? u->leadingSlash != nullptr : u->unitOp(i - 1)->getText() == "/";
+      unit = divide ? unit / fu : unit * fu;
+    }
+    if (!e->unitValid)
+      return e;
+    e->unit = {unit.dim, 1};
+    e->celsius = celsius;
+    e->value = celsius ? e->written + 273.15 : e->written * unit.scale;
+    return e;
+  }
+};
+
+} // namespace
+
+std::unique_ptr<Module> buildModule(P::SpecContext *spec, antlr4::CommonTokenStream &tokens, const SourceFile &file,
+                                    DiagnosticEngine &diags) {
+  return ASTBuilder(tokens, file, diags).build(spec);
+}
+
+} // namespace brine::parsing

@@ -1,0 +1,115 @@
+// SyntaxErrors.cpp - turns ANTLR's syntax errors into plain-English diagnostics.
+#include "ParseInternal.h"
+
+namespace brine::parsing {
+
+using grammar::BrineLexer;
+
+std::string tokenName(const antlr4::dfa::Vocabulary &vocabulary, size_t type) {
+  switch (type) {
+  case antlr4::Token::EOF:
+    return "end of file";
+  case BrineLexer::IDENT:
+    return "a name";
+  case BrineLexer::NUMBER:
+    return "a number";
+  case BrineLexer::STRING:
+    return "a string";
+  case BrineLexer::SLASH:
+    return "'/'";
+  case BrineLexer::DOT:
+    return "'\u00B7'";
+  default:
+    break;
+  }
+  std::string literal = vocabulary.getLiteralName(type);
+  if (!literal.empty())
+    return literal;
+  return vocabulary.getDisplayName(type);
+}
+
+namespace {
+
+std::string quoted(const antlr4::Token *t) {
+  if (!t || t->getType() == antlr4::Token::EOF)
+    return "end of file";
+  std::string text = t->getText();
+  if (text.size() > 24)
+    text = text.substr(0, 21) + "...";
+  return "'" + text + "'";
+}
+
+std::string expectedList(const antlr4::dfa::Vocabulary &vocabulary, const antlr4::misc::IntervalSet &set) {
+  std::vector<std::string> names;
+  for (ssize_t type : set.toList()) {
+    if (type < 0)
+      continue;
+    std::string n = tokenName(vocabulary, static_cast<size_t>(type));
+    if (n.empty() || n == "<INVALID>")
+      continue;
+    names.push_back(n);
+  }
+  if (names.empty())
+    return "";
+  if (names.size() > 8)
+    return "";
+  std::string out;
+  for (size_t i = 0; i < names.size(); ++i) {
+    if (i > 0)
+      out += i + 1 == names.size() ? " or " : ", ";
+    out += names[i];
+  }
+  return out;
+}
+
+} // namespace
+
+void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::Token *offending, size_t,
+                                      size_t, const std::string &msg, std::exception_ptr e) {
+  ++count_;
+  // One bad byte can make the parser complain many times; the first dozen say enough.
+  if (count_ > 12) {
+    if (count_ == 13)
+      diags_.error(tokenRange(file_, offending), "too many syntax errors; stopping here");
+    return;
+  }
+  const auto &vocabulary = recognizer->getVocabulary();
+  SourceRange range = tokenRange(file_, offending);
+  std::string message;
+  std::string expected;
+  auto *parser = dynamic_cast<antlr4::Parser *>(recognizer);
+  if (offending && offending->getType() == BrineLexer::STRAY) {
+    message = "unexpected character " + quoted(offending);
+  } else if (offending && offending->getType() == BrineLexer::UNTERMINATED_STRING) {
+    message = "string is not closed; add '\"' before the end of the line";
+  } else {
+    bool failedPredicate = false;
+    if (e) {
+      try {
+        std::rethrow_exception(e);
+      } catch (antlr4::FailedPredicateException &) {
+        failedPredicate = true;
+      } catch (antlr4::InputMismatchException &ex) {
+        expected = expectedList(vocabulary, ex.getExpectedTokens());
+      } catch (antlr4::NoViableAltException &) {
+      } catch (...) {
+      }
+    } else if (parser) {
+      expected = expectedList(vocabulary, parser->getExpectedTokens());
+    }
+    if (failedPredicate)
+      message = "a unit must follow its number on the same line, written without spaces";
+    else if (msg.rfind("missing ", 0) == 0 && !expected.empty())
+      message = "expected " + expected + " before " + quoted(offending);
+    else if (offending && offending->getType() == antlr4::Token::EOF)
+      message = "unexpected end of file" + (expected.empty() ? "" : "; expected " + expected);
+    else
+      message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
+    bool keyword = offending && offending->getType() >= BrineLexer::MODEL && offending->getType() <= BrineLexer::NOT;
+    if (keyword && expected.find("a name") != std::string::npos)
+      message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
+  }
+  diags_.error(range, message);
+}
+
+} // namespace brine::parsing

@@ -1,0 +1,13 @@
+# embed.cmake - writes stdlib.inc: one {"std.<name>", "<path>", R"(...)"} entry per module.
+set(content "// Generated from stdlib/*.brine by stdlib/embed.cmake. Do not edit.\n")
+foreach(f ${FILES})
+  get_filename_component(name ${f} NAME_WE)
+  file(READ ${f} text)
+  string(FIND "${text}" ")brine_std\"" clash)
+  if(NOT clash EQUAL -1)
+    message(FATAL_ERROR "${f} contains the embedding delimiter")
+  endif()
+  string(APPEND content "{\"std.${name}\", \"stdlib/${name}.brine\", R\"brine_std(${text})brine_std\"},\n")
+endforeach()
+file(WRITE ${OUT}.tmp "${content}")
+file(RENAME ${OUT}.tmp ${OUT})
