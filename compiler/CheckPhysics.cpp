@@ -220,8 +220,8 @@ private:
       EvalFailure failure;
       auto value = evaluator_.evaluate(*e, env, &failure);
       if (!value) {
-        if (failure.reason.rfind("needs the concentration", 0) == 0 || failure.reason.rfind("needs the reversal", 0) == 0) {
-          if (!c)
+        if (failure.missingIon) {
+          if (!c || alreadyReported(failure.missingIon, *c, *m))
             return; // unplaced: nothing to say until it sits in a compartment
           auto &d = diags_.error(m->nameRange, what + " " + failure.reason + ", which compartment '" + c->decl->name +
                                                    "' does not give");
@@ -234,7 +234,7 @@ private:
         return;
       }
       if (*value < allowed.low || *value > allowed.high) {
-        std::string message = what + " is " + fmt("%.4g", *value) + " (SI) at V = " + mV(v) + "; " + allowed.what;
+        std::string message = what + " is " + inUnits(*value, e->type.dim) + " at V = " + mV(v) + "; " + allowed.what;
         if (errorOnRange)
           diags_.error(e->range, message);
         else
@@ -242,6 +242,31 @@ private:
         return;
       }
     }
+  }
+
+  // CheckCharge has already said that a moved or carried ion is missing from a compartment.
+  static bool alreadyReported(const IonDecl *ion, const CompartmentValues &c, const MembraneEntry &m) {
+    for (const Placement &p : c.placements) {
+      if (p.entry != &m)
+        continue;
+      if (p.pump)
+        for (const StoichTerm &t : p.pump->cycle)
+          if (t.target == ion)
+            return true;
+      if (p.channel && (p.reversalKind == ReversalKind::Nernst || p.reversalKind == ReversalKind::Ghk))
+        for (const CarriedIon &k : p.channel->carries)
+          if (k.target == ion)
+            return true;
+    }
+    return false;
+  }
+
+  static std::string inUnits(double v, const Dimension &d) {
+    if (d == dims::rate())
+      return fmt("%.4g /ms", v * 1e-3);
+    if (d == dims::time())
+      return fmt("%.4g ms", v * 1e3);
+    return fmt("%.4g", v);
   }
 
   void sampleGates(const ChannelDecl &ch, const CompartmentValues *c, const MembraneEntry *m) {

@@ -133,7 +133,7 @@ private:
           mismatch(m.density->range, what, "a conductance density (mS/cm2) or a permeability (cm/s)", t.dim,
                    "a channel's density is its maximal conductance, or its permeability, per membrane area");
       } else if (t.dim != dims::currentDensity() && t.dim != dims::turnoverDensity()) {
-        mismatch(m.density->range, what, "a current density (uA/cm2) or a turnover density (mol/(m2*s))", t.dim,
+        mismatch(m.density->range, what, "a current density (uA/cm2) or a turnover density (mol/m2/s)", t.dim,
                  "a pump's density is its maximal current, or its maximal cycle rate, per membrane area");
       }
     }

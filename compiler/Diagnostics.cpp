@@ -34,13 +34,26 @@ const char *severityName(Severity s) {
 
 namespace {
 
-// Tabs in the source line are shown as single spaces so the caret lines up.
+// Tabs are shown as single spaces so the caret lines up; bytes that are not UTF-8 (in a
+// file reported as binary) as '?' so the terminal shows something sane.
 std::string displayLine(std::string_view line) {
-  std::string out(line);
+  std::string out;
+  while (!line.empty()) {
+    auto bad = findInvalidUtf8(line);
+    std::string_view good = line.substr(0, bad ? *bad : line.size());
+    out += good;
+    if (!bad)
+      break;
+    out += '?';
+    line.remove_prefix(*bad + 1);
+  }
   for (char &c : out)
-    if (c == '\t')
+    if (c == '\t' || (static_cast<unsigned char>(c) < 0x20 && c != 0))
       c = ' ';
-  return out;
+  std::string cleaned;
+  for (char c : out)
+    cleaned += c == 0 ? ' ' : c;
+  return cleaned;
 }
 
 void renderOne(std::string &out, Severity s, const SourceRange &range, const std::string &message,

@@ -36,6 +36,8 @@ public:
   size_t errorCount() const { return errors_; }
   size_t warningCount() const { return warnings_; }
   const std::vector<Diagnostic> &all() const { return diagnostics_; }
+  /// The most recent diagnostic, for a reporter that refines what it just said.
+  Diagnostic *last() { return diagnostics_.empty() ? nullptr : &diagnostics_.back(); }
 
 private:
   Diagnostic &report(Severity s, SourceRange range, std::string message);

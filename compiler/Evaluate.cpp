@@ -19,7 +19,7 @@ struct Abort {};
 } // namespace
 
 std::optional<double> Evaluator::evaluate(const Expr &e, const EvalEnv &env, EvalFailure *failure) {
-  failed_ = false;
+  failure_ = {};
   try {
     double v = eval(e, env, nullptr);
     if (!std::isfinite(v)) {
@@ -49,7 +49,8 @@ std::optional<double> Evaluator::constant(const ConstDecl &c, EvalFailure *failu
 
 double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
   auto fail = [&](const std::string &reason) -> double {
-    failure_ = {e.range, reason};
+    failure_.range = e.range;
+    failure_.reason = reason;
     throw Abort{};
   };
   switch (e.kind) {
@@ -77,6 +78,8 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
     std::optional<double> v;
     if (env.concentration && c.target)
       v = env.concentration(c.target, c.side);
+    if (!v)
+      failure_.missingIon = c.target;
     return v ? *v : fail("needs the concentration of '" + c.ion + "' " + (c.side == Side::Inside ? "inside" : "outside"));
   }
   case ExprKind::Call: {
@@ -85,6 +88,8 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
       std::optional<double> v;
       if (env.reversal && c.reversalIon)
         v = env.reversal(c.reversalIon);
+      if (!v)
+        failure_.missingIon = c.reversalIon;
       return v ? *v : fail("needs the reversal potential of '" + (c.reversalIon ? c.reversalIon->name : "?") + "'");
     }
     std::vector<double> args;

@@ -25,6 +25,7 @@ struct EvalEnv {
 struct EvalFailure {
   SourceRange range;
   std::string reason; // "needs the membrane potential", "division by zero", ...
+  const ast::IonDecl *missingIon = nullptr; // set when a concentration or reversal was missing
 };
 
 class Evaluator {
@@ -39,7 +40,6 @@ private:
   double eval(const ast::Expr &e, const EvalEnv &env, const Frame *frame);
   std::map<const ast::ConstDecl *, std::optional<double>> constants_;
   EvalFailure failure_;
-  bool failed_ = false;
 };
 
 } // namespace brine

@@ -207,7 +207,7 @@ const std::vector<NamedDimension> &namedDimensions() {
       {dims::specificCapacitance(), "a specific capacitance (uF/cm2)"},
       {dims::charge(), "a charge (C)"},
       {dims::permeability(), "a permeability (cm/s)"},
-      {dims::turnoverDensity(), "a turnover density (mol/(m2*s))"},
+      {dims::turnoverDensity(), "a turnover density (mol/m2/s)"},
       {dims::voltage() / I(), "a resistance (Mohm)"},
       {dims::voltage() / I() * L(2), "a specific membrane resistance (ohm*cm2)"},
       {dims::voltage() / I() * L(), "a resistivity (ohm*cm)"},

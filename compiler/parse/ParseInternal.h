@@ -30,6 +30,7 @@ private:
   const SourceFile &file_;
   DiagnosticEngine &diags_;
   size_t count_ = 0;
+  uint32_t lastOffset_ = UINT32_MAX; // where the previous syntax error was reported
 };
 
 /// Readable name of a token type: "'model'", "a name", "a number".

@@ -109,6 +109,14 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
     if (keyword && expected.find("a name") != std::string::npos)
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
   }
+  // ANTLR may complain twice at one token while recovering; keep the more helpful message.
+  if (range.begin.offset == lastOffset_ && diags_.last()) {
+    if (message.size() > diags_.last()->message.size())
+      diags_.last()->message = message;
+    --count_;
+    return;
+  }
+  lastOffset_ = range.begin.offset;
   diags_.error(range, message);
 }
 
