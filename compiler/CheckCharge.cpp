@@ -164,12 +164,15 @@ private:
   }
 
   void electroneutrality(const SolutionBody &body, const SolutionValues &values, const std::string &what) {
+    bool valencesKnown = true;
     for (const ImpermeantEntry &i : body.impermeants) {
       double z = i.valence.value;
-      if (z == 0 || z != std::floor(z))
+      if (z == 0 || z != std::floor(z)) {
         diags_.error(i.valence.range, "an impermeant ion's valence must be a non-zero whole number, not " + number(z));
+        valencesKnown = false;
+      }
     }
-    if (values.concentration.empty())
+    if (values.concentration.empty() || !valencesKnown)
       return;
     double positive = 0, negative = 0;
     for (auto &[ion, c] : values.concentration) {

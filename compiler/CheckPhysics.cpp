@@ -215,7 +215,12 @@ private:
     if (!e || !e->type.known)
       return;
     EvalEnv env = base;
-    for (double v = sampleLowVolts; v <= sampleHighVolts + 1e-12; v += sampleStepVolts) {
+    // Whole millivolts, computed as written literals are (n * 1e-3), so a removable
+    // singularity such as V = -40 mV is hit exactly rather than stepped over.
+    int steps = static_cast<int>(std::lround((sampleHighVolts - sampleLowVolts) / sampleStepVolts));
+    int first = static_cast<int>(std::lround(sampleLowVolts / sampleStepVolts));
+    for (int i = 0; i <= steps; ++i) {
+      double v = (first + i) * 1e-3;
       env.V = v;
       EvalFailure failure;
       auto value = evaluator_.evaluate(*e, env, &failure);

@@ -11,7 +11,7 @@ namespace brine {
 using namespace ast;
 
 struct Evaluator::Frame {
-  const std::vector<double> *args = nullptr;
+  const double *args = nullptr;
 };
 
 namespace {
@@ -59,7 +59,7 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
   case ExprKind::Name: {
     auto &n = static_cast<const NameExpr &>(e);
     if (n.paramIndex >= 0 && frame && frame->args)
-      return (*frame->args)[n.paramIndex];
+      return frame->args[n.paramIndex];
     if (n.builtin == Builtin::MembranePotential)
       return env.V ? *env.V : fail("needs the membrane potential");
     if (n.builtin == Builtin::Temperature)
@@ -92,10 +92,16 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
         failure_.missingIon = c.reversalIon;
       return v ? *v : fail("needs the reversal potential of '" + (c.reversalIon ? c.reversalIon->name : "?") + "'");
     }
-    std::vector<double> args;
-    args.reserve(c.args.size());
-    for (auto &a : c.args)
-      args.push_back(eval(*a, env, frame));
+    // Most calls take a few arguments: keep them off the heap on this hot path.
+    double local[8];
+    std::vector<double> spill;
+    double *args = local;
+    if (c.args.size() > 8) {
+      spill.resize(c.args.size());
+      args = spill.data();
+    }
+    for (size_t i = 0; i < c.args.size(); ++i)
+      args[i] = eval(*c.args[i], env, frame);
     switch (c.math) {
     case MathFn::Exp: return std::exp(args[0]);
     case MathFn::Expm1: return std::expm1(args[0]);
@@ -113,7 +119,7 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
     }
     if (!c.target)
       return fail("unresolved call");
-    Frame inner{&args};
+    Frame inner{args};
     return eval(*c.target->body, env, &inner);
   }
   case ExprKind::Unary: {

@@ -76,6 +76,11 @@ private:
         return;
       }
       std::error_code ec;
+      if (fs::is_directory(target, ec)) {
+        diags_.error(use.targetRange, "'" + name + "' is a directory, not a spec file");
+        ok_ = false;
+        return;
+      }
       if (!fs::is_regular_file(target, ec)) {
         diags_.error(use.targetRange, "cannot find '" + use.target + "' (looked for '" + name + "')");
         ok_ = false;

@@ -128,29 +128,44 @@ private:
   std::set<const Decl *> finished_, reported_;
   const Decl *current_ = nullptr; // the const or fn whose body is being bound
 
+public:
+  bool stdIonsUsed_ = false; // whether to suggest 'use std.ions' for an unknown ion
+
+private:
+
   Decl *lookup(const std::string &name) {
     auto it = symbols_.byName.find(name);
     return it == symbols_.byName.end() ? nullptr : it->second;
   }
 
-  void unknown(SourceRange range, const std::string &name, const char *what) {
+  // Reports an unknown name, suggesting a close name of a kind that fits the place.
+  Diagnostic &unknown(SourceRange range, const std::string &name, const char *what,
+                      std::initializer_list<DeclKind> kinds) {
     auto &d = diags_.error(range, std::string("unknown ") + what + " '" + name + "'");
     std::string best;
-    size_t bestDistance = name.size() <= 3 ? 1 : 2;
+    size_t bestDistance = name.size() <= 2 ? 1 : 2;
     for (auto &[candidate, decl] : symbols_.byName) {
+      if (decl == current_ || std::find(kinds.begin(), kinds.end(), decl->kind) == kinds.end())
+        continue;
       size_t dist = editDistance(name, candidate);
       if (dist <= bestDistance && (best.empty() || dist < editDistance(name, best)))
         best = candidate;
     }
     if (!best.empty())
       DiagnosticEngine::note(d, lookup(best)->nameRange, "did you mean '" + best + "'?");
+    else if (lookupUnitSymbol(name))
+      DiagnosticEngine::note(d, {}, "'" + name + "' is a unit: write it right after its number, without spaces, "
+                                    "as in '1 /" + name + "'");
+    return d;
   }
 
   const IonDecl *ion(const std::string &name, SourceRange range) {
     Decl *d = lookup(name);
     if (!d) {
-      auto &diag = diags_.error(range, "unknown ion '" + name + "'");
-      DiagnosticEngine::note(diag, {}, "declare it with 'ion " + name + " valence ...' or 'use std.ions'");
+      auto &diag = unknown(range, name, "ion", {DeclKind::Ion});
+      if (diag.notes.empty())
+        DiagnosticEngine::note(diag, {}, stdIonsUsed_ ? "declare it with 'ion " + name + " valence ...'"
+                                                      : "declare it with 'ion " + name + " valence ...' or 'use std.ions'");
       return nullptr;
     }
     if (auto *i = dyn_cast<IonDecl>(d))
@@ -237,7 +252,7 @@ private:
     if (!c.bathName.empty()) {
       Decl *d = lookup(c.bathName);
       if (!d)
-        unknown(c.bathRange, c.bathName, "outside solution");
+        unknown(c.bathRange, c.bathName, "outside solution", {DeclKind::Solution});
       else if (auto *s = dyn_cast<SolutionDecl>(d))
         c.bath = s;
       else {
@@ -248,7 +263,7 @@ private:
     for (MembraneEntry &m : c.membrane) {
       Decl *d = lookup(m.mechanism);
       if (!d)
-        unknown(m.nameRange, m.mechanism, "channel or pump");
+        unknown(m.nameRange, m.mechanism, "channel or pump", {DeclKind::Channel, DeclKind::Pump});
       else if (d->kind == DeclKind::Channel || d->kind == DeclKind::Pump)
         m.target = d;
       else {
@@ -329,7 +344,7 @@ private:
     }
     Decl *d = lookup(n.name);
     if (!d) {
-      unknown(n.range, n.name, "name");
+      unknown(n.range, n.name, "name", {DeclKind::Const});
       return;
     }
     if (d->kind == DeclKind::Const) {
@@ -379,7 +394,7 @@ private:
       expr(a.get(), ctx);
     Decl *d = lookup(c.callee);
     if (!d) {
-      unknown(c.calleeRange, c.callee, "function");
+      unknown(c.calleeRange, c.callee, "function", {DeclKind::Fn});
       return;
     }
     auto *f = dyn_cast<FnDecl>(d);
@@ -431,6 +446,8 @@ private:
 bool resolveNames(Program &program, SymbolTable &symbols, DiagnosticEngine &diags) {
   size_t before = diags.errorCount();
   Resolver r(symbols, diags);
+  for (auto &m : program.modules)
+    r.stdIonsUsed_ = r.stdIonsUsed_ || m->name == "std.ions";
   for (auto &m : program.modules)
     r.declare(*m, m.get() == program.root);
   for (auto &m : program.modules)

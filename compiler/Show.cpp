@@ -20,7 +20,14 @@ namespace {
 
 const char *caution = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
 
-json optional(std::optional<double> v, double scale = 1) { return v ? json(*v * scale) : json(nullptr); }
+// 15 significant digits: unit scaling (0.009 F/m2 -> 0.9 uF/cm2) leaves no 0.8999999999999999.
+double tidy(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.15g", v);
+  return std::strtod(buf, nullptr);
+}
+
+json optional(std::optional<double> v, double scale = 1) { return v ? json(tidy(*v * scale)) : json(nullptr); }
 
 const char *densityUnit(DensityKind k) {
   switch (k) {
@@ -154,10 +161,13 @@ std::string showText(const Compilation &c) {
     line("compartment " + cv.decl->name + " (outside: " + (cv.bath ? cv.bath->name : "-") + ")");
     line("  area " + num("%.6g um2", cv.area, 1e12) + ", capacitance " + num("%.4g uF/cm2", cv.capacitance, 100) +
          ", initial V " + num("%.4g mV", cv.initialV, 1e3));
+    if (cv.ions.empty())
+      line("  (no concentrations given)");
     char header[128];
     std::snprintf(header, sizeof header, "  %-8s %6s %12s %12s %14s", "ion", "charge", "inside mM", "outside mM",
                   "reversal mV");
-    line(header);
+    if (!cv.ions.empty())
+      line(header);
     for (const IonDecl *ion : cv.ions) {
       auto z = integerValence(*ion);
       char row[160];

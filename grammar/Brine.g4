@@ -2,25 +2,6 @@
 // only compiler/parse/ sees the generated types.
 grammar Brine;
 
-@parser::members {
-  // A unit is written right after its number on the same line, with no spaces inside it,
-  // so "1 /ms * x" is one per millisecond times x, and "1 /ms*x" is a unit "ms*x".
-  bool touching(size_t a, size_t b) {
-    auto *l = _input->LT(static_cast<ssize_t>(a));
-    auto *r = _input->LT(static_cast<ssize_t>(b));
-    return l && r && l->getStopIndex() + 1 == r->getStartIndex();
-  }
-  bool unitStarts() {
-    auto *prev = _input->LT(-1);
-    auto *next = _input->LT(1);
-    if (!prev || !next || prev->getLine() != next->getLine()) return false;
-    if (next->getType() == SLASH) return touching(1, 2);
-    return true;
-  }
-  bool unitContinues() { return touching(-1, 1) && touching(1, 2); }
-  bool exponentFollows() { return touching(-1, 1); }
-}
-
 spec : item* EOF ;
 
 item
@@ -41,7 +22,12 @@ item
 modelHeader : MODEL IDENT STRING? ;
 // use std.ions | use "file.brine"
 useDecl : USE (modulePath | STRING) ;
-modulePath : IDENT ('.' IDENT)* ;
+modulePath : IDENT ('.' word)* ;
+// Any name-like token: module paths may contain words that are keywords elsewhere.
+word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE | INSIDE | IMPERMEANT
+     | COMPARTMENT | SPHERE | CYLINDER | DIAMETER | LENGTH | AREA | CAPACITANCE | INITIAL | MEMBRANE
+     | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
+     | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -52,8 +38,8 @@ constDecl : CONST IDENT (':' unitType)? '=' expr ;
 // fn NAME(param: unit, ...) -> unit = expr
 fnDecl : FN IDENT '(' (param (',' param)*)? ')' '->' unitType '=' expr ;
 param : IDENT ':' unitType ;
-unitType : unitTypeTerm (('*' | '/' | DOT) unitTypeTerm)* ;
-unitTypeTerm : NUMBER | IDENT ('^' '-'? NUMBER)? | '(' unitType ')' ;
+unitType : unitTypeTerm ((('*' | SLASH | DOT) unitTypeTerm) | UNIT_MUL | UNIT_DIV)* ;
+unitTypeTerm : NUMBER | IDENT UNIT_POW? | '(' unitType ')' ;
 
 // outside NAME { [X] = c ... }
 outsideDecl : OUTSIDE IDENT solutionBlock ;
@@ -106,9 +92,10 @@ andExpr : notExpr (AND notExpr)* ;
 notExpr : NOT notExpr | cmpExpr ;
 cmpExpr : addExpr (op=('==' | '!=' | '<' | '<=' | '>' | '>=') addExpr)? ;
 addExpr : mulExpr (ops+=('+' | '-') mulExpr)* ;
-mulExpr : unaryExpr (ops+=('*' | '/') unaryExpr)* ;
+// "x/tau" lexes as x UNIT_DIV: division by a name written without spaces.
+mulExpr : unaryExpr ((('*' | SLASH) unaryExpr) | UNIT_MUL | UNIT_DIV)* ;
 unaryExpr : op=('-' | '+') unaryExpr | powExpr ;
-powExpr : primary ('^' unaryExpr)? ;
+powExpr : primary ('^' unaryExpr | UNIT_POW)? ;
 primary
   : quantity                                      # quantityPrimary
   | IDENT '(' (expr (',' expr)*)? ')'             # callPrimary
@@ -117,11 +104,10 @@ primary
   | '(' expr ')'                                  # parenPrimary
   ;
 
-// quantity : NUMBER unit? ; the unit is on the number's line and has no spaces inside
-quantity : NUMBER ({unitStarts()}? unit)? ;
-unit : leadingSlash=SLASH? unitFactor ({unitContinues()}? unitOp unitFactor)* ;
-unitOp : '*' | SLASH | DOT ;
-unitFactor : IDENT ({exponentFollows()}? '^' '-'? NUMBER)? ;
+// quantity : NUMBER unit? ; a unit is written without spaces inside it, so the lexer
+// already tells "/ms" (part of a unit) from " / " (division).
+quantity : NUMBER unit? ;
+unit : (IDENT UNIT_POW? | UNIT_DIV) (UNIT_MUL | UNIT_DIV)* ;
 
 MODEL : 'model' ;
 USE : 'use' ;
@@ -166,6 +152,11 @@ AND : 'and' ;
 OR : 'or' ;
 NOT : 'not' ;
 
+// An operator glued to a following unit word: "/ms", "*K", "/cm^2".
+UNIT_DIV : '/' UNIT_WORD ;
+UNIT_MUL : [*\u00B7] UNIT_WORD ;
+UNIT_POW : '^' '-'? [0-9]+ ('.' [0-9]+)? ;
+fragment UNIT_WORD : LETTER (LETTER | [0-9])* ('^' '-'? [0-9]+ ('.' [0-9]+)?)? ;
 SLASH : '/' ;
 DOT : [\u00B7] ;
 NUMBER : DIGITS ('.' DIGITS?)? EXPONENT? | '.' DIGITS EXPONENT? ;

@@ -201,7 +201,7 @@ private:
     return d;
   }
 
-  // unitType : unitTypeTerm (('*' | '/' | DOT) unitTypeTerm)* ;
+  // unitType : unitTypeTerm ((('*' | SLASH | DOT) unitTypeTerm) | UNIT_MUL | UNIT_DIV)* ;
   UnitAnnotation build(P::UnitTypeContext *ctx) {
     UnitAnnotation a;
     a.text = ctx->getText();
@@ -214,15 +214,21 @@ private:
         Unit u = buildTerm(term, a.valid);
         a.unit = first ? u : divide ? a.unit / u : a.unit * u;
         first = false;
-      } else {
-        divide = child->getText() == "/";
+      } else if (auto *t = dynamic_cast<antlr4::tree::TerminalNode *>(child)) {
+        size_t type = t->getSymbol()->getType();
+        if (type == P::UNIT_MUL || type == P::UNIT_DIV) {
+          auto glued = gluedFactor(t, a.valid);
+          a.unit = type == P::UNIT_DIV ? a.unit / glued.unit : a.unit * glued.unit;
+        } else {
+          divide = t->getText() == "/";
+        }
       }
     }
     a.unit.scale = 1; // an annotation names a dimension, not a scale
     return a;
   }
 
-  // unitTypeTerm : NUMBER | IDENT ('^' '-'? NUMBER)? | '(' unitType ')' ;
+  // unitTypeTerm : NUMBER | IDENT UNIT_POW? | '(' unitType ')' ;
   Unit buildTerm(P::UnitTypeTermContext *ctx, bool &valid) {
     if (ctx->unitType()) {
       UnitAnnotation inner = build(ctx->unitType());
@@ -236,30 +242,80 @@ private:
       }
       return {};
     }
-    std::string symbol = ctx->IDENT()->getText();
-    auto found = lookupUnitSymbol(symbol);
-    if (!found) {
-      diags_.error(range(ctx->IDENT()), "unknown unit '" + symbol + "'");
-      valid = false;
-      return {};
-    }
-    Unit u = found->unit;
-    if (ctx->NUMBER()) {
-      int power = exponent(ctx->NUMBER(), ctx->getText().find("^-") != std::string::npos, valid);
-      u = u.pow(power);
-    }
-    return u;
+    Factor f = factor(ctx->IDENT()->getText(), range(ctx->IDENT()),
+                      ctx->UNIT_POW() ? ctx->UNIT_POW()->getText().substr(1) : "", valid,
+                      ctx->UNIT_POW() ? exponentRange(ctx->UNIT_POW()) : SourceRange{});
+    return f.unit;
   }
 
-  int exponent(antlr4::tree::TerminalNode *number, bool negative, bool &valid) {
-    double p = parseNumber(number);
-    if (p != std::floor(p) || p < 1 || p > 9) {
-      diags_.error(range(number), "a unit's exponent must be a whole number from 1 to 9, not '" +
-                                      number->getText() + "'");
+  struct Factor {
+    Unit unit;
+    bool celsius = false;
+    bool hasExponent = false;
+  };
+
+  // One unit symbol with an optional exponent ("cm", "2" or "-1").
+  // The range of an exponent token without its '^'.
+  SourceRange exponentRange(antlr4::tree::TerminalNode *pow) {
+    SourceRange r = range(pow);
+    r.begin = file_.locAtOffset(r.begin.offset + 1);
+    return r;
+  }
+
+  Factor factor(const std::string &symbol, SourceRange at, const std::string &exponentText, bool &valid,
+                SourceRange exponentAt = {}) {
+    Factor f;
+    auto found = lookupUnitSymbol(symbol);
+    if (!found) {
+      diags_.error(at, "unknown unit '" + symbol + "'");
+      valid = false;
+      return f;
+    }
+    f.unit = found->unit;
+    f.celsius = found->celsius;
+    if (!exponentText.empty()) {
+      f.hasExponent = true;
+      f.unit = f.unit.pow(exponent(exponentText, exponentAt.valid() ? exponentAt : at, valid));
+    }
+    return f;
+  }
+
+  // UNIT_MUL / UNIT_DIV: an operator glued to a unit word, "/cm^2".
+  Factor gluedFactor(antlr4::tree::TerminalNode *t, bool &valid) {
+    std::string text = t->getText();
+    size_t opLength = text.rfind("\u00B7", 0) == 0 ? 2 : 1;
+    std::string word = text.substr(opLength);
+    std::string exponentText;
+    if (size_t caret = word.find('^'); caret != std::string::npos) {
+      exponentText = word.substr(caret + 1);
+      word = word.substr(0, caret);
+    }
+    SourceRange at = range(t);
+    at.begin = file_.locAtOffset(at.begin.offset + static_cast<uint32_t>(opLength));
+    bool wasValid = valid;
+    SourceRange exponentAt;
+    if (size_t caret = text.find('^'); caret != std::string::npos) {
+      exponentAt = range(t);
+      exponentAt.begin = file_.locAtOffset(exponentAt.begin.offset + static_cast<uint32_t>(caret) + 1);
+    }
+    at.end = file_.locAtOffset(at.begin.offset + static_cast<uint32_t>(word.size()) - 1);
+    Factor f = factor(word, at, exponentText, valid, exponentAt);
+    if (wasValid && !valid)
+      if (auto *last = diags_.last(); last && last->message.rfind("unknown unit", 0) == 0)
+        DiagnosticEngine::note(*last, {}, "a unit has no spaces inside it; to multiply or divide by a name, "
+                                          "put spaces around the operator");
+    return f;
+  }
+
+  int exponent(const std::string &text, SourceRange at, bool &valid) {
+    bool negative = !text.empty() && text[0] == '-';
+    int p = std::atoi(text.c_str() + (negative ? 1 : 0));
+    if (p < 1 || p > 9 || text.size() > (negative ? 2u : 1u)) {
+      diags_.error(at, "a unit's exponent must be a whole number from 1 to 9, not '" + text + "'");
       valid = false;
       return 1;
     }
-    return negative ? -static_cast<int>(p) : static_cast<int>(p);
+    return negative ? -p : p;
   }
 
   // outsideDecl : OUTSIDE IDENT solutionBlock ;
@@ -277,10 +333,14 @@ private:
       if (auto *c = dynamic_cast<P::ConcentrationEntryContext *>(entry)) {
         // '[' IDENT ']' '=' expr
         ConcentrationEntry e{c->IDENT()->getText(), range(c->IDENT()), range(c), build(c->expr()), nullptr};
+        bool repeated = false;
         for (const ConcentrationEntry &earlier : body.entries)
-          if (earlier.ion == e.ion)
+          if (earlier.ion == e.ion) {
             duplicate(e.range, earlier.range, "the concentration of '" + e.ion + "'", owner);
-        body.entries.push_back(std::move(e));
+            repeated = true;
+          }
+        if (!repeated) // the first value stands, like every other repeated clause
+          body.entries.push_back(std::move(e));
       }
       if (auto *c = dynamic_cast<P::ImpermeantEntryContext *>(entry)) {
         // IMPERMEANT expr VALENCE signedNumber
@@ -592,13 +652,62 @@ private:
     return e;
   }
 
-  // mulExpr : unaryExpr (ops+=('*' | '/') unaryExpr)* ;
+  // mulExpr : unaryExpr ((('*' | SLASH) unaryExpr) | UNIT_MUL | UNIT_DIV)* ;
   ExprPtr build(P::MulExprContext *ctx) {
-    ExprPtr e = build(ctx->unaryExpr(0));
-    for (size_t i = 1; i < ctx->unaryExpr().size(); ++i) {
-      antlr4::Token *op = ctx->ops[i - 1];
-      e = binary(op->getText() == "*" ? BinaryOp::Mul : BinaryOp::Div, op, std::move(e), build(ctx->unaryExpr(i)));
+    ExprPtr e;
+    antlr4::Token *pending = nullptr;
+    for (antlr4::tree::ParseTree *child : ctx->children) {
+      if (auto *u = dynamic_cast<P::UnaryExprContext *>(child)) {
+        ExprPtr rhs = build(u);
+        e = e ? binary(pending->getText() == "*" ? BinaryOp::Mul : BinaryOp::Div, pending, std::move(e), std::move(rhs))
+              : std::move(rhs);
+        continue;
+      }
+      auto *t = static_cast<antlr4::tree::TerminalNode *>(child);
+      size_t type = t->getSymbol()->getType();
+      if (type == P::UNIT_MUL || type == P::UNIT_DIV)
+        e = gluedName(type == P::UNIT_MUL ? BinaryOp::Mul : BinaryOp::Div, t, std::move(e));
+      else
+        pending = t->getSymbol();
     }
+    return e;
+  }
+
+  // "x/tau" or "a*b^2": a name glued to its operator.
+  ExprPtr gluedName(BinaryOp op, antlr4::tree::TerminalNode *t, ExprPtr lhs) {
+    std::string text = t->getText();
+    size_t opLength = text.rfind("\u00B7", 0) == 0 ? 2 : 1;
+    std::string word = text.substr(opLength);
+    std::string exponentText;
+    if (size_t caret = word.find('^'); caret != std::string::npos) {
+      exponentText = word.substr(caret + 1);
+      word = word.substr(0, caret);
+    }
+    SourceRange whole = range(t);
+    SourceRange nameAt = whole;
+    nameAt.begin = file_.locAtOffset(whole.begin.offset + static_cast<uint32_t>(opLength));
+    nameAt.end = file_.locAtOffset(nameAt.begin.offset + static_cast<uint32_t>(word.size()) - 1);
+    auto name = std::make_unique<NameExpr>(nameAt);
+    name->name = word;
+    ExprPtr rhs = std::move(name);
+    if (!exponentText.empty())
+      rhs = powerOf(std::move(rhs), exponentText, whole);
+    auto e = std::make_unique<BinaryExpr>(SourceRange::join(lhs->range, whole));
+    e->op = op;
+    e->opRange = {whole.begin, whole.begin};
+    e->lhs = std::move(lhs);
+    e->rhs = std::move(rhs);
+    return e;
+  }
+
+  ExprPtr powerOf(ExprPtr base, const std::string &exponentText, SourceRange whole) {
+    auto n = std::make_unique<NumberExpr>(whole);
+    n->written = n->value = std::atof(exponentText.c_str());
+    auto e = std::make_unique<BinaryExpr>(SourceRange::join(base->range, whole));
+    e->op = BinaryOp::Pow;
+    e->opRange = whole;
+    e->lhs = std::move(base);
+    e->rhs = std::move(n);
     return e;
   }
 
@@ -606,15 +715,27 @@ private:
   ExprPtr build(P::UnaryExprContext *ctx) {
     if (ctx->powExpr())
       return build(ctx->powExpr());
+    // A sign belongs to the number it precedes: -5 degC is 268.15 K, not -(278.15 K).
+    if (auto *n = dynamic_cast<NumberExpr *>(build(ctx->unaryExpr()).release())) {
+      ExprPtr owned(n);
+      if (ctx->op->getText() == "-") {
+        n->written = -n->written;
+        n->value = n->celsius ? n->written + 273.15 : -n->value;
+      }
+      n->range = range(ctx);
+      return owned;
+    }
     auto e = std::make_unique<UnaryExpr>(range(ctx));
     e->op = ctx->op->getText() == "-" ? UnaryOp::Negate : UnaryOp::Plus;
     e->operand = build(ctx->unaryExpr());
     return e;
   }
 
-  // powExpr : primary ('^' unaryExpr)? ;
+  // powExpr : primary ('^' unaryExpr | UNIT_POW)? ;
   ExprPtr build(P::PowExprContext *ctx) {
     ExprPtr base = build(ctx->primary());
+    if (ctx->UNIT_POW())
+      return powerOf(std::move(base), ctx->UNIT_POW()->getText().substr(1), range(ctx->UNIT_POW()));
     if (!ctx->unaryExpr())
       return base;
     auto *caret = dynamic_cast<antlr4::tree::TerminalNode *>(ctx->children.at(1));
@@ -652,7 +773,8 @@ private:
     return inner;
   }
 
-  // quantity : NUMBER ({unitStarts()}? unit)? ;
+  // quantity : NUMBER unit? ;
+  // unit : (IDENT UNIT_POW? | UNIT_DIV) (UNIT_MUL | UNIT_DIV)* ;
   ExprPtr build(P::QuantityContext *ctx) {
     auto e = std::make_unique<NumberExpr>(range(ctx));
     e->written = parseNumber(ctx->NUMBER());
@@ -662,40 +784,38 @@ private:
     P::UnitContext *u = ctx->unit();
     e->unitText = u->getText();
     e->unitRange = range(u);
-    // unit : leadingSlash=SLASH? unitFactor ({unitContinues()}? unitOp unitFactor)* ;
     Unit unit;
-    bool celsius = false;
-    auto factors = u->unitFactor();
-    for (size_t i = 0; i < factors.size(); ++i) {
-      P::UnitFactorContext *f = factors[i];
-      // unitFactor : IDENT ({exponentFollows()}? '^' '-'? NUMBER)? ;
-      std::string symbol = f->IDENT()->getText();
-      auto found = lookupUnitSymbol(symbol);
-      if (!found) {
-        auto &d = diags_.error(range(f->IDENT()), "unknown unit '" + symbol + "'");
-        if (factors.size() == 1 && !u->leadingSlash)
-          DiagnosticEngine::note(d, {}, "a unit follows its number directly; to multiply by a name, write '*'");
-        e->unitValid = false;
-        continue;
+    bool celsius = false, valid = true;
+    size_t factors = 0;
+    for (antlr4::tree::ParseTree *child : u->children) {
+      auto *t = static_cast<antlr4::tree::TerminalNode *>(child);
+      size_t type = t->getSymbol()->getType();
+      Factor f;
+      bool divide = false;
+      if (type == P::IDENT) {
+        f = factor(t->getText(), range(t), u->UNIT_POW() ? u->UNIT_POW()->getText().substr(1) : "", valid,
+                   u->UNIT_POW() ? exponentRange(u->UNIT_POW()) : SourceRange{});
+        if (!valid && factors == 0 && u->children.size() <= 2)
+          if (auto *last = diags_.last(); last && last->message.rfind("unknown unit", 0) == 0)
+            DiagnosticEngine::note(*last, {}, "a unit follows its number directly; to multiply by a name, write '*'");
+      } else if (type == P::UNIT_MUL || type == P::UNIT_DIV) {
+        f = gluedFactor(t, valid);
+        divide = type == P::UNIT_DIV;
+      } else {
+        continue; // UNIT_POW, consumed with its IDENT
       }
-      Unit fu = found->unit;
-      if (found->celsius) {
+      ++factors;
+      if (f.celsius)
         celsius = true;
-        if (factors.size() > 1 || f->NUMBER() || u->leadingSlash) {
-          auto &d = diags_.error(range(f->IDENT()), "'" + symbol + "' can only stand alone, as an absolute temperature");
-          DiagnosticEngine::note(d, {}, "use 'K' in compound units and for temperature differences");
-          e->unitValid = false;
-        }
-      }
-      if (f->NUMBER()) {
-        bool valid = true;
-        fu = fu.pow(exponent(f->NUMBER(), f->getText().find("^-") != std::string::npos, valid));
-        e->unitValid = e->unitValid && valid;
-      }
-      bool divide = (i == 0) ? u->leadingSlash != nullptr : u->unitOp(i - 1)->getText() == "/";
-      unit = divide ? unit / fu : unit * fu;
+      unit = divide ? unit / f.unit : unit * f.unit;
     }
-    if (!e->unitValid)
+    if (celsius && (factors > 1 || u->UNIT_POW() || !u->IDENT())) {
+      auto &d = diags_.error(e->unitRange, "'degC' can only stand alone, as an absolute temperature");
+      DiagnosticEngine::note(d, {}, "use 'K' in compound units and for temperature differences");
+      valid = false;
+    }
+    e->unitValid = valid;
+    if (!valid)
       return e;
     e->unit = {unit.dim, 1};
     e->celsius = celsius;

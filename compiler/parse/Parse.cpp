@@ -36,6 +36,8 @@ bool startsClause(size_t type) {
 
 bool checkLimits(const SourceFile &file, antlr4::CommonTokenStream &tokens, DiagnosticEngine &diags) {
   int depth = 0, prefix = 0, clause = 0;
+  size_t prevType = 0;
+  std::string prevText;
   for (antlr4::Token *t : tokens.getTokens()) {
     if (t->getChannel() != antlr4::Token::DEFAULT_CHANNEL)
       continue;
@@ -49,8 +51,16 @@ bool checkLimits(const SourceFile &file, antlr4::CommonTokenStream &tokens, Diag
       ++depth;
     else if (text == ")" || text == "]" || text == "}")
       depth = std::max(0, depth - 1);
-    if (text == "-" || text == "+" || text == "^" || type == BrineLexer::NOT || type == BrineLexer::IF)
+    // Only operators that nest (prefix signs, 'not', 'if', '^') deepen the parser's recursion;
+    // a long flat sum does not.
+    bool afterOperand = prevType == BrineLexer::NUMBER || prevType == BrineLexer::IDENT || prevText == ")" ||
+                        prevText == "]" || prevType == BrineLexer::UNIT_DIV || prevType == BrineLexer::UNIT_MUL ||
+                        prevType == BrineLexer::UNIT_POW || prevType == BrineLexer::IN || prevType == BrineLexer::OUT;
+    if (((text == "-" || text == "+") && !afterOperand) || text == "^" || type == BrineLexer::NOT ||
+        type == BrineLexer::IF)
       ++prefix;
+    prevType = type;
+    prevText = text;
     ++clause;
     const char *problem = nullptr;
     if (depth > maxBracketDepth)

@@ -19,6 +19,11 @@ std::string tokenName(const antlr4::dfa::Vocabulary &vocabulary, size_t type) {
     return "'/'";
   case BrineLexer::DOT:
     return "'\u00B7'";
+  case BrineLexer::UNIT_DIV:
+  case BrineLexer::UNIT_MUL:
+    return "a unit";
+  case BrineLexer::UNIT_POW:
+    return "an exponent";
   default:
     break;
   }
@@ -91,6 +96,7 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
         failedPredicate = true;
       } catch (antlr4::InputMismatchException &ex) {
         expected = expectedList(vocabulary, ex.getExpectedTokens());
+        (void)failedPredicate;
       } catch (antlr4::NoViableAltException &) {
       } catch (...) {
       }

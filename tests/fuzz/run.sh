@@ -1,0 +1,45 @@
+#!/usr/bin/env bash
+# run.sh - builds the libFuzzer harness (clang, ASan + UBSan) and fuzzes the whole
+# pipeline. Usage, from anywhere:
+#   bash tests/fuzz/run.sh [SECONDS] [BUILD_DIR]       default 600 s, build-fuzz
+# Seeds: stdlib/*.brine, specs/**/*.brine, tests/diagnostics/**/*.brine, tests/fuzz/seeds/.
+# The working corpus lives in BUILD_DIR/fuzz-corpus and grows across runs; crashes,
+# timeouts and leaks land in BUILD_DIR/fuzz-artifacts/. Copy a reproducer worth keeping
+# into tests/fuzz/regressions/ (ctest -R fuzz.regressions replays every file there).
+# Replay one input:   BUILD_DIR/brine_fuzz_check path/to/input
+set -euo pipefail
+
+seconds=${1:-600}
+here=$(cd "$(dirname "$0")" && pwd)
+root=$(cd "$here/../.." && pwd)
+build=${2:-$root/build-fuzz}
+case $build in /*) ;; *) build=$root/$build ;; esac
+
+cc=${CC:-clang-19}
+cxx=${CXX:-clang++-19}
+cmake -S "$root" -B "$build" -G Ninja -DBRINE_FUZZ=ON -DBRINE_SANITIZE=ON \
+  -DCMAKE_C_COMPILER="$cc" -DCMAKE_CXX_COMPILER="$cxx" >/dev/null
+cmake --build "$build" --target brine_fuzz_check
+
+corpus=$build/fuzz-corpus
+artifacts=$build/fuzz-artifacts
+mkdir -p "$corpus" "$artifacts"
+shopt -s nullglob globstar
+for seed in "$root"/stdlib/*.brine "$root"/specs/**/*.brine "$root"/tests/diagnostics/**/*.brine \
+            "$here"/seeds/*.brine; do
+  if [ -f "$seed" ]; then
+    name=${seed#"$root"/}
+    cp "$seed" "$corpus/seed-${name//\//_}"
+  fi
+done
+
+# `use "file"` is resolved against the working directory: run in an empty one.
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+cd "$work"
+# One process, output on stderr (with -jobs=N libFuzzer writes fuzz-N.log instead).
+# -timeout: a single input taking 10 s is a hang. -max_len: specs are small; 64 KiB
+# still reaches the parser's length limits.
+exec "$build/brine_fuzz_check" "$corpus" \
+  -dict="$here/brine.dict" -max_total_time="$seconds" -timeout=10 -max_len=65536 \
+  -print_final_stats=1 -artifact_prefix="$artifacts/"

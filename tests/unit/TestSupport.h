@@ -1,0 +1,54 @@
+// TestSupport.h - small helpers shared by the unit tests (not a test file itself).
+#pragma once
+#include "Pipeline.h"
+
+#include <catch2/catch.hpp>
+
+#include <memory>
+#include <string>
+
+namespace brine::testing {
+
+/// Every diagnostic of a compilation as text, for INFO() when a check fails.
+inline std::string allDiagnostics(const Compilation &c) {
+  std::string out;
+  for (const Diagnostic &d : c.diags.all())
+    out += renderText(d);
+  return out;
+}
+
+/// Compiles `text` as "test.brine" through the whole pipeline.
+inline std::unique_ptr<Compilation> compile(const std::string &text, const std::string &path = "test.brine") {
+  auto c = std::make_unique<Compilation>();
+  compileText(path, text, *c);
+  return c;
+}
+
+/// The declaration named `name` in the program's one namespace, as type T (or nullptr).
+template <typename T> const T *find(const Compilation &c, const std::string &name) {
+  auto it = c.symbols.byName.find(name);
+  return it == c.symbols.byName.end() ? nullptr : ast::dyn_cast<T>(it->second);
+}
+
+/// The value (coherent SI) of constant `name` in a compilation that must check cleanly.
+inline double constantValue(Compilation &c, const std::string &name) {
+  INFO(allDiagnostics(c));
+  REQUIRE(c.checked);
+  const ast::ConstDecl *decl = find<ast::ConstDecl>(c, name);
+  REQUIRE(decl != nullptr);
+  EvalFailure failure;
+  auto v = c.evaluator.constant(*decl, &failure);
+  INFO("evaluation failed: " << failure.reason);
+  REQUIRE(v.has_value());
+  return *v;
+}
+
+/// Whether some error's message contains `text`.
+inline bool hasError(const Compilation &c, const std::string &text) {
+  for (const Diagnostic &d : c.diags.all())
+    if (d.severity == Severity::Error && d.message.find(text) != std::string::npos)
+      return true;
+  return false;
+}
+
+} // namespace brine::testing
