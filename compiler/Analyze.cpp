@@ -53,6 +53,10 @@ public:
       if (auto *pump = dyn_cast<PumpDecl>(decl))
         model_.pumps[pump] = pumpValues(*pump);
     }
+    // A constant that cannot be computed is an error even when nothing uses it.
+    for (auto &[name, decl] : symbols_.byName)
+      if (auto *c = dyn_cast<ConstDecl>(decl); c && c->value && c->value->type.known)
+        value(*c->value, "the value of '" + c->name + "'");
     if (symbols_.temperature && symbols_.temperature->value)
       model_.temperature = value(*symbols_.temperature->value, "the temperature");
     std::vector<const SolutionDecl *> baths;

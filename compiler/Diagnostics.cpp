@@ -129,7 +129,7 @@ std::string renderJson(const std::vector<Diagnostic> &all) {
                     {"notes", notes}});
   }
   nlohmann::json doc{{"diagnostics", list}, {"errors", errors}, {"warnings", warnings}};
-  return doc.dump(2) + "\n";
+  return doc.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
 } // namespace brine

@@ -28,6 +28,12 @@ public:
   bool loadRoot(const SourceFile &root) {
     ast::Module *m = load(root, keyOf(root.path()), root.path());
     program_.root = m;
+    // An empty file checks nothing; saying so beats a silent pass on the wrong file.
+    if (m && m->decls.empty()) {
+      SourceLoc start = root.locAtOffset(0);
+      diags_.error({start, start}, "'" + root.path() + "' declares nothing");
+      ok_ = false;
+    }
     return m != nullptr && ok_;
   }
 

@@ -25,7 +25,7 @@ void run(const SourceFile &root, Compilation &c) {
     return;
   bool charge = checkCharge(c.program, c.model, c.diags);
   bool physics = checkPhysics(c.program, c.model, c.evaluator, c.diags);
-  c.checked = charge && physics;
+  c.checked = charge && physics && c.diags.errorCount() == 0;
 }
 
 } // namespace

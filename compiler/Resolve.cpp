@@ -51,9 +51,10 @@ size_t editDistance(const std::string &a, const std::string &b) {
 /// Which names an expression may use, by where it sits.
 struct Context {
   const char *where;              // "a function", "a constant", ... for messages
-  bool kinetics = false;          // V, [X]in/out and E(X) are available
+  bool kinetics = false;          // [X]in/out and E(X) are available
   bool temperature = false;       // T is available
   const FnDecl *function = nullptr; // parameters in scope
+  bool voltage = false;             // V is available (gates and activity laws)
 };
 
 class Resolver {
@@ -192,7 +193,7 @@ private:
       return;
     case DeclKind::Const:
       current_ = &d;
-      expr(static_cast<ConstDecl &>(d).value.get(), {"a constant", false, true});
+      expr(static_cast<ConstDecl &>(d).value.get(), {"a constant"});
       current_ = nullptr;
       return;
     case DeclKind::Fn: {
@@ -213,7 +214,8 @@ private:
       for (CarriedIon &k : c.carries)
         k.target = ion(k.ion, k.range);
       Context kinetic{"channel kinetics", true, true};
-      expr(c.reversal.get(), kinetic);
+      kinetic.voltage = true;
+      expr(c.reversal.get(), {"a reversal potential", true, true});
       for (Gate &g : c.gates)
         for (Expr *e : {g.opening.get(), g.closing.get(), g.steady.get(), g.tau.get()})
           expr(e, kinetic);
@@ -225,7 +227,9 @@ private:
       auto &p = static_cast<PumpDecl &>(d);
       for (StoichTerm &t : p.cycle)
         t.target = ion(t.ion, t.ionRange);
-      expr(p.activity.get(), {"an activity law", true, true});
+      Context activity{"an activity law", true, true};
+      activity.voltage = true;
+      expr(p.activity.get(), activity);
       return;
     }
     }
@@ -332,7 +336,7 @@ private:
         }
     if (n.name == "V" || n.name == "T") {
       bool isV = n.name == "V";
-      if (isV ? ctx.kinetics : ctx.temperature || ctx.kinetics) {
+      if (isV ? ctx.voltage : ctx.temperature || ctx.kinetics) {
         n.builtin = isV ? Builtin::MembranePotential : Builtin::Temperature;
         return;
       }

@@ -4,6 +4,7 @@
 #include "Physics.h"
 #include "Pipeline.h"
 
+#include <algorithm>
 #include <cstdio>
 #include <nlohmann/json.hpp>
 
@@ -124,7 +125,9 @@ std::string showJson(const Compilation &c) {
     compartments.push_back(compartmentJson(cv, m));
   doc["compartments"] = compartments;
   json pumps = json::array();
-  for (auto &[pump, values] : m.pumps) {
+  std::vector<std::pair<const PumpDecl *, PumpValues>> sorted(m.pumps.begin(), m.pumps.end());
+  std::sort(sorted.begin(), sorted.end(), [](auto &a, auto &b) { return a.first->name < b.first->name; });
+  for (auto &[pump, values] : sorted) {
     json cycle = json::array();
     for (const StoichTerm &t : pump->cycle)
       cycle.push_back({{"ion", t.ion}, {"count", t.count.value}, {"direction", t.direction == Direction::In ? "in" : "out"}});
@@ -190,7 +193,9 @@ std::string showText(const Compilation &c) {
   }
   if (!m.pumps.empty()) {
     line("");
-    for (auto &[pump, values] : m.pumps)
+    std::vector<std::pair<const PumpDecl *, PumpValues>> sorted(m.pumps.begin(), m.pumps.end());
+    std::sort(sorted.begin(), sorted.end(), [](auto &a, auto &b) { return a.first->name < b.first->name; });
+    for (auto &[pump, values] : sorted)
       line(std::string(pump->exchanger ? "exchanger " : "pump ") + pump->name + ": net charge out per cycle " +
            (values.chargeKnown ? num("%+.0f", double(values.netOutwardCharge)) : "?"));
   }

@@ -95,7 +95,7 @@ addExpr : mulExpr (ops+=('+' | '-') mulExpr)* ;
 // "x/tau" lexes as x UNIT_DIV: division by a name written without spaces.
 mulExpr : unaryExpr ((('*' | SLASH) unaryExpr) | UNIT_MUL | UNIT_DIV)* ;
 unaryExpr : op=('-' | '+') unaryExpr | powExpr ;
-powExpr : primary ('^' unaryExpr | UNIT_POW)? ;
+powExpr : primary ('^' unaryExpr | UNIT_POW+ ('^' unaryExpr)?)? ;
 primary
   : quantity                                      # quantityPrimary
   | IDENT '(' (expr (',' expr)*)? ')'             # callPrimary

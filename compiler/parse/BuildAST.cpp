@@ -46,12 +46,24 @@ private:
   SourceRange range(antlr4::tree::TerminalNode *node) { return tokenRange(file_, node->getSymbol()); }
   SourceRange range(antlr4::Token *t) { return tokenRange(file_, t); }
 
-  // "##" lines directly above a declaration are its documentation.
+  // "##" lines directly above a declaration, each alone on its line, are its documentation.
   std::string docAbove(antlr4::Token *start) {
     std::string doc;
-    for (antlr4::Token *t : tokens_.getHiddenTokensToLeft(start->getTokenIndex())) {
-      if (t->getType() != P::DOC_COMMENT)
-        continue;
+    std::vector<antlr4::Token *> lines;
+    size_t expectLine = start->getLine() - 1;
+    auto hidden = tokens_.getHiddenTokensToLeft(start->getTokenIndex());
+    for (auto it = hidden.rbegin(); it != hidden.rend(); ++it) {
+      antlr4::Token *t = *it;
+      if (t->getType() != P::DOC_COMMENT || t->getLine() != expectLine)
+        break;
+      lines.insert(lines.begin(), t);
+      --expectLine;
+    }
+    for (antlr4::Token *t : lines) {
+      SourceLoc loc = file_.locAtCodePoint(t->getStartIndex());
+      std::string_view lineText = file_.lineText(loc.line);
+      if (lineText.substr(0, loc.column - 1).find_first_not_of(" \t") != std::string_view::npos)
+        continue; // a trailing "##" after code documents nothing below
       std::string line = t->getText().substr(2);
       if (!line.empty() && line[0] == ' ')
         line.erase(0, 1);
@@ -731,15 +743,39 @@ private:
     return e;
   }
 
-  // powExpr : primary ('^' unaryExpr | UNIT_POW)? ;
+  // powExpr : primary ('^' unaryExpr | UNIT_POW+ ('^' unaryExpr)?)? ;
+  // Powers associate to the right: 2^3^2 is 2^(3^2).
   ExprPtr build(P::PowExprContext *ctx) {
     ExprPtr base = build(ctx->primary());
-    if (ctx->UNIT_POW())
-      return powerOf(std::move(base), ctx->UNIT_POW()->getText().substr(1), range(ctx->UNIT_POW()));
-    if (!ctx->unaryExpr())
+    std::vector<ExprPtr> exponents;
+    std::vector<SourceRange> at;
+    for (antlr4::tree::TerminalNode *p : ctx->UNIT_POW()) {
+      auto n = std::make_unique<NumberExpr>(exponentRange(p));
+      n->written = n->value = std::atof(p->getText().c_str() + 1);
+      exponents.push_back(std::move(n));
+      at.push_back(range(p));
+    }
+    if (ctx->unaryExpr()) {
+      exponents.push_back(build(ctx->unaryExpr()));
+      at.push_back(exponents.back()->range);
+    }
+    if (exponents.empty())
       return base;
-    auto *caret = dynamic_cast<antlr4::tree::TerminalNode *>(ctx->children.at(1));
-    return binary(BinaryOp::Pow, caret->getSymbol(), std::move(base), build(ctx->unaryExpr()));
+    ExprPtr e = std::move(exponents.back());
+    for (size_t i = exponents.size() - 1; i-- > 0;) {
+      auto b = std::make_unique<BinaryExpr>(SourceRange::join(exponents[i]->range, e->range));
+      b->op = BinaryOp::Pow;
+      b->opRange = at[i];
+      b->lhs = std::move(exponents[i]);
+      b->rhs = std::move(e);
+      e = std::move(b);
+    }
+    auto top = std::make_unique<BinaryExpr>(SourceRange::join(base->range, e->range));
+    top->op = BinaryOp::Pow;
+    top->opRange = at[0];
+    top->lhs = std::move(base);
+    top->rhs = std::move(e);
+    return top;
   }
 
   ExprPtr build(P::PrimaryContext *ctx) {

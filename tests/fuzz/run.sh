@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # run.sh - builds the libFuzzer harness (clang, ASan + UBSan) and fuzzes the whole
 # pipeline. Usage, from anywhere:
-#   bash tests/fuzz/run.sh [SECONDS] [BUILD_DIR]       default 600 s, build-fuzz
+#   bash tests/fuzz/run.sh [SECONDS] [BUILD_DIR] [LIBFUZZER_FLAG...]
+# SECONDS defaults to 600, BUILD_DIR to build-fuzz; further flags go to libFuzzer, e.g.
+# -detect_leaks=0 to look past a known leak.
 # Seeds: stdlib/*.brine, specs/**/*.brine, tests/diagnostics/**/*.brine, tests/fuzz/seeds/.
 # The working corpus lives in BUILD_DIR/fuzz-corpus and grows across runs; crashes,
 # timeouts and leaks land in BUILD_DIR/fuzz-artifacts/. Copy a reproducer worth keeping
@@ -10,9 +12,12 @@
 set -euo pipefail
 
 seconds=${1:-600}
+shift $(( $# > 0 ? 1 : 0 ))
+build_arg=${1:-}
+shift $(( $# > 0 ? 1 : 0 ))
 here=$(cd "$(dirname "$0")" && pwd)
 root=$(cd "$here/../.." && pwd)
-build=${2:-$root/build-fuzz}
+build=${build_arg:-$root/build-fuzz}
 case $build in /*) ;; *) build=$root/$build ;; esac
 
 cc=${CC:-clang-19}
@@ -42,4 +47,4 @@ cd "$work"
 # still reaches the parser's length limits.
 exec "$build/brine_fuzz_check" "$corpus" \
   -dict="$here/brine.dict" -max_total_time="$seconds" -timeout=10 -max_len=65536 \
-  -print_final_stats=1 -artifact_prefix="$artifacts/"
+  -print_final_stats=1 -artifact_prefix="$artifacts/" "$@"
