@@ -292,16 +292,25 @@ private:
     return f;
   }
 
-  // UNIT_MUL / UNIT_DIV: an operator glued to a unit word, "/cm^2".
-  Factor gluedFactor(antlr4::tree::TerminalNode *t, bool &valid) {
-    std::string text = t->getText();
+  struct Glued {
+    size_t opLength; // bytes of the operator ('·' is two)
+    std::string word, exponentText;
+  };
+  // "/cm^2" -> ("/", "cm", "2")
+  static Glued splitGlued(const std::string &text) {
     size_t opLength = text.rfind("\u00B7", 0) == 0 ? 2 : 1;
-    std::string word = text.substr(opLength);
-    std::string exponentText;
+    std::string word = text.substr(opLength), exponentText;
     if (size_t caret = word.find('^'); caret != std::string::npos) {
       exponentText = word.substr(caret + 1);
       word = word.substr(0, caret);
     }
+    return {opLength, word, exponentText};
+  }
+
+  // UNIT_MUL / UNIT_DIV: an operator glued to a unit word, "/cm^2".
+  Factor gluedFactor(antlr4::tree::TerminalNode *t, bool &valid) {
+    std::string text = t->getText();
+    auto [opLength, word, exponentText] = splitGlued(text);
     SourceRange at = range(t);
     at.begin = file_.locAtOffset(at.begin.offset + static_cast<uint32_t>(opLength));
     bool wasValid = valid;
@@ -688,13 +697,7 @@ private:
   // "x/tau" or "a*b^2": a name glued to its operator.
   ExprPtr gluedName(BinaryOp op, antlr4::tree::TerminalNode *t, ExprPtr lhs) {
     std::string text = t->getText();
-    size_t opLength = text.rfind("\u00B7", 0) == 0 ? 2 : 1;
-    std::string word = text.substr(opLength);
-    std::string exponentText;
-    if (size_t caret = word.find('^'); caret != std::string::npos) {
-      exponentText = word.substr(caret + 1);
-      word = word.substr(0, caret);
-    }
+    auto [opLength, word, exponentText] = splitGlued(text);
     SourceRange whole = range(t);
     SourceRange nameAt = whole;
     nameAt.begin = file_.locAtOffset(whole.begin.offset + static_cast<uint32_t>(opLength));

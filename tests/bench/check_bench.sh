@@ -10,7 +10,8 @@
 # The copies rename every name the spec declares (outside, compartment, channel, pump,
 # exchanger, const, fn, ion) with a suffix _cN, so N copies are one valid spec with N times
 # the compartments and mechanisms; model, use and temperature lines appear once. Uses
-# hyperfine when installed (apt-get install -y hyperfine), else a bash loop on date +%s%N.
+# hyperfine when installed (apt-get install -y hyperfine), else (or with BENCH_NO_HYPERFINE=1)
+# a bash loop on date +%s%N.
 set -euo pipefail
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -62,7 +63,7 @@ done
 # median_ms N: median wall time of `brine check` on the Nx spec, in milliseconds.
 median_ms() {
   local file=$tmp/x$1.brine
-  if command -v hyperfine >/dev/null; then
+  if [ -z "${BENCH_NO_HYPERFINE:-}" ] && command -v hyperfine >/dev/null; then
     hyperfine -N --warmup 3 --runs "$runs" --export-json "$tmp/h$1.json" \
       "$brine check $file" >/dev/null 2>&1
     /usr/bin/python3 -c 'import json,sys; print("%.3f" % (json.load(open(sys.argv[1]))["results"][0]["median"] * 1e3))' "$tmp/h$1.json"
@@ -78,7 +79,7 @@ median_ms() {
   fi
 }
 
-tool=$(command -v hyperfine >/dev/null && echo hyperfine || echo "bash loop")
+tool=$([ -z "${BENCH_NO_HYPERFINE:-}" ] && command -v hyperfine >/dev/null && echo hyperfine || echo "bash loop")
 echo "brine check: $(basename "$spec"), median of $runs runs ($tool)"
 printf '%-8s %10s %12s %12s\n' copies bytes "ms/check" "ms/copy"
 for n in "${sizes[@]}"; do
