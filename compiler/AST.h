@@ -309,6 +309,37 @@ struct PumpDecl : Decl {
   static bool classof(const Decl *d) { return d->kind == DeclKind::Pump; }
 };
 
+enum class InjectionShape { Step, Ramp, Pulses };
+
+/// inject COMPARTMENT ...: a current clamp (current density or absolute current).
+struct Injection {
+  InjectionShape shape = InjectionShape::Step;
+  std::string compartment;
+  SourceRange compartmentRange;
+  SourceRange range;
+  ExprPtr amplitude, amplitudeEnd; // amplitudeEnd: a ramp's final value
+  ExprPtr width, period;           // pulses
+  ExprPtr from, to;
+  const CompartmentDecl *target = nullptr; // set by Resolve
+};
+
+/// record a.b.c: a quantity to record, checked when the protocol is lowered.
+struct RecordTarget {
+  std::string path;
+  SourceRange range;
+};
+
+/// protocol NAME { ... }: how to simulate the model and what to record.
+struct ProtocolDecl : Decl {
+  ProtocolDecl(SourceRange r) : Decl(DeclKind::Protocol, r) {}
+  std::string method;
+  SourceRange methodRange;
+  ExprPtr step, tolerance, duration, every;
+  std::vector<Injection> injections;
+  std::vector<RecordTarget> records;
+  static bool classof(const Decl *d) { return d->kind == DeclKind::Protocol; }
+};
+
 /// One parsed file.
 struct Module {
   const SourceFile *file = nullptr;

@@ -47,6 +47,7 @@ const char *describe(DeclKind k) {
   case DeclKind::Compartment: return "compartment";
   case DeclKind::Channel: return "channel";
   case DeclKind::Pump: return "pump";
+  case DeclKind::Protocol: return "protocol";
   }
   return "declaration";
 }
@@ -208,6 +209,28 @@ public:
       for (auto &t : p.cycle)
         line(1, "moves " + num(t.count.value) + " " + t.ion + (t.direction == Direction::In ? " in" : " out"));
       expr(1, "activity", p.activity.get());
+      break;
+    }
+    case DeclKind::Protocol: {
+      auto &p = static_cast<const ProtocolDecl &>(d);
+      if (!p.method.empty())
+        line(1, "method " + p.method);
+      expr(1, "step", p.step.get());
+      expr(1, "tolerance", p.tolerance.get());
+      expr(1, "duration", p.duration.get());
+      static const char *shapes[] = {"step", "ramp", "pulses"};
+      for (auto &i : p.injections) {
+        line(1, std::string("inject ") + i.compartment + " " + shapes[static_cast<int>(i.shape)]);
+        expr(2, "amplitude", i.amplitude.get());
+        expr(2, "to amplitude", i.amplitudeEnd.get());
+        expr(2, "width", i.width.get());
+        expr(2, "every", i.period.get());
+        expr(2, "from", i.from.get());
+        expr(2, "to", i.to.get());
+      }
+      for (auto &r : p.records)
+        line(1, "record " + r.path);
+      expr(1, "every", p.every.get());
       break;
     }
     }

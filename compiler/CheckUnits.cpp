@@ -62,6 +62,9 @@ private:
     case DeclKind::Channel:
       channel(static_cast<ChannelDecl &>(d));
       return;
+    case DeclKind::Protocol:
+      protocol(static_cast<ProtocolDecl &>(d));
+      return;
     case DeclKind::Pump: {
       auto &p = static_cast<PumpDecl &>(d);
       expect(p.activity.get(), Dimension::none(), "the activity of '" + p.name + "'",
@@ -136,6 +139,30 @@ private:
         mismatch(m.density->range, what, "a current density (uA/cm2) or a turnover density (mol/m2/s)", t.dim,
                  "a pump's density is its maximal current, or its maximal cycle rate, per membrane area");
       }
+    }
+  }
+
+  void protocol(ProtocolDecl &p) {
+    std::string of = " of protocol '" + p.name + "'";
+    expect(p.step.get(), dims::time(), "the step" + of);
+    expect(p.tolerance.get(), Dimension::none(), "the tolerance" + of, "a tolerance is relative, e.g. 1e-8");
+    expect(p.duration.get(), dims::time(), "the duration" + of);
+    expect(p.every.get(), dims::time(), "the recording interval" + of);
+    for (Injection &i : p.injections) {
+      for (Expr *e : {i.amplitude.get(), i.amplitudeEnd.get()}) {
+        if (!e)
+          continue;
+        ExprType t = infer(*e);
+        if (t.known && t.dim != dims::current() && t.dim != dims::currentDensity())
+          mismatch(e->range, "an injected current", "a current (nA) or a current density (uA/cm2)", t.dim);
+      }
+      if (i.amplitude && i.amplitudeEnd && i.amplitude->type.known && i.amplitudeEnd->type.known &&
+          i.amplitude->type.dim != i.amplitudeEnd->type.dim)
+        diags_.error(i.amplitudeEnd->range, "a ramp must start and end in the same kind of current");
+      expect(i.width.get(), dims::time(), "the pulse width");
+      expect(i.period.get(), dims::time(), "the pulse interval");
+      expect(i.from.get(), dims::time(), "the start of an injection");
+      expect(i.to.get(), dims::time(), "the end of an injection");
     }
   }
 

@@ -223,6 +223,27 @@ private:
       expr(c.q10Reference.get(), {"a Q10 reference temperature"});
       return;
     }
+    case DeclKind::Protocol: {
+      auto &p = static_cast<ProtocolDecl &>(d);
+      Context plain{"a protocol"};
+      for (Expr *e : {p.step.get(), p.tolerance.get(), p.duration.get(), p.every.get()})
+        expr(e, plain);
+      for (Injection &i : p.injections) {
+        for (Expr *e : {i.amplitude.get(), i.amplitudeEnd.get(), i.width.get(), i.period.get(), i.from.get(), i.to.get()})
+          expr(e, plain);
+        Decl *target = lookup(i.compartment);
+        if (!target)
+          unknown(i.compartmentRange, i.compartment, "compartment", {DeclKind::Compartment});
+        else if (auto *c = dyn_cast<CompartmentDecl>(target))
+          i.target = c;
+        else {
+          auto &diag = diags_.error(i.compartmentRange, "'" + i.compartment + "' is " + article(target->kind) +
+                                                            ", not a compartment");
+          DiagnosticEngine::note(diag, target->nameRange, "declared here");
+        }
+      }
+      return;
+    }
     case DeclKind::Pump: {
       auto &p = static_cast<PumpDecl &>(d);
       for (StoichTerm &t : p.cycle)

@@ -19,13 +19,14 @@ usage: brine <command> [options] FILE...
 commands:
   check FILE...   check specs for syntax, units, charge and physical plausibility
   show FILE       print the resolved model: concentrations, reversal potentials, GHK rest
+  run FILE        simulate one of the spec's protocols and write the recorded traces
   help [COMMAND]  show this help, or a command's help
 
 options:
   --help          show help (also after a command: brine check --help)
   --version       print the version
 
-exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
+exit status: 0 success, 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
              73 an output file could not be written
 
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
@@ -62,6 +63,8 @@ int main(int argc, char **argv) {
       return brine::cli::checkCommand(rest);
     if (command == "show")
       return brine::cli::showCommand(rest);
+    if (command == "run")
+      return brine::cli::runCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
     return brine::cli::Usage;
   } catch (const std::exception &e) {

@@ -15,6 +15,7 @@ item
   | compartmentDecl
   | channelDecl
   | pumpDecl
+  | protocolDecl
   | ';'
   ;
 
@@ -27,7 +28,9 @@ modulePath : IDENT ('.' word)* ;
 word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE | INSIDE | IMPERMEANT
      | COMPARTMENT | SPHERE | CYLINDER | DIAMETER | LENGTH | AREA | CAPACITANCE | INITIAL | MEMBRANE
      | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
-     | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT ;
+     | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
+     | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
+     | RECORD ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -82,6 +85,22 @@ pumpItem
   | ';'                                           # emptyPumpItem
   ;
 stoichTerm : NUMBER IDENT dir=(IN | OUT) ;
+
+// protocol NAME { method ... step ...; duration ...; inject ...; record ... every ... }
+protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
+protocolItem
+  : METHOD IDENT (STEP expr)? (TOLERANCE expr)?   # methodItem
+  | DURATION expr                                 # durationItem
+  | INJECT IDENT injection                        # injectItem
+  | RECORD recordTarget (',' recordTarget)* (EVERY expr)?   # recordItem
+  | ';'                                           # emptyProtocolItem
+  ;
+injection
+  : RAMP expr TO expr FROM expr TO expr                   # rampInjection
+  | PULSES expr WIDTH expr EVERY expr FROM expr TO expr   # pulseInjection
+  | expr FROM expr TO expr                                # stepInjection
+  ;
+recordTarget : word ('.' word)* ;
 
 expr
   : IF expr THEN expr ELSE expr                   # ifExpr
@@ -151,6 +170,19 @@ ELSE : 'else' ;
 AND : 'and' ;
 OR : 'or' ;
 NOT : 'not' ;
+PROTOCOL : 'protocol' ;
+METHOD : 'method' ;
+STEP : 'step' ;
+TOLERANCE : 'tolerance' ;
+DURATION : 'duration' ;
+INJECT : 'inject' ;
+RAMP : 'ramp' ;
+PULSES : 'pulses' ;
+WIDTH : 'width' ;
+EVERY : 'every' ;
+FROM : 'from' ;
+TO : 'to' ;
+RECORD : 'record' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

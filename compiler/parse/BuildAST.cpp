@@ -122,6 +122,8 @@ private:
       return build(c);
     if (auto *c = item->pumpDecl())
       return build(c);
+    if (auto *c = item->protocolDecl())
+      return build(c);
     return nullptr; // a stray ';'
   }
 
@@ -598,6 +600,81 @@ private:
     return d;
   }
 
+  // protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
+  DeclPtr build(P::ProtocolDeclContext *ctx) {
+    auto d = named<ProtocolDecl>(ctx, ctx->IDENT());
+    std::string owner = "protocol '" + d->name + "'";
+    SourceRange durationAt, recordAt;
+    for (P::ProtocolItemContext *item : ctx->protocolItem()) {
+      if (auto *c = dynamic_cast<P::MethodItemContext *>(item)) {
+        // METHOD IDENT (STEP expr)? (TOLERANCE expr)?
+        if (!d->method.empty()) {
+          duplicate(range(c), d->methodRange, "the method", owner);
+          continue;
+        }
+        d->method = c->IDENT()->getText();
+        d->methodRange = range(c->IDENT());
+        size_t next = 0;
+        if (c->STEP())
+          d->step = build(c->expr(next++));
+        if (c->TOLERANCE())
+          d->tolerance = build(c->expr(next++));
+      }
+      if (auto *c = dynamic_cast<P::DurationItemContext *>(item)) {
+        if (d->duration)
+          duplicate(range(c), durationAt, "the duration", owner);
+        else {
+          d->duration = build(c->expr());
+          durationAt = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::InjectItemContext *>(item)) {
+        // INJECT IDENT injection
+        Injection inj;
+        inj.compartment = c->IDENT()->getText();
+        inj.compartmentRange = range(c->IDENT());
+        inj.range = range(c);
+        P::InjectionContext *shape = c->injection();
+        if (auto *r = dynamic_cast<P::RampInjectionContext *>(shape)) {
+          // RAMP expr TO expr FROM expr TO expr
+          inj.shape = InjectionShape::Ramp;
+          inj.amplitude = build(r->expr(0));
+          inj.amplitudeEnd = build(r->expr(1));
+          inj.from = build(r->expr(2));
+          inj.to = build(r->expr(3));
+        } else if (auto *p = dynamic_cast<P::PulseInjectionContext *>(shape)) {
+          // PULSES expr WIDTH expr EVERY expr FROM expr TO expr
+          inj.shape = InjectionShape::Pulses;
+          inj.amplitude = build(p->expr(0));
+          inj.width = build(p->expr(1));
+          inj.period = build(p->expr(2));
+          inj.from = build(p->expr(3));
+          inj.to = build(p->expr(4));
+        } else {
+          // expr FROM expr TO expr
+          auto *st = static_cast<P::StepInjectionContext *>(shape);
+          inj.amplitude = build(st->expr(0));
+          inj.from = build(st->expr(1));
+          inj.to = build(st->expr(2));
+        }
+        d->injections.push_back(std::move(inj));
+      }
+      if (auto *c = dynamic_cast<P::RecordItemContext *>(item)) {
+        // RECORD recordTarget (',' recordTarget)* (EVERY expr)?
+        if (!d->records.empty()) {
+          duplicate(range(c), recordAt, "'record'", owner);
+          continue;
+        }
+        recordAt = range(c);
+        for (P::RecordTargetContext *t : c->recordTarget())
+          d->records.push_back({t->getText(), range(t)});
+        if (c->expr())
+          d->every = build(c->expr());
+      }
+    }
+    return d;
+  }
+
   // ---- expressions ----
 
   // expr : IF expr THEN expr ELSE expr | orExpr ;
@@ -731,18 +808,19 @@ private:
     if (ctx->powExpr())
       return build(ctx->powExpr());
     // A sign belongs to the number it precedes: -5 degC is 268.15 K, not -(278.15 K).
-    if (auto *n = dynamic_cast<NumberExpr *>(build(ctx->unaryExpr()).release())) {
-      ExprPtr owned(n);
-      if (ctx->op->getText() == "-") {
+    ExprPtr operand = build(ctx->unaryExpr());
+    bool negate = ctx->op->getText() == "-";
+    if (auto *n = dyn_cast<NumberExpr>(operand.get())) {
+      if (negate) {
         n->written = -n->written;
         n->value = n->celsius ? n->written + 273.15 : -n->value;
       }
       n->range = range(ctx);
-      return owned;
+      return operand;
     }
     auto e = std::make_unique<UnaryExpr>(range(ctx));
-    e->op = ctx->op->getText() == "-" ? UnaryOp::Negate : UnaryOp::Plus;
-    e->operand = build(ctx->unaryExpr());
+    e->op = negate ? UnaryOp::Negate : UnaryOp::Plus;
+    e->operand = std::move(operand);
     return e;
   }
 

@@ -79,6 +79,12 @@ located ifs "$TMP/ifs.brine"
 "$PY" -c 'print("const a = 2" + " ^ 2" * 50000)' >"$TMP/powers.brine"
 run powers check "$TMP/powers.brine"
 located powers "$TMP/powers.brine"
+# Signs before a name (not a number): valid, and must not take time exponential in the
+# number of signs.
+"$PY" -c 'print("const a = 1\nconst b = " + "-" * 40 + "a\nconst c = " + "+ -" * 20 + "a")' >"$TMP/signs.brine"
+run signs check "$TMP/signs.brine"
+no_crash signs
+[ "$rc" -eq 0 ] || [ "$rc" -eq 65 ] || fail "signs: exited $rc"
 # Nested calls: each level is a '(' too.
 "$PY" -c 'print("use std.math\nconst a = " + "logistic(" * 10000 + "0" + ")" * 10000)' >"$TMP/calls.brine"
 run calls check "$TMP/calls.brine"

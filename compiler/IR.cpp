@@ -1,0 +1,163 @@
+// IR.cpp - building kernels (with shared identical nodes) and the IR text dump.
+#include "IR.h"
+
+#include <cstdio>
+#include <cstring>
+#include <sstream>
+
+namespace brine::ir {
+
+const char *opName(Op op) {
+  switch (op) {
+#define IR_OP(Name, Arity)                                                                                             \
+  case Op::Name:                                                                                                       \
+    return #Name;
+#include "IR.def"
+  }
+  return "?";
+}
+
+int arity(Op op) {
+  switch (op) {
+#define IR_OP(Name, Arity)                                                                                             \
+  case Op::Name:                                                                                                       \
+    return Arity;
+#include "IR.def"
+  }
+  return 0;
+}
+
+const char *methodName(Method m) {
+  switch (m) {
+  case Method::ExponentialEuler: return "exponential_euler";
+  case Method::RungeKutta4: return "rk4";
+  case Method::DormandPrince: return "dormand_prince";
+  }
+  return "?";
+}
+
+NodeId Kernel::add(Node n) {
+  // The key holds everything but the location: equal nodes compute equal values.
+  char key[96];
+  uint64_t bits;
+  std::memcpy(&bits, &n.constant, sizeof bits);
+  std::snprintf(key, sizeof key, "%d:%llx:%d:%d:%d:%d", static_cast<int>(n.op), static_cast<unsigned long long>(bits),
+                n.index, n.a, n.b, n.c);
+  auto [it, inserted] = seen_.emplace(key, static_cast<NodeId>(nodes_.size()));
+  if (inserted)
+    nodes_.push_back(n);
+  return it->second;
+}
+
+NodeId Kernel::constant(double v) { return add(Node{Op::Const, v, -1, -1, -1, -1, {}}); }
+NodeId Kernel::state(int index) { return add(Node{Op::State, 0, index, -1, -1, -1, {}}); }
+NodeId Kernel::param(int index) { return add(Node{Op::Param, 0, index, -1, -1, -1, {}}); }
+NodeId Kernel::time() { return add(Node{Op::Time, 0, -1, -1, -1, -1, {}}); }
+
+NodeId Kernel::unary(Op op, NodeId a, SourceLoc loc) {
+  const Node &x = nodes_[a];
+  if (x.op == Op::Const) { // fold constants now; the JIT and interpreter then agree exactly
+    double v = x.constant;
+    switch (op) {
+    case Op::Neg: return constant(-v);
+    case Op::Not: return constant(v == 0 ? 1 : 0);
+    default: break;
+    }
+  }
+  return add(Node{op, 0, -1, a, -1, -1, loc});
+}
+
+NodeId Kernel::binary(Op op, NodeId a, NodeId b, SourceLoc loc) {
+  const Node &x = nodes_[a], &y = nodes_[b];
+  if (x.op == Op::Const && y.op == Op::Const) {
+    double l = x.constant, r = y.constant;
+    switch (op) {
+    case Op::Add: return constant(l + r);
+    case Op::Sub: return constant(l - r);
+    case Op::Mul: return constant(l * r);
+    case Op::Div:
+      if (r != 0)
+        return constant(l / r);
+      break;
+    default: break;
+    }
+  }
+  // x*1, 1*x, x+0, x-0 are common after lowering units; drop them.
+  if (op == Op::Mul && y.op == Op::Const && y.constant == 1)
+    return a;
+  if (op == Op::Mul && x.op == Op::Const && x.constant == 1)
+    return b;
+  if ((op == Op::Add || op == Op::Sub) && y.op == Op::Const && y.constant == 0)
+    return a;
+  if (op == Op::Add && x.op == Op::Const && x.constant == 0)
+    return b;
+  if (op == Op::Div && y.op == Op::Const && y.constant == 1)
+    return a;
+  return add(Node{op, 0, -1, a, b, -1, loc});
+}
+
+NodeId Kernel::select(NodeId cond, NodeId then, NodeId otherwise, SourceLoc loc) {
+  if (nodes_[cond].op == Op::Const)
+    return nodes_[cond].constant != 0 ? then : otherwise;
+  return add(Node{Op::Select, 0, -1, cond, then, otherwise, loc});
+}
+
+int Model::findParam(const std::string &wanted) const {
+  for (size_t i = 0; i < paramNames.size(); ++i)
+    if (paramNames[i] == wanted)
+      return static_cast<int>(i);
+  return -1;
+}
+
+int Model::findRecordable(const std::string &wanted) const {
+  for (size_t i = 0; i < recordables.size(); ++i)
+    if (recordables[i].name == wanted)
+      return static_cast<int>(i);
+  return -1;
+}
+
+std::string dump(const Model &m) {
+  std::ostringstream out;
+  char buf[64];
+  auto num = [&](double v) {
+    std::snprintf(buf, sizeof buf, "%.17g", v);
+    return std::string(buf);
+  };
+  out << "model " << m.name << " temperature " << num(m.temperature) << " K\n";
+  for (size_t i = 0; i < m.stateNames.size(); ++i)
+    out << "state " << i << " " << m.stateNames[i] << " = " << num(m.initialState[i]) << "\n";
+  for (size_t i = 0; i < m.paramNames.size(); ++i)
+    out << "param " << i << " " << m.paramNames[i] << " = " << num(m.params[i]) << "\n";
+  for (const Compartment &c : m.compartments)
+    out << "compartment " << c.name << " V=y" << c.voltageState << " C=p" << c.capacitanceParam << " area "
+        << num(c.area) << " G=out" << c.gOutput << " GE=out" << c.geOutput << " Iother=out" << c.iOtherOutput << "\n";
+  for (const Gate &g : m.gates)
+    out << "gate " << g.name << " y" << g.state << " inf=out" << g.infOutput << " tau=out" << g.tauOutput << "\n";
+  for (const Recordable &r : m.recordables)
+    out << "recordable " << r.name << " [" << r.unit << "] " << (r.state >= 0 ? "y" + std::to_string(r.state)
+                                                                             : "out" + std::to_string(r.output))
+        << "\n";
+  const Protocol &p = m.protocol;
+  out << "protocol " << (p.name.empty() ? "(none)" : p.name) << " method " << methodName(p.method) << " step "
+      << num(p.step) << " duration " << num(p.duration) << " every " << num(p.every) << "\n";
+  const auto &nodes = m.kernel.nodes();
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    const Node &n = nodes[i];
+    out << "%" << i << " = " << opName(n.op);
+    if (n.op == Op::Const)
+      out << " " << num(n.constant);
+    if (n.op == Op::State)
+      out << " y" << n.index;
+    if (n.op == Op::Param)
+      out << " p" << n.index;
+    for (NodeId operand : {n.a, n.b, n.c})
+      if (operand >= 0)
+        out << " %" << operand;
+    out << "\n";
+  }
+  for (size_t i = 0; i < m.kernel.outputs.size(); ++i)
+    out << "out" << i << " = %" << m.kernel.outputs[i] << "\n";
+  return out.str();
+}
+
+} // namespace brine::ir

@@ -1,0 +1,179 @@
+// JIT.cpp - Stage 8: an LLJIT for the host CPU that optimises (O3) and runs CodeGen's modules.
+//
+// One of the two files that see LLVM headers (with CodeGen.cpp); JIT.h shows no LLVM type.
+#include "JIT.h"
+
+#include "CodeGen.h"
+
+#include <llvm/Analysis/TargetLibraryInfo.h>
+#include <llvm/ExecutionEngine/Orc/Core.h>
+#include <llvm/ExecutionEngine/Orc/ExecutionUtils.h>
+#include <llvm/ExecutionEngine/Orc/JITTargetMachineBuilder.h>
+#include <llvm/ExecutionEngine/Orc/LLJIT.h>
+#include <llvm/IR/LLVMContext.h>
+#include <llvm/IR/Module.h>
+#include <llvm/IR/Verifier.h>
+#include <llvm/Passes/PassBuilder.h>
+#include <llvm/Support/TargetSelect.h>
+#include <llvm/Support/raw_ostream.h>
+#include <llvm/Target/TargetMachine.h>
+
+#include <cmath>
+#include <mutex>
+
+namespace brine {
+
+struct JIT::Impl {
+  std::unique_ptr<llvm::orc::LLJIT> jit;
+  std::unique_ptr<llvm::TargetMachine> machine; // drives O3's cost model; LLJIT has its own copy
+  llvm::Triple triple;
+  unsigned counter = 0;
+  std::string lastIR;
+};
+
+namespace {
+
+std::string describe(llvm::Error e) { return llvm::toString(std::move(e)); }
+
+/// The libm functions generated code may call, registered by address so the JIT never depends
+/// on what the executable happens to export.
+llvm::Error defineLibm(llvm::orc::LLJIT &jit) {
+  using Unary = double (*)(double);
+  using Binary = double (*)(double, double);
+  struct Entry {
+    const char *name;
+    void *address;
+  };
+  const Entry entries[] = {
+      {"exp", reinterpret_cast<void *>(static_cast<Unary>(::exp))},
+      {"expm1", reinterpret_cast<void *>(static_cast<Unary>(::expm1))},
+      {"log", reinterpret_cast<void *>(static_cast<Unary>(::log))},
+      {"log10", reinterpret_cast<void *>(static_cast<Unary>(::log10))},
+      {"sqrt", reinterpret_cast<void *>(static_cast<Unary>(::sqrt))},
+      {"tanh", reinterpret_cast<void *>(static_cast<Unary>(::tanh))},
+      {"pow", reinterpret_cast<void *>(static_cast<Binary>(::pow))},
+      {"fmin", reinterpret_cast<void *>(static_cast<Binary>(::fmin))},
+      {"fmax", reinterpret_cast<void *>(static_cast<Binary>(::fmax))},
+  };
+  llvm::orc::SymbolMap symbols;
+  for (const Entry &e : entries)
+    symbols[jit.mangleAndIntern(e.name)] = {llvm::orc::ExecutorAddr::fromPtr(e.address),
+                                            llvm::JITSymbolFlags::Exported | llvm::JITSymbolFlags::Callable};
+  return jit.getMainJITDylib().define(llvm::orc::absoluteSymbols(std::move(symbols)));
+}
+
+/// The new pass manager's O3, with glibc's libmvec known so loops and SLP groups of exp, log,
+/// pow... become calls such as _ZGVdN4v_exp.
+void optimize(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
+  llvm::LoopAnalysisManager lam;
+  llvm::FunctionAnalysisManager fam;
+  llvm::CGSCCAnalysisManager cgam;
+  llvm::ModuleAnalysisManager mam;
+  llvm::PassBuilder builder(&machine);
+  llvm::TargetLibraryInfoImpl tlii(triple);
+  tlii.addVectorizableFunctionsFromVecLib(llvm::TargetLibraryInfoImpl::LIBMVEC_X86, triple);
+  fam.registerPass([&] { return llvm::TargetLibraryAnalysis(tlii); });
+  builder.registerModuleAnalyses(mam);
+  builder.registerCGSCCAnalyses(cgam);
+  builder.registerFunctionAnalyses(fam);
+  builder.registerLoopAnalyses(lam);
+  builder.crossRegisterProxies(lam, fam, cgam, mam);
+  builder.buildPerModuleDefaultPipeline(llvm::OptimizationLevel::O3).run(module, mam);
+}
+
+} // namespace
+
+JIT::JIT(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
+JIT::~JIT() = default;
+
+std::unique_ptr<JIT> JIT::create(std::string &error) {
+  static std::once_flag once;
+  std::call_once(once, [] {
+    llvm::InitializeNativeTarget();
+    llvm::InitializeNativeTargetAsmPrinter();
+  });
+
+  auto builder = llvm::orc::JITTargetMachineBuilder::detectHost(); // host CPU name and features
+  if (!builder) {
+    error = "cannot target this machine: " + describe(builder.takeError());
+    return nullptr;
+  }
+  builder->setCodeGenOptLevel(llvm::CodeGenOptLevel::Aggressive);
+  builder->setCodeModel(llvm::CodeModel::Small); // JITLink handles it; the default is Large
+  builder->setRelocationModel(llvm::Reloc::PIC_);
+
+  auto impl = std::make_unique<Impl>();
+  impl->triple = builder->getTargetTriple();
+  auto machine = builder->createTargetMachine();
+  if (!machine) {
+    error = "cannot create a target machine: " + describe(machine.takeError());
+    return nullptr;
+  }
+  impl->machine = std::move(*machine);
+
+  auto jit = llvm::orc::LLJITBuilder().setJITTargetMachineBuilder(std::move(*builder)).create();
+  if (!jit) {
+    error = "cannot create the JIT: " + describe(jit.takeError());
+    return nullptr;
+  }
+  impl->jit = std::move(*jit);
+  llvm::orc::JITDylib &main = impl->jit->getMainJITDylib();
+  if (llvm::Error e = defineLibm(*impl->jit)) {
+    error = "cannot register libm: " + describe(std::move(e));
+    return nullptr;
+  }
+  // The vector variants (_ZGVdN4v_exp, ...) come from libmvec, loaded by name.
+  auto libmvec =
+      llvm::orc::DynamicLibrarySearchGenerator::Load("libmvec.so.1", impl->jit->getDataLayout().getGlobalPrefix());
+  if (!libmvec) {
+    error = "cannot load libmvec.so.1: " + describe(libmvec.takeError());
+    return nullptr;
+  }
+  main.addGenerator(std::move(*libmvec));
+  return std::unique_ptr<JIT>(new JIT(std::move(impl)));
+}
+
+KernelFn JIT::compile(const ir::Kernel &kernel, std::string &error) {
+  Impl &impl = *impl_;
+  std::string name = "brine_kernel_" + std::to_string(impl.counter++);
+  auto context = std::make_unique<llvm::LLVMContext>();
+  std::unique_ptr<llvm::Module> module = codegen(kernel, *context, name);
+  if (!module) {
+    error = "malformed kernel: an operand or output names no earlier node";
+    return nullptr;
+  }
+  module->setTargetTriple(impl.triple.str());
+  module->setDataLayout(impl.jit->getDataLayout());
+  std::string problems;
+  llvm::raw_string_ostream problemStream(problems);
+  if (llvm::verifyModule(*module, &problemStream)) {
+    error = "codegen produced invalid LLVM IR: " + problemStream.str();
+    return nullptr;
+  }
+  // Per-function CPU attributes make every pass see the same target as the code generator.
+  if (llvm::Function *fn = module->getFunction(name)) {
+    fn->addFnAttr("target-cpu", impl.machine->getTargetCPU());
+    fn->addFnAttr("target-features", impl.machine->getTargetFeatureString());
+  }
+  optimize(*module, *impl.machine, impl.triple);
+
+  impl.lastIR.clear();
+  llvm::raw_string_ostream irStream(impl.lastIR);
+  module->print(irStream, nullptr);
+  irStream.flush();
+
+  if (llvm::Error e = impl.jit->addIRModule(llvm::orc::ThreadSafeModule(std::move(module), std::move(context)))) {
+    error = "cannot add the kernel: " + describe(std::move(e));
+    return nullptr;
+  }
+  auto address = impl.jit->lookup(name);
+  if (!address) {
+    error = "cannot compile the kernel: " + describe(address.takeError());
+    return nullptr;
+  }
+  return address->toPtr<KernelFn>();
+}
+
+const std::string &JIT::lastIR() const { return impl_->lastIR; }
+
+} // namespace brine

@@ -1,0 +1,30 @@
+// JIT.h - Stage 8: compiles IR kernels to native code for this machine (LLVM ORC, hidden).
+#pragma once
+#include "IR.h"
+
+#include <memory>
+#include <string>
+
+namespace brine {
+
+using KernelFn = void (*)(const double *y, const double *p, double t, double *out);
+
+class JIT {
+public:
+  /// Creates the JIT for the host CPU; returns nullptr with `error` set on failure.
+  static std::unique_ptr<JIT> create(std::string &error);
+  ~JIT();
+  /// Compiles `kernel` (codegen, verifyModule, O3 for the host CPU) and returns its address,
+  /// valid while this JIT lives; returns nullptr with `error` set on failure.
+  KernelFn compile(const ir::Kernel &kernel, std::string &error);
+  /// The optimised LLVM IR of the last compiled kernel (for `--emit llvm`); the Nth compile
+  /// (from 0) defines `brine_kernel_N`.
+  const std::string &lastIR() const;
+
+private:
+  struct Impl;
+  explicit JIT(std::unique_ptr<Impl> impl);
+  std::unique_ptr<Impl> impl_;
+};
+
+} // namespace brine

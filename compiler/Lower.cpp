@@ -1,0 +1,505 @@
+// Lower.cpp - Stage 8: builds the IR kernel of a model for one protocol.
+#include "Lower.h"
+
+#include "Analyze.h"
+#include "Diagnostics.h"
+#include "Evaluate.h"
+#include "Interpret.h"
+#include "Physics.h"
+
+#include <cmath>
+
+namespace brine {
+
+using namespace ast;
+using ir::NodeId;
+using ir::Op;
+
+std::vector<const ProtocolDecl *> protocols(const Program &program) {
+  std::vector<const ProtocolDecl *> out;
+  for (auto &m : program.modules)
+    for (auto &d : m->decls)
+      if (auto *p = dyn_cast<ProtocolDecl>(d.get()))
+        out.push_back(p);
+  return out;
+}
+
+namespace {
+
+// Where an expression is being lowered: its compartment and the membrane potential node.
+struct Env {
+  const CompartmentValues *compartment = nullptr;
+  NodeId voltage = -1;
+  const std::vector<NodeId> *args = nullptr; // parameters of the inlined function
+};
+
+class Lowerer {
+public:
+  Lowerer(const Model &model, Evaluator &evaluator, DiagnosticEngine &diags, ir::Model &out)
+      : model_(model), evaluator_(evaluator), diags_(diags), out_(out), k_(out.kernel) {}
+
+  bool run(const Program &program, const ProtocolDecl *protocol) {
+    out_.name = model_.header ? model_.header->name : "model";
+    out_.temperature = model_.temperature.value_or(NAN);
+    if (!model_.temperature) {
+      diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no temperature to simulate at");
+      return false;
+    }
+    if (model_.compartments.empty()) {
+      diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no compartment to simulate");
+      return false;
+    }
+    for (const CompartmentValues &c : model_.compartments)
+      compartment(c, protocol);
+    if (protocol)
+      lowerProtocol(*protocol);
+    else
+      defaultProtocol();
+    (void)program;
+    if (ok_)
+      initialiseGates();
+    return ok_;
+  }
+
+private:
+  const Model &model_;
+  Evaluator &evaluator_;
+  DiagnosticEngine &diags_;
+  ir::Model &out_;
+  ir::Kernel &k_;
+  bool ok_ = true;
+
+  void fail(SourceRange at, const std::string &message) {
+    diags_.error(at, message);
+    ok_ = false;
+  }
+
+  int addState(const std::string &name, double initial) {
+    out_.stateNames.push_back(name);
+    out_.initialState.push_back(initial);
+    return static_cast<int>(out_.stateNames.size()) - 1;
+  }
+  int addParamIndex(const std::string &name, double value, Dimension dim) {
+    out_.paramNames.push_back(name);
+    out_.params.push_back(value);
+    out_.paramDims.push_back(dim);
+    return static_cast<int>(out_.params.size()) - 1;
+  }
+  NodeId addParam(const std::string &name, double value, Dimension dim) {
+    return k_.param(addParamIndex(name, value, dim));
+  }
+  void recordable(const std::string &name, const std::string &unit, double scale, NodeId node) {
+    ir::Recordable r{name, unit, scale, -1, k_.addOutput(node)};
+    out_.recordables.push_back(r);
+  }
+
+  NodeId add(NodeId a, NodeId b) { return k_.binary(Op::Add, a, b); }
+  NodeId sub(NodeId a, NodeId b) { return k_.binary(Op::Sub, a, b); }
+  NodeId mul(NodeId a, NodeId b) { return k_.binary(Op::Mul, a, b); }
+  NodeId div(NodeId a, NodeId b) { return k_.binary(Op::Div, a, b); }
+  NodeId num(double v) { return k_.constant(v); }
+
+  // ---- expressions ----
+
+  NodeId expr(const Expr &e, const Env &env) {
+    SourceLoc loc = e.range.begin;
+    switch (e.kind) {
+    case ExprKind::Number:
+      return num(static_cast<const NumberExpr &>(e).value);
+    case ExprKind::Name: {
+      auto &n = static_cast<const NameExpr &>(e);
+      if (n.paramIndex >= 0 && env.args)
+        return (*env.args)[n.paramIndex];
+      if (n.builtin == Builtin::MembranePotential && env.voltage >= 0)
+        return env.voltage;
+      if (n.builtin == Builtin::Temperature)
+        return num(*model_.temperature);
+      if (auto *c = dyn_cast<ConstDecl>(n.target))
+        if (auto v = evaluator_.constant(*c))
+          return num(*v);
+      fail(e.range, "cannot lower '" + n.name + "' here");
+      return num(NAN);
+    }
+    case ExprKind::Concentration: {
+      auto &c = static_cast<const ConcentrationExpr &>(e);
+      if (env.compartment && c.target)
+        if (auto v = env.compartment->concentration(c.target, c.side))
+          return num(*v);
+      fail(e.range, "no concentration of '" + c.ion + "' " + (c.side == Side::Inside ? "inside" : "outside") +
+                        " to simulate with");
+      return num(NAN);
+    }
+    case ExprKind::Call:
+      return call(static_cast<const CallExpr &>(e), env);
+    case ExprKind::Unary: {
+      auto &u = static_cast<const UnaryExpr &>(e);
+      NodeId x = expr(*u.operand, env);
+      return u.op == UnaryOp::Negate ? k_.unary(Op::Neg, x, loc) : u.op == UnaryOp::Not ? k_.unary(Op::Not, x, loc) : x;
+    }
+    case ExprKind::Binary: {
+      auto &b = static_cast<const BinaryExpr &>(e);
+      NodeId l = expr(*b.lhs, env), r = expr(*b.rhs, env);
+      static const Op ops[] = {Op::Add, Op::Sub, Op::Mul, Op::Div, Op::Pow, Op::Eq, Op::Ne,
+                               Op::Lt,  Op::Le,  Op::Gt,  Op::Ge,  Op::And, Op::Or};
+      return k_.binary(ops[static_cast<int>(b.op)], l, r, loc);
+    }
+    case ExprKind::If: {
+      auto &i = static_cast<const IfExpr &>(e);
+      return k_.select(expr(*i.cond, env), expr(*i.thenExpr, env), expr(*i.elseExpr, env), loc);
+    }
+    }
+    return num(NAN);
+  }
+
+  NodeId call(const CallExpr &c, const Env &env) {
+    SourceLoc loc = c.range.begin;
+    if (c.math == MathFn::Reversal) {
+      if (env.compartment && c.reversalIon)
+        if (auto v = env.compartment->nernst(c.reversalIon, *model_.temperature))
+          return num(*v);
+      fail(c.range, "no reversal potential of '" + (c.reversalIon ? c.reversalIon->name : "?") + "' to simulate with");
+      return num(NAN);
+    }
+    std::vector<NodeId> args;
+    for (auto &a : c.args)
+      args.push_back(expr(*a, env));
+    switch (c.math) {
+    case MathFn::Exp: return k_.unary(Op::Exp, args[0], loc);
+    case MathFn::Expm1: return k_.unary(Op::Expm1, args[0], loc);
+    case MathFn::Log: return k_.unary(Op::Log, args[0], loc);
+    case MathFn::Log10: return k_.unary(Op::Log10, args[0], loc);
+    case MathFn::Sqrt: return k_.unary(Op::Sqrt, args[0], loc);
+    case MathFn::Abs: return k_.unary(Op::Abs, args[0], loc);
+    case MathFn::Tanh: return k_.unary(Op::Tanh, args[0], loc);
+    case MathFn::Pow: return k_.binary(Op::Pow, args[0], args[1], loc);
+    case MathFn::Min: return k_.binary(Op::Min, args[0], args[1], loc);
+    case MathFn::Max: return k_.binary(Op::Max, args[0], args[1], loc);
+    case MathFn::Reversal:
+    case MathFn::None:
+      break;
+    }
+    if (!c.target) {
+      fail(c.range, "cannot lower the call to '" + c.callee + "'");
+      return num(NAN);
+    }
+    Env inner = env;
+    inner.args = &args;
+    return expr(*c.target->body, inner); // functions are inlined; shared nodes keep it small
+  }
+
+  // ---- mechanisms ----
+
+  struct Currents {
+    NodeId g, ge, other, stimulus;
+  };
+
+  NodeId q10Factor(const ChannelDecl &ch) {
+    if (!ch.q10 || !ch.q10Reference)
+      return num(1);
+    auto q = evaluator_.evaluate(*ch.q10, {});
+    auto ref = evaluator_.evaluate(*ch.q10Reference, {});
+    if (!q || !ref) {
+      fail(ch.q10Range, "cannot compute the Q10 factor of '" + ch.name + "'");
+      return num(1);
+    }
+    return num(std::pow(*q, (*model_.temperature - *ref) / 10.0));
+  }
+
+  // The open fraction of a placed channel: product of its gates raised to their powers.
+  NodeId gates(const ChannelDecl &ch, const std::string &prefix, const Env &env) {
+    NodeId phi = q10Factor(ch);
+    NodeId open = num(1);
+    for (const Gate &g : ch.gates) {
+      std::string name = prefix + "." + g.name;
+      int state = addState(name, 0);
+      NodeId inf, tau;
+      if (g.opening && g.closing) {
+        NodeId alpha = mul(expr(*g.opening, env), phi), beta = mul(expr(*g.closing, env), phi);
+        NodeId sum = add(alpha, beta);
+        inf = div(alpha, sum);
+        tau = div(num(1), sum);
+      } else if (g.steady && g.tau) {
+        inf = expr(*g.steady, env);
+        tau = div(expr(*g.tau, env), phi);
+      } else {
+        fail(g.nameRange, "gate '" + g.name + "' has no complete kinetics");
+        continue;
+      }
+      ir::Gate gate{name, state, k_.addOutput(inf), k_.addOutput(tau)};
+      out_.gates.push_back(gate);
+      out_.recordables.push_back({name, "1", 1, state, -1});
+      NodeId x = k_.state(state);
+      int power = static_cast<int>(g.power.value);
+      for (int i = 0; i < power; ++i)
+        open = mul(open, x);
+    }
+    return open;
+  }
+
+  // GHK current density (A/m2, outward positive) of one ion with permeability `perm`.
+  NodeId ghk(NodeId perm, int z, double inside, double outside, NodeId v) {
+    double zF = z * physics::faraday;
+    NodeId u = mul(v, num(z / physics::thermalVoltage(*model_.temperature))); // zFV/RT
+    NodeId negU = k_.unary(Op::Neg, u);
+    // u / (1 - e^-u), whose limit at u = 0 is 1
+    NodeId factor = k_.select(k_.binary(Op::Eq, u, num(0)), num(1),
+                              div(u, k_.unary(Op::Neg, k_.unary(Op::Expm1, negU))));
+    NodeId drive = sub(num(inside), mul(num(outside), k_.unary(Op::Exp, negU)));
+    return mul(mul(perm, num(zF)), mul(factor, drive));
+  }
+
+  void channel(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
+    const ChannelDecl &ch = *p.channel;
+    std::string prefix = c.decl->name + "." + p.entry->mechanism;
+    if (!p.density) {
+      fail(p.entry->nameRange, "the density of '" + ch.name + "' is unknown");
+      return;
+    }
+    NodeId density = addParam(prefix + ".density", *p.density, p.entry->density->type.dim);
+    NodeId open = gates(ch, prefix, env);
+    NodeId current;
+    if (p.densityKind == DensityKind::Permeability) {
+      NodeId perm = mul(density, open);
+      current = num(0);
+      for (const CarriedIon &k : ch.carries) {
+        auto z = k.target ? integerValence(*k.target) : std::nullopt;
+        auto in = k.target ? c.inside.get(k.target) : std::nullopt;
+        auto out = k.target && c.outside ? c.outside->get(k.target) : std::nullopt;
+        if (!z || !in || !out) {
+          fail(p.entry->nameRange, "'" + ch.name + "' needs the valence and both concentrations of '" + k.ion +
+                                       "' for its GHK current");
+          return;
+        }
+        double ratio = k.hasRatio ? k.ratio.value : 1.0;
+        current = add(current, ghk(mul(perm, num(ratio)), *z, *in, *out, env.voltage));
+      }
+      if (ch.carries.empty()) {
+        fail(p.entry->nameRange, "a permeability density needs the ions '" + ch.name + "' carries");
+        return;
+      }
+      cur.other = add(cur.other, current);
+    } else {
+      if (!p.reversal) {
+        fail(p.entry->nameRange, "the reversal potential of '" + ch.name + "' in '" + c.decl->name + "' is unknown");
+        return;
+      }
+      NodeId e = addParam(prefix + ".reversal", *p.reversal, dims::voltage());
+      NodeId g = mul(density, open);
+      cur.g = add(cur.g, g);
+      cur.ge = add(cur.ge, mul(g, e));
+      current = mul(g, sub(env.voltage, e));
+    }
+    recordable(prefix + ".current", "uA/cm2", 100, current);
+  }
+
+  void pump(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
+    const PumpDecl &pump = *p.pump;
+    std::string prefix = c.decl->name + "." + p.entry->mechanism;
+    auto values = model_.pumps.find(&pump);
+    if (!p.density || !pump.activity || values == model_.pumps.end() || !values->second.chargeKnown) {
+      fail(p.entry->nameRange, "'" + pump.name + "' cannot be simulated without a density, cycle and activity");
+      return;
+    }
+    int net = values->second.netOutwardCharge;
+    NodeId density = addParam(prefix + ".density", *p.density, p.entry->density->type.dim);
+    NodeId activity = expr(*pump.activity, env);
+    NodeId current;
+    if (p.densityKind == DensityKind::Current)
+      current = mul(mul(density, activity), num(net > 0 ? 1.0 : -1.0)); // the cycle fixes the sign
+    else
+      current = mul(mul(density, activity), num(net * physics::faraday));
+    cur.other = add(cur.other, current);
+    recordable(prefix + ".current", "uA/cm2", 100, current);
+  }
+
+  std::optional<double> time(const Expr *e) { return e ? evaluator_.evaluate(*e, {}) : std::nullopt; }
+
+  // Injected current (A/m2, into the cell) of one inject line at time t.
+  NodeId injection(const Injection &inj, const CompartmentValues &c) {
+    auto amp = time(inj.amplitude.get());
+    auto from = time(inj.from.get()), to = time(inj.to.get());
+    if (!amp || !from || !to) {
+      fail(inj.range, "cannot compute this injection");
+      return num(0);
+    }
+    if (*to <= *from) {
+      fail(inj.to->range, "an injection must end after it starts");
+      return num(0);
+    }
+    double perArea = 1;
+    if (inj.amplitude->type.dim == dims::current()) {
+      if (!c.area || *c.area <= 0) {
+        fail(inj.amplitude->range, "an absolute current needs the area of compartment '" + c.decl->name +
+                                       "'; give its geometry or inject a current density (uA/cm2)");
+        return num(0);
+      }
+      perArea = 1 / *c.area;
+    }
+    NodeId t = k_.time();
+    auto window = [&](double a, double b) {
+      return k_.binary(Op::And, k_.binary(Op::Ge, t, num(a)), k_.binary(Op::Lt, t, num(b)));
+    };
+    switch (inj.shape) {
+    case InjectionShape::Step:
+      return k_.select(window(*from, *to), num(*amp * perArea), num(0));
+    case InjectionShape::Ramp: {
+      auto end = time(inj.amplitudeEnd.get());
+      if (!end) {
+        fail(inj.range, "cannot compute this ramp");
+        return num(0);
+      }
+      double slope = (*end - *amp) / (*to - *from) * perArea;
+      NodeId value = add(num(*amp * perArea), mul(num(slope), sub(t, num(*from))));
+      return k_.select(window(*from, *to), value, num(0));
+    }
+    case InjectionShape::Pulses: {
+      auto width = time(inj.width.get()), period = time(inj.period.get());
+      if (!width || !period || *width <= 0 || *period <= 0 || *width > *period) {
+        fail(inj.range, "pulses need a positive width no longer than their interval");
+        return num(0);
+      }
+      double count = std::ceil((*to - *from) / *period);
+      if (count > 1000) {
+        fail(inj.range, "a pulse train may have at most 1000 pulses");
+        return num(0);
+      }
+      NodeId sum = num(0);
+      for (int i = 0; i < static_cast<int>(count); ++i) {
+        double a = *from + i * *period;
+        sum = add(sum, k_.select(window(a, std::min(a + *width, *to)), num(*amp * perArea), num(0)));
+      }
+      return sum;
+    }
+    }
+    return num(0);
+  }
+
+  void compartment(const CompartmentValues &c, const ProtocolDecl *protocol) {
+    const CompartmentDecl &d = *c.decl;
+    if (!c.initialV) {
+      fail(d.nameRange, "compartment '" + d.name + "' has no initial potential to start from");
+      DiagnosticEngine::note(*diags_.last(), {}, "add e.g. 'initial V = -65 mV'");
+      return;
+    }
+    if (!c.capacitance || *c.capacitance <= 0) {
+      fail(d.nameRange, "compartment '" + d.name + "' needs a positive capacitance to simulate");
+      return;
+    }
+    ir::Compartment comp;
+    comp.name = d.name;
+    comp.area = c.area.value_or(0);
+    comp.voltageState = addState(d.name + ".V", *c.initialV);
+    comp.capacitanceParam = addParamIndex(d.name + ".capacitance", *c.capacitance, dims::specificCapacitance());
+    Env env{&c, k_.state(comp.voltageState), nullptr};
+    Currents cur{num(0), num(0), num(0), num(0)};
+    for (const Placement &p : c.placements) {
+      if (p.channel)
+        channel(p, c, cur, env);
+      else if (p.pump)
+        pump(p, c, cur, env);
+    }
+    if (protocol)
+      for (const Injection &inj : protocol->injections)
+        if (inj.target == &d)
+          cur.stimulus = add(cur.stimulus, injection(inj, c));
+    NodeId ionic = add(sub(mul(cur.g, env.voltage), cur.ge), cur.other);
+    comp.gOutput = k_.addOutput(cur.g);
+    comp.geOutput = k_.addOutput(cur.ge);
+    comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell
+    out_.compartments.push_back(comp);
+    out_.recordables.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
+    recordable(d.name + ".membrane_current", "uA/cm2", 100, ionic);
+    recordable(d.name + ".injected", "uA/cm2", 100, cur.stimulus);
+  }
+
+  void defaultProtocol() {
+    out_.protocol = ir::Protocol{};
+    for (const ir::Compartment &c : out_.compartments)
+      out_.protocol.record.push_back(out_.findRecordable(c.name + ".V"));
+  }
+
+  void lowerProtocol(const ProtocolDecl &p) {
+    ir::Protocol &proto = out_.protocol;
+    proto.name = p.name;
+    if (!p.method.empty()) {
+      if (p.method == "exponential_euler")
+        proto.method = ir::Method::ExponentialEuler;
+      else if (p.method == "rk4")
+        proto.method = ir::Method::RungeKutta4;
+      else if (p.method == "dormand_prince")
+        proto.method = ir::Method::DormandPrince;
+      else {
+        fail(p.methodRange, "unknown method '" + p.method + "'");
+        DiagnosticEngine::note(*diags_.last(), {}, "the methods are exponential_euler, rk4 and dormand_prince");
+      }
+    }
+    if (p.step) {
+      auto v = time(p.step.get());
+      if (!v || *v <= 0)
+        fail(p.step->range, "the step must be positive");
+      else
+        proto.step = *v;
+    }
+    if (p.tolerance) {
+      auto v = time(p.tolerance.get());
+      if (!v || *v <= 0 || *v >= 1)
+        fail(p.tolerance->range, "the tolerance must lie between 0 and 1");
+      else
+        proto.rtol = *v;
+    }
+    if (!p.duration)
+      fail(p.nameRange, "protocol '" + p.name + "' has no duration");
+    else if (auto v = time(p.duration.get()); !v || *v <= 0)
+      fail(p.duration->range, "the duration must be positive");
+    else
+      proto.duration = *v;
+    proto.every = proto.step;
+    if (p.every) {
+      auto v = time(p.every.get());
+      if (!v || *v <= 0)
+        fail(p.every->range, "the recording interval must be positive");
+      else
+        proto.every = *v;
+    }
+    if (proto.method != ir::Method::DormandPrince && p.every) {
+      double ratio = proto.every / proto.step;
+      if (std::fabs(ratio - std::round(ratio)) > 1e-9 * ratio || ratio < 0.5)
+        fail(p.every->range, "the recording interval must be a whole number of steps");
+    }
+    for (const RecordTarget &r : p.records) {
+      int index = out_.findRecordable(r.path);
+      if (index < 0) {
+        fail(r.range, "there is nothing called '" + r.path + "' to record");
+        std::string some;
+        for (size_t i = 0; i < out_.recordables.size() && i < 6; ++i)
+          some += (i ? ", " : "") + out_.recordables[i].name;
+        DiagnosticEngine::note(*diags_.last(), {}, "recordable quantities include " + some);
+      } else {
+        proto.record.push_back(index);
+      }
+    }
+    if (p.records.empty())
+      for (const ir::Compartment &c : out_.compartments)
+        proto.record.push_back(out_.findRecordable(c.name + ".V"));
+  }
+
+  // Gates start at their steady values for the initial potentials.
+  void initialiseGates() {
+    Interpreter interp(out_.kernel);
+    std::vector<double> outputs(out_.kernel.outputs.size());
+    interp.run(out_.initialState.data(), out_.params.data(), 0.0, outputs.data());
+    for (const ir::Gate &g : out_.gates)
+      out_.initialState[g.state] = outputs[g.infOutput];
+  }
+};
+
+} // namespace
+
+bool lowerModel(const Program &program, const Model &model, Evaluator &evaluator, const ProtocolDecl *protocol,
+                DiagnosticEngine &diags, ir::Model &out) {
+  size_t before = diags.errorCount();
+  bool ok = Lowerer(model, evaluator, diags, out).run(program, protocol);
+  return ok && diags.errorCount() == before;
+}
+
+} // namespace brine

@@ -1,0 +1,266 @@
+// Simulate.cpp - fixed-step and adaptive integration of a lowered model.
+#include "Simulate.h"
+
+#include "Interpret.h"
+
+#include <algorithm>
+#include <cmath>
+
+namespace brine {
+
+void KernelRef::operator()(const double *y, const double *p, double t, double *out) const {
+  if (native)
+    native(y, p, t, out);
+  else
+    interpreter->run(y, p, t, out);
+}
+
+namespace {
+
+// A potential beyond this means the integration has gone wrong, not the membrane.
+constexpr double maxPotential = 2.0; // volts
+
+class Stepper {
+public:
+  Stepper(const ir::Model &m, const std::vector<double> &params, KernelRef kernel, SimulationFailure &failure,
+          SimulationStats &stats)
+      : m_(m), p_(params), kernel_(kernel), failure_(failure), stats_(stats), y_(m.initialState),
+        out_(m.kernel.outputs.size()) {
+    const ir::Protocol &proto = m.protocol;
+    for (int r : proto.record) {
+      trace_.names.push_back(m.recordables[r].name);
+      trace_.units.push_back(m.recordables[r].unit);
+    }
+  }
+
+  Trace run() {
+    switch (m_.protocol.method) {
+    case ir::Method::ExponentialEuler:
+      fixedStep(false);
+      break;
+    case ir::Method::RungeKutta4:
+      fixedStep(true);
+      break;
+    case ir::Method::DormandPrince:
+      dormandPrince();
+      break;
+    }
+    return std::move(trace_);
+  }
+
+private:
+  const ir::Model &m_;
+  const std::vector<double> &p_;
+  KernelRef kernel_;
+  SimulationFailure &failure_;
+  SimulationStats &stats_;
+  std::vector<double> y_, out_;
+  Trace trace_;
+
+  void evaluate(const double *y, double t, double *out) {
+    kernel_(y, p_.data(), t, out);
+    ++stats_.kernelCalls;
+  }
+
+  // Records the current state; out_ must hold the kernel outputs at (y_, t).
+  void record(double t) {
+    trace_.time.push_back(t);
+    for (int r : m_.protocol.record) {
+      const ir::Recordable &q = m_.recordables[r];
+      double si = q.state >= 0 ? y_[q.state] : out_[q.output];
+      trace_.values.push_back(si * q.scale);
+    }
+  }
+
+  bool healthy(const std::vector<double> &y, double t) {
+    for (size_t i = 0; i < y.size(); ++i)
+      if (!std::isfinite(y[i])) {
+        return fail(t, i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
+      }
+    for (const ir::Compartment &c : m_.compartments)
+      if (std::fabs(y[c.voltageState]) > maxPotential)
+        return fail(t, static_cast<size_t>(c.voltageState),
+                    "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
+    return true;
+  }
+
+  bool fail(double t, size_t state, const std::string &reason) {
+    failure_.failed = true;
+    failure_.time = t;
+    failure_.variable = m_.stateNames[state];
+    failure_.reason = reason;
+    return false;
+  }
+
+  // dy/dt from the kernel outputs at y.
+  void derivative(const double *y, const double *out, double *dydt) {
+    for (const ir::Gate &g : m_.gates)
+      dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
+    for (const ir::Compartment &c : m_.compartments) {
+      double v = y[c.voltageState];
+      double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
+      dydt[c.voltageState] = -current / p_[c.capacitanceParam];
+    }
+  }
+
+  // Rush-Larsen gates and an exact exponential V step for frozen gates (first order).
+  void exponentialEulerStep(double dt) {
+    for (const ir::Gate &g : m_.gates) {
+      double inf = out_[g.infOutput], tau = out_[g.tauOutput];
+      y_[g.state] = inf + (y_[g.state] - inf) * std::exp(-dt / tau);
+    }
+    for (const ir::Compartment &c : m_.compartments) {
+      double g = out_[c.gOutput], ge = out_[c.geOutput], other = out_[c.iOtherOutput];
+      double cap = p_[c.capacitanceParam];
+      double &v = y_[c.voltageState];
+      if (g > 0) {
+        double vInf = (ge - other) / g;
+        v = vInf + (v - vInf) * std::exp(-dt * g / cap);
+      } else {
+        v -= dt * other / cap;
+      }
+    }
+  }
+
+  void rk4Step(double t, double dt, std::vector<double> &k1, std::vector<double> &k2, std::vector<double> &k3,
+               std::vector<double> &k4, std::vector<double> &tmp, std::vector<double> &scratch) {
+    size_t n = y_.size();
+    derivative(y_.data(), out_.data(), k1.data()); // out_ already holds the outputs at (y, t)
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y_[i] + 0.5 * dt * k1[i];
+    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k2.data());
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y_[i] + 0.5 * dt * k2[i];
+    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k3.data());
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y_[i] + dt * k3[i];
+    evaluate(tmp.data(), t + dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k4.data());
+    for (size_t i = 0; i < n; ++i)
+      y_[i] += dt / 6 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
+  }
+
+  void fixedStep(bool rk4) {
+    const ir::Protocol &proto = m_.protocol;
+    double dt = proto.step;
+    long steps = std::lround(proto.duration / dt);
+    long every = std::max(1L, std::lround(proto.every / dt));
+    size_t n = y_.size();
+    std::vector<double> k1(n), k2(n), k3(n), k4(n), tmp(n), scratch(out_.size());
+    for (long i = 0; i <= steps; ++i) {
+      double t = i * dt; // no accumulated rounding in time
+      evaluate(y_.data(), t, out_.data());
+      if (i % every == 0 || i == steps)
+        record(t);
+      if (i == steps)
+        break;
+      if (rk4)
+        rk4Step(t, dt, k1, k2, k3, k4, tmp, scratch);
+      else
+        exponentialEulerStep(dt);
+      ++stats_.steps;
+      if (!healthy(y_, t + dt))
+        return;
+    }
+  }
+
+  // Dormand & Prince (1980) RK5(4)7M with FSAL and a standard step-size controller.
+  void dormandPrince() {
+    static const double c2 = 1.0 / 5, c3 = 3.0 / 10, c4 = 4.0 / 5, c5 = 8.0 / 9;
+    static const double a21 = 1.0 / 5;
+    static const double a31 = 3.0 / 40, a32 = 9.0 / 40;
+    static const double a41 = 44.0 / 45, a42 = -56.0 / 15, a43 = 32.0 / 9;
+    static const double a51 = 19372.0 / 6561, a52 = -25360.0 / 2187, a53 = 64448.0 / 6561, a54 = -212.0 / 729;
+    static const double a61 = 9017.0 / 3168, a62 = -355.0 / 33, a63 = 46732.0 / 5247, a64 = 49.0 / 176,
+                        a65 = -5103.0 / 18656;
+    static const double b1 = 35.0 / 384, b3 = 500.0 / 1113, b4 = 125.0 / 192, b5 = -2187.0 / 6784, b6 = 11.0 / 84;
+    static const double e1 = 71.0 / 57600, e3 = -71.0 / 16695, e4 = 71.0 / 1920, e5 = -17253.0 / 339200,
+                        e6 = 22.0 / 525, e7 = -1.0 / 40;
+    const ir::Protocol &proto = m_.protocol;
+    size_t n = y_.size();
+    std::vector<double> k1(n), k2(n), k3(n), k4(n), k5(n), k6(n), k7(n), tmp(n), ynew(n), scratch(out_.size());
+    double t = 0, h = proto.step;
+    long recordIndex = 0;
+    long recordCount = std::lround(proto.duration / proto.every);
+    evaluate(y_.data(), t, out_.data());
+    record(t);
+    ++recordIndex;
+    derivative(y_.data(), out_.data(), k1.data());
+    const long maxSteps = 100000000;
+    while (recordIndex <= recordCount) {
+      double target = std::min(recordIndex * proto.every, proto.duration);
+      bool hitsTarget = t + h >= target;
+      double step = hitsTarget ? target - t : h;
+      auto stage = [&](std::vector<double> &k, double ct, std::initializer_list<std::pair<double, const double *>> terms) {
+        for (size_t i = 0; i < n; ++i) {
+          double s = y_[i];
+          for (auto &[a, kj] : terms)
+            s += step * a * kj[i];
+          tmp[i] = s;
+        }
+        evaluate(tmp.data(), t + ct * step, scratch.data());
+        derivative(tmp.data(), scratch.data(), k.data());
+      };
+      stage(k2, c2, {{a21, k1.data()}});
+      stage(k3, c3, {{a31, k1.data()}, {a32, k2.data()}});
+      stage(k4, c4, {{a41, k1.data()}, {a42, k2.data()}, {a43, k3.data()}});
+      stage(k5, c5, {{a51, k1.data()}, {a52, k2.data()}, {a53, k3.data()}, {a54, k4.data()}});
+      stage(k6, 1, {{a61, k1.data()}, {a62, k2.data()}, {a63, k3.data()}, {a64, k4.data()}, {a65, k5.data()}});
+      for (size_t i = 0; i < n; ++i)
+        ynew[i] = y_[i] + step * (b1 * k1[i] + b3 * k3[i] + b4 * k4[i] + b5 * k5[i] + b6 * k6[i]);
+      evaluate(ynew.data(), t + step, scratch.data());
+      derivative(ynew.data(), scratch.data(), k7.data());
+      double err = 0;
+      for (size_t i = 0; i < n; ++i) {
+        double e = step * (e1 * k1[i] + e3 * k3[i] + e4 * k4[i] + e5 * k5[i] + e6 * k6[i] + e7 * k7[i]);
+        double scale = proto.atol + proto.rtol * std::max(std::fabs(y_[i]), std::fabs(ynew[i]));
+        err += (e / scale) * (e / scale);
+      }
+      err = std::sqrt(err / static_cast<double>(n));
+      if (!std::isfinite(err)) {
+        healthy(ynew, t + step);
+        if (!failure_.failed)
+          fail(t, 0, "the error estimate is not finite");
+        return;
+      }
+      if (++stats_.steps > maxSteps) {
+        fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
+        return;
+      }
+      double factor = err == 0 ? 5 : std::clamp(0.9 * std::pow(err, -0.2), 0.2, 5.0);
+      if (err <= 1) {
+        t = hitsTarget ? target : t + step;
+        y_.swap(ynew);
+        k1.swap(k7); // first same as last
+        out_.swap(scratch);
+        if (!healthy(y_, t))
+          return;
+        if (hitsTarget) {
+          record(t);
+          ++recordIndex;
+        }
+        // A step cut short to land on a recording time says little about the next one.
+        h = hitsTarget ? std::max(h, step * factor) : step * factor;
+      } else {
+        ++stats_.rejected;
+        h = step * std::max(factor, 0.2);
+      }
+      if (h < 1e-15) {
+        fail(t, 0, "the step size fell below 1e-15 s");
+        return;
+      }
+    }
+  }
+};
+
+} // namespace
+
+Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel, SimulationFailure &failure,
+               SimulationStats *stats) {
+  SimulationStats local;
+  return Stepper(model, params, kernel, failure, stats ? *stats : local).run();
+}
+
+} // namespace brine

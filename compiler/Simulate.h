@@ -1,0 +1,49 @@
+// Simulate.h - Stage 10: the steppers. Advance an ir::Model through its protocol with
+// exponential Euler (Rush-Larsen gates, exact exponential V update with frozen gates),
+// classical RK4, or adaptive Dormand-Prince 5(4), recording at the protocol's interval.
+#pragma once
+#include "IR.h"
+
+#include <string>
+#include <vector>
+
+namespace brine {
+class Interpreter;
+
+using KernelFn = void (*)(const double *y, const double *p, double t, double *out);
+
+/// Either a compiled kernel or the interpreter; the branch between them is predictable.
+struct KernelRef {
+  KernelFn native = nullptr;
+  Interpreter *interpreter = nullptr;
+  void operator()(const double *y, const double *p, double t, double *out) const;
+};
+
+/// Recorded samples: one row per recording time, one column per recorded quantity, in the
+/// quantities' display units (mV, uA/cm2, ...). Time is in seconds.
+struct Trace {
+  std::vector<std::string> names, units;
+  std::vector<double> time;
+  std::vector<double> values; // row-major: time.size() rows of names.size() values
+  size_t columns() const { return names.size(); }
+  double at(size_t row, size_t column) const { return values[row * names.size() + column]; }
+};
+
+struct SimulationFailure {
+  bool failed = false;
+  double time = 0;      // seconds
+  std::string variable; // state name
+  std::string reason;
+};
+
+struct SimulationStats {
+  long steps = 0;
+  long rejected = 0; // adaptive methods only
+  long kernelCalls = 0;
+};
+
+/// Runs the model's protocol with parameters `params` (same layout as model.params).
+Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel,
+               SimulationFailure &failure, SimulationStats *stats = nullptr);
+
+} // namespace brine
