@@ -50,10 +50,10 @@ TEST_CASE("the Q10 factor: factor^((t - reference)/10 K)", "[evaluate]") {
   auto c = compile("use std.math\n"
                    "const q: 1 = q10factor(3, 310.15 K, 279.45 K)\n"
                    "const same = q10factor(3, 300 K, 300 K)\n"
-                   "const step = q10factor(2, 310 K, 300 K)\n");
+                   "const phi = q10factor(2, 310 K, 300 K)\n");
   CHECK_THAT(constantValue(*c, "q"), WithinRel(std::pow(3.0, 3.07), 1e-13));
   CHECK(constantValue(*c, "same") == 1.0);
-  CHECK_THAT(constantValue(*c, "step"), WithinRel(2.0, 1e-15));
+  CHECK_THAT(constantValue(*c, "phi"), WithinRel(2.0, 1e-15));
 }
 
 TEST_CASE("if/then/else and the logical operators", "[evaluate]") {
