@@ -1,6 +1,7 @@
 // Commands.cpp - `brine check` and `brine show`: options, output and exit codes.
 #include "Commands.h"
 
+#include "Lower.h"
 #include "Pipeline.h"
 #include "Show.h"
 #include "parse/Parse.h"
@@ -29,7 +30,8 @@ options:
   --format text|json      diagnostics as text on stderr (default) or one JSON document on stdout
   --warnings-as-errors    fail (exit 65) when there are warnings
   --color auto|always|never  colour text diagnostics (default: auto, when stderr is a terminal)
-  --emit tokens|ast       print the token stream or the syntax tree of FILE instead of checking
+  --emit tokens|ast|ir    print the token stream, the syntax tree, or the lowered IR (states,
+                          parameters, kernel) of FILE's first protocol instead of checking
   --version               print the version
   --help                  show this help
 
@@ -100,8 +102,8 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
       if (o.color != "auto" && o.color != "always" && o.color != "never")
         return usageError("--color must be 'auto', 'always' or 'never'", help);
     } else if (allowCheckOptions && value("--emit", o.emit)) {
-      if (o.emit != "tokens" && o.emit != "ast")
-        return usageError("--emit must be 'tokens' or 'ast', not '" + o.emit + "'", help);
+      if (o.emit != "tokens" && o.emit != "ast" && o.emit != "ir")
+        return usageError("--emit must be 'tokens', 'ast' or 'ir', not '" + o.emit + "'", help);
     } else if (!allowCheckOptions && value("-o", o.output)) {
     } else if (a == "--") {
       o.files.insert(o.files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
@@ -182,6 +184,22 @@ int checkCommand(const std::vector<std::string> &args) {
     }
     if (o.emit == "tokens") {
       std::fputs(dumpTokens(*file).c_str(), stdout);
+      return Ok;
+    }
+    if (o.emit == "ir") {
+      Compilation full;
+      compileFile(o.files[0], full);
+      ir::Model model;
+      bool ok = full.diags.errorCount() == 0;
+      if (ok) {
+        auto all = protocols(full.program);
+        ok = lowerModel(full.program, full.model, full.evaluator, all.empty() ? nullptr : all.front(), full.diags,
+                        model);
+      }
+      printDiagnostics(full.diags, useColour(o.color));
+      if (!ok)
+        return SpecErrors;
+      std::fputs(ir::dump(model).c_str(), stdout);
       return Ok;
     }
     auto module = parse(*file, c.diags);

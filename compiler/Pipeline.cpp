@@ -4,6 +4,7 @@
 #include "CheckCharge.h"
 #include "CheckPhysics.h"
 #include "CheckUnits.h"
+#include "Lower.h"
 #include "Modules.h"
 
 #include <filesystem>
@@ -25,7 +26,15 @@ void run(const SourceFile &root, Compilation &c) {
     return;
   bool charge = checkCharge(c.program, c.model, c.diags);
   bool physics = checkPhysics(c.program, c.model, c.evaluator, c.diags);
-  c.checked = charge && physics && c.diags.errorCount() == 0;
+  if (!charge || !physics)
+    return;
+  // Every protocol is lowered once, so `check` finds what `run` would refuse.
+  bool lowered = true;
+  for (const ast::ProtocolDecl *p : protocols(c.program)) {
+    ir::Model model;
+    lowered = lowerModel(c.program, c.model, c.evaluator, p, c.diags, model) && lowered;
+  }
+  c.checked = lowered && c.diags.errorCount() == 0;
 }
 
 } // namespace
