@@ -7,6 +7,7 @@
 
 #include <cmath>
 #include <limits>
+#include <map>
 #include <random>
 #include <string>
 #include <vector>
@@ -137,6 +138,12 @@ std::vector<Bounded> referenceBounded(const ir::Kernel &k, const double *y, cons
       x.ambiguous = a.ambiguous || close(a.v, a.e) || chosen.ambiguous;
       break;
     }
+    }
+    if (x.ambiguous && !a.ambiguous && !b.ambiguous) {
+      static std::map<std::string, int> origin; static int cnt = 0;
+      std::string key = std::string(ir::opName(n.op)) + (std::isnan(a.v)||std::isnan(b.v) ? " nanv" : "") + (std::isnan(a.e)||std::isnan(b.e) ? " nane" : "") + (std::isinf(a.e)||std::isinf(b.e) ? " infe" : "") + (n.a==n.b ? " same" : "");
+      ++origin[key];
+      if (++cnt % 5000 == 0) { for (auto &[kk, vv] : origin) printf("%s:%d ", kk.c_str(), vv); printf("\n"); }
     }
     if (n.op != Op::Select)
       x.ambiguous = x.ambiguous || a.ambiguous || b.ambiguous;
