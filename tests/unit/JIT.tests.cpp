@@ -7,7 +7,6 @@
 
 #include <cmath>
 #include <limits>
-#include <map>
 #include <random>
 #include <string>
 #include <vector>
@@ -139,12 +138,13 @@ std::vector<Bounded> referenceBounded(const ir::Kernel &k, const double *y, cons
       break;
     }
     }
-    if (x.ambiguous && !a.ambiguous && !b.ambiguous) {
-      static std::map<std::string, int> origin; static int cnt = 0;
-      std::string key = std::string(ir::opName(n.op)) + (std::isnan(a.v)||std::isnan(b.v) ? " nanv" : "") + (std::isnan(a.e)||std::isnan(b.e) ? " nane" : "") + (std::isinf(a.e)||std::isinf(b.e) ? " infe" : "") + (n.a==n.b ? " same" : "");
-      ++origin[key];
-      if (++cnt % 5000 == 0) { for (auto &[kk, vv] : origin) printf("%s:%d ", kk.c_str(), vv); printf("\n"); }
-    }
+    // Exact operands give identical results in both evaluations, bar the operation's own
+    // rounding; the same node on both sides of a comparison compares identically too.
+    bool exactOperands = a.e == 0 && b.e == 0 && (n.op != Op::Select || r[n.c].e == 0);
+    if (exactOperands && n.op != Op::Select)
+      x.e = std::isfinite(x.v) ? own : 0;
+    if (exactOperands || (n.a == n.b && ir::arity(n.op) == 2))
+      x.ambiguous = false;
     if (n.op != Op::Select)
       x.ambiguous = x.ambiguous || a.ambiguous || b.ambiguous;
     plain.push_back(x.v);
@@ -379,7 +379,7 @@ TEST_CASE("random kernels of every operation match C++ within their rounding bou
       case Op::Expm1: n = k.unary(op, k.unary(Op::Tanh, a)); break; // keep magnitudes finite
       case Op::Log:
       case Op::Log10:
-      case Op::Sqrt: n = k.unary(op, rng() % 2 ? k.unary(Op::Abs, a) : a); break;
+      case Op::Sqrt: n = k.unary(op, rng() % 4 ? k.unary(Op::Abs, a) : a); break;
       case Op::Pow: n = k.binary(op, k.unary(Op::Abs, a), k.unary(Op::Tanh, b)); break;
       case Op::Select: n = k.select(k.binary(Op::Lt, a, b), pick(), pick()); break;
       default: n = ir::arity(op) == 1 ? k.unary(op, a) : k.binary(op, a, b); break;
@@ -400,12 +400,8 @@ TEST_CASE("random kernels of every operation match C++ within their rounding bou
       std::vector<double> got = run(f, k, y, p, t);
       for (size_t i = 0; i < want.size(); ++i) {
         ++total;
-        if (want[i].ambiguous || !std::isfinite(want[i].e)) {
-          static int amb = 0, nan = 0, inf = 0;
-          if (want[i].ambiguous) ++amb; else if (std::isnan(want[i].e)) ++nan; else ++inf;
-          if ((amb + nan + inf) % 20000 == 0) printf("amb %d nan %d inf %d\n", amb, nan, inf);
+        if (want[i].ambiguous || !std::isfinite(want[i].e))
           continue;
-        }
         ++checked;
         double tolerance = std::fmax(2 * want[i].e, 1e-13 * std::fabs(want[i].v));
         INFO("seed " << seed << " sample " << sample << " output " << i << " want " << want[i].v << " +- "
