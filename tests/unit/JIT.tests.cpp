@@ -140,7 +140,8 @@ std::vector<Bounded> referenceBounded(const ir::Kernel &k, const double *y, cons
     }
     // Exact operands give identical results in both evaluations, bar the operation's own
     // rounding; the same node on both sides of a comparison compares identically too.
-    bool exactOperands = a.e == 0 && b.e == 0 && (n.op != Op::Select || r[n.c].e == 0);
+    bool exactOperands = a.e == 0 && b.e == 0 && !a.ambiguous && !b.ambiguous &&
+                         (n.op != Op::Select || (r[n.c].e == 0 && !r[n.c].ambiguous));
     if (exactOperands && n.op != Op::Select)
       x.e = std::isfinite(x.v) ? own : 0;
     if (exactOperands || (n.a == n.b && ir::arity(n.op) == 2))
