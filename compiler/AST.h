@@ -329,6 +329,32 @@ struct RecordTarget {
   SourceRange range;
 };
 
+/// clamp COMPARTMENT at LEVEL [from T1 to T2]: a voltage clamp; without a window it holds
+/// for the whole run, with one it sets the level inside the window.
+struct Clamp {
+  std::string compartment;
+  SourceRange compartmentRange;
+  SourceRange range;
+  ExprPtr level, from, to;
+  const CompartmentDecl *target = nullptr; // set by Resolve
+};
+
+enum class SynapseShape { SingleExponential, DoubleExponential, Alpha };
+
+/// synapse COMPARTMENT GMAX reversal E <shape> <times>: a conductance input whose time
+/// course (peak 1) starts at each event time.
+struct Synapse {
+  std::string compartment;
+  SourceRange compartmentRange;
+  SourceRange range;
+  ExprPtr conductance, reversal;
+  SynapseShape shape = SynapseShape::SingleExponential;
+  ExprPtr rise, decay, peak;
+  std::vector<ExprPtr> times;  // listed event times
+  ExprPtr every, from, to;     // or a regular train
+  const CompartmentDecl *target = nullptr; // set by Resolve
+};
+
 /// protocol NAME { ... }: how to simulate the model and what to record.
 struct ProtocolDecl : Decl {
   ProtocolDecl(SourceRange r) : Decl(DeclKind::Protocol, r) {}
@@ -336,6 +362,8 @@ struct ProtocolDecl : Decl {
   SourceRange methodRange;
   ExprPtr step, tolerance, duration, every;
   std::vector<Injection> injections;
+  std::vector<Clamp> clamps;
+  std::vector<Synapse> synapses;
   std::vector<RecordTarget> records;
   static bool classof(const Decl *d) { return d->kind == DeclKind::Protocol; }
 };

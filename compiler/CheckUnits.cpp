@@ -164,6 +164,28 @@ private:
       expect(i.from.get(), dims::time(), "the start of an injection");
       expect(i.to.get(), dims::time(), "the end of an injection");
     }
+    for (Clamp &c : p.clamps) {
+      expect(c.level.get(), dims::voltage(), "a clamp level");
+      expect(c.from.get(), dims::time(), "the start of a clamp step");
+      expect(c.to.get(), dims::time(), "the end of a clamp step");
+    }
+    for (Synapse &s : p.synapses) {
+      if (s.conductance) {
+        ExprType t = infer(*s.conductance);
+        if (t.known && t.dim != dims::conductanceDensity() && t.dim != dims::conductanceDensity() * dims::area())
+          mismatch(s.conductance->range, "a synaptic conductance", "a conductance (nS) or a conductance density (mS/cm2)",
+                   t.dim);
+      }
+      expect(s.reversal.get(), dims::voltage(), "a synaptic reversal potential");
+      expect(s.rise.get(), dims::time(), "a synaptic rise time");
+      expect(s.decay.get(), dims::time(), "a synaptic decay time");
+      expect(s.peak.get(), dims::time(), "a synaptic time to peak");
+      for (auto &t : s.times)
+        expect(t.get(), dims::time(), "a synaptic event time");
+      expect(s.every.get(), dims::time(), "a synaptic event interval");
+      expect(s.from.get(), dims::time(), "the start of a synaptic train");
+      expect(s.to.get(), dims::time(), "the end of a synaptic train");
+    }
   }
 
   void channel(ChannelDecl &c) {

@@ -134,7 +134,7 @@ llvm::Value *KernelEmitter::emitNode(const ir::Node &n) {
   case Op::Exp: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::exp, a());
   case Op::Expm1: return libmCall("expm1", a());
   case Op::Log: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log, a());
-  case Op::Log10: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log, a());
+  case Op::Log10: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log10, a());
   case Op::Sqrt: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::sqrt, a());
   case Op::Abs: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::fabs, a());
   // minnum/maxnum are fmin/fmax: a NaN operand yields the other operand.

@@ -77,6 +77,9 @@ struct Compartment {
   int gOutput = -1;      // S/m^2
   int geOutput = -1;     // A/m^2
   int iOtherOutput = -1; // A/m^2
+  // Voltage clamp: while clampedOutput is non-zero, V is held at commandOutput (volts).
+  int clampedOutput = -1; // -1: never clamped
+  int commandOutput = -1;
 };
 
 /// A quantity that can be recorded: a state or a kernel output.

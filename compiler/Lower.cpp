@@ -374,6 +374,125 @@ private:
     return num(0);
   }
 
+  // The time course of one synaptic event, peak 1, at s = t - onset >= 0.
+  NodeId waveform(const Synapse &syn, NodeId s) {
+    auto neg = [&](NodeId x) { return k_.unary(Op::Neg, x); };
+    auto decayOf = [&](double tau) { return k_.unary(Op::Exp, neg(div(s, num(tau)))); };
+    switch (syn.shape) {
+    case SynapseShape::SingleExponential: {
+      auto decay = time(syn.decay.get());
+      if (!decay || *decay <= 0) {
+        fail(syn.range, "a synaptic decay time must be positive");
+        return num(0);
+      }
+      return decayOf(*decay);
+    }
+    case SynapseShape::DoubleExponential: {
+      auto rise = time(syn.rise.get()), decay = time(syn.decay.get());
+      if (!rise || !decay || *rise <= 0 || *decay <= *rise) {
+        fail(syn.range, "a synapse needs 0 < rise < decay");
+        return num(0);
+      }
+      double peakTime = *rise * *decay / (*decay - *rise) * std::log(*decay / *rise);
+      double norm = std::exp(-peakTime / *decay) - std::exp(-peakTime / *rise);
+      return div(sub(decayOf(*decay), decayOf(*rise)), num(norm));
+    }
+    case SynapseShape::Alpha: {
+      auto peak = time(syn.peak.get());
+      if (!peak || *peak <= 0) {
+        fail(syn.range, "a synaptic time to peak must be positive");
+        return num(0);
+      }
+      NodeId x = div(s, num(*peak)); // (s/tp) e^(1 - s/tp)
+      return mul(x, k_.unary(Op::Exp, sub(num(1), x)));
+    }
+    }
+    return num(0);
+  }
+
+  // A conductance input: linear in V, so it joins G and GE and stays exact under
+  // exponential Euler.
+  void synapse(const Synapse &syn, const CompartmentValues &c, Currents &cur, const Env &env, int number) {
+    auto gmax = time(syn.conductance.get());
+    auto reversal = time(syn.reversal.get());
+    if (!gmax || !reversal || *gmax < 0) {
+      fail(syn.range, "a synapse needs a non-negative conductance and a reversal potential");
+      return;
+    }
+    double perArea = 1;
+    if (syn.conductance->type.dim != dims::conductanceDensity()) {
+      if (!c.area || *c.area <= 0) {
+        fail(syn.conductance->range, "an absolute conductance needs the area of compartment '" + c.decl->name + "'");
+        return;
+      }
+      perArea = 1 / *c.area;
+    }
+    std::vector<double> onsets;
+    for (auto &t : syn.times)
+      if (auto v = time(t.get()))
+        onsets.push_back(*v);
+    if (syn.every) {
+      auto every = time(syn.every.get()), from = time(syn.from.get()), to = time(syn.to.get());
+      if (!every || !from || !to || *every <= 0 || *to < *from) {
+        fail(syn.range, "a synaptic train needs a positive interval and an end after its start");
+        return;
+      }
+      for (double t = *from; t < *to && onsets.size() <= 1000; t = *from + static_cast<double>(onsets.size()) * *every)
+        onsets.push_back(t);
+    }
+    if (onsets.size() > 1000) {
+      fail(syn.range, "a synapse may have at most 1000 events");
+      return;
+    }
+    NodeId t = k_.time();
+    NodeId sum = num(0);
+    for (double onset : onsets) {
+      NodeId s = sub(t, num(onset));
+      sum = add(sum, k_.select(k_.binary(Op::Ge, t, num(onset)), waveform(syn, s), num(0)));
+    }
+    NodeId g = mul(num(*gmax * perArea), sum);
+    cur.g = add(cur.g, g);
+    cur.ge = add(cur.ge, mul(g, num(*reversal)));
+    std::string prefix = c.decl->name + ".synapse" + std::to_string(number);
+    recordable(prefix + ".conductance", "mS/cm2", 0.1, g);
+    recordable(prefix + ".current", "uA/cm2", 100, mul(g, sub(env.voltage, num(*reversal))));
+  }
+
+  void clamps(const ProtocolDecl &p, const CompartmentValues &c, ir::Compartment &comp) {
+    const Clamp *holding = nullptr;
+    std::vector<const Clamp *> steps;
+    for (const Clamp &cl : p.clamps) {
+      if (cl.target != c.decl)
+        continue;
+      if (!cl.from) {
+        if (holding) {
+          fail(cl.range, "compartment '" + c.decl->name + "' already has a holding potential");
+          continue;
+        }
+        holding = &cl;
+      } else {
+        steps.push_back(&cl);
+      }
+    }
+    if (!holding && steps.empty())
+      return;
+    NodeId t = k_.time();
+    NodeId command = holding ? num(time(holding->level.get()).value_or(NAN)) : num(0);
+    NodeId clamped = num(holding ? 1 : 0);
+    for (auto it = steps.rbegin(); it != steps.rend(); ++it) { // earlier lines win where windows overlap
+      auto level = time((*it)->level.get()), from = time((*it)->from.get()), to = time((*it)->to.get());
+      if (!level || !from || !to || *to <= *from) {
+        fail((*it)->range, "a clamp step needs a level and an end after its start");
+        continue;
+      }
+      NodeId inside = k_.binary(Op::And, k_.binary(Op::Ge, t, num(*from)), k_.binary(Op::Lt, t, num(*to)));
+      command = k_.select(inside, num(*level), command);
+      clamped = k_.binary(Op::Or, inside, clamped);
+    }
+    comp.clampedOutput = k_.addOutput(clamped);
+    comp.commandOutput = k_.addOutput(command);
+  }
+
   void compartment(const CompartmentValues &c, const ProtocolDecl *protocol) {
     const CompartmentDecl &d = *c.decl;
     if (!c.initialV) {
@@ -398,10 +517,16 @@ private:
       else if (p.pump)
         pump(p, c, cur, env);
     }
-    if (protocol)
+    if (protocol) {
       for (const Injection &inj : protocol->injections)
         if (inj.target == &d)
           cur.stimulus = add(cur.stimulus, injection(inj, c));
+      int number = 0;
+      for (const Synapse &syn : protocol->synapses)
+        if (syn.target == &d)
+          synapse(syn, c, cur, env, ++number);
+      clamps(*protocol, c, comp);
+    }
     NodeId ionic = add(sub(mul(cur.g, env.voltage), cur.ge), cur.other);
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
@@ -409,6 +534,9 @@ private:
     out_.compartments.push_back(comp);
     out_.recordables.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
     recordable(d.name + ".membrane_current", "uA/cm2", 100, ionic);
+    if (comp.clampedOutput >= 0) // while clamped, the amplifier supplies the ionic current
+      recordable(d.name + ".clamp_current", "uA/cm2", 100,
+                 mul(k_.outputs[comp.clampedOutput], ionic));
     recordable(d.name + ".injected", "uA/cm2", 100, cur.stimulus);
   }
 

@@ -231,16 +231,20 @@ private:
       for (Injection &i : p.injections) {
         for (Expr *e : {i.amplitude.get(), i.amplitudeEnd.get(), i.width.get(), i.period.get(), i.from.get(), i.to.get()})
           expr(e, plain);
-        Decl *target = lookup(i.compartment);
-        if (!target)
-          unknown(i.compartmentRange, i.compartment, "compartment", {DeclKind::Compartment});
-        else if (auto *c = dyn_cast<CompartmentDecl>(target))
-          i.target = c;
-        else {
-          auto &diag = diags_.error(i.compartmentRange, "'" + i.compartment + "' is " + article(target->kind) +
-                                                            ", not a compartment");
-          DiagnosticEngine::note(diag, target->nameRange, "declared here");
-        }
+        i.target = compartmentNamed(i.compartment, i.compartmentRange);
+      }
+      for (Clamp &c : p.clamps) {
+        for (Expr *e : {c.level.get(), c.from.get(), c.to.get()})
+          expr(e, plain);
+        c.target = compartmentNamed(c.compartment, c.compartmentRange);
+      }
+      for (Synapse &s : p.synapses) {
+        for (Expr *e : {s.conductance.get(), s.reversal.get(), s.rise.get(), s.decay.get(), s.peak.get(),
+                        s.every.get(), s.from.get(), s.to.get()})
+          expr(e, plain);
+        for (auto &t : s.times)
+          expr(t.get(), plain);
+        s.target = compartmentNamed(s.compartment, s.compartmentRange);
       }
       return;
     }
@@ -254,6 +258,19 @@ private:
       return;
     }
     }
+  }
+
+  const CompartmentDecl *compartmentNamed(const std::string &name, SourceRange at) {
+    Decl *target = lookup(name);
+    if (!target) {
+      unknown(at, name, "compartment", {DeclKind::Compartment});
+      return nullptr;
+    }
+    if (auto *c = dyn_cast<CompartmentDecl>(target))
+      return c;
+    auto &diag = diags_.error(at, "'" + name + "' is " + article(target->kind) + ", not a compartment");
+    DiagnosticEngine::note(diag, target->nameRange, "declared here");
+    return nullptr;
   }
 
   void solution(SolutionBody &body) {

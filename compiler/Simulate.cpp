@@ -62,6 +62,18 @@ private:
     ++stats_.kernelCalls;
   }
 
+  // Holds clamped potentials at their command; re-evaluates when a potential moved.
+  void applyClamps(double t) {
+    bool moved = false;
+    for (const ir::Compartment &c : m_.compartments)
+      if (c.clampedOutput >= 0 && out_[c.clampedOutput] != 0 && y_[c.voltageState] != out_[c.commandOutput]) {
+        y_[c.voltageState] = out_[c.commandOutput];
+        moved = true;
+      }
+    if (moved)
+      evaluate(y_.data(), t, out_.data());
+  }
+
   // Records the current state; out_ must hold the kernel outputs at (y_, t).
   void record(double t) {
     trace_.time.push_back(t);
@@ -99,7 +111,8 @@ private:
     for (const ir::Compartment &c : m_.compartments) {
       double v = y[c.voltageState];
       double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
-      dydt[c.voltageState] = -current / p_[c.capacitanceParam];
+      bool clamped = c.clampedOutput >= 0 && out[c.clampedOutput] != 0;
+      dydt[c.voltageState] = clamped ? 0 : -current / p_[c.capacitanceParam];
     }
   }
 
@@ -110,6 +123,8 @@ private:
       y_[g.state] = inf + (y_[g.state] - inf) * std::exp(-dt / tau);
     }
     for (const ir::Compartment &c : m_.compartments) {
+      if (c.clampedOutput >= 0 && out_[c.clampedOutput] != 0)
+        continue; // held by the clamp; set again at the next step's start
       double g = out_[c.gOutput], ge = out_[c.geOutput], other = out_[c.iOtherOutput];
       double cap = p_[c.capacitanceParam];
       double &v = y_[c.voltageState];
@@ -152,6 +167,7 @@ private:
     for (long i = 0; i <= steps; ++i) {
       double t = i * dt; // no accumulated rounding in time
       evaluate(y_.data(), t, out_.data());
+      applyClamps(t);
       if (i % every == 0 || i == steps)
         record(t);
       if (i == steps)
@@ -185,6 +201,7 @@ private:
     long recordIndex = 0;
     long recordCount = std::lround(proto.duration / proto.every);
     evaluate(y_.data(), t, out_.data());
+    applyClamps(t);
     record(t);
     ++recordIndex;
     derivative(y_.data(), out_.data(), k1.data());
@@ -235,6 +252,7 @@ private:
         y_.swap(ynew);
         k1.swap(k7); // first same as last
         out_.swap(scratch);
+        applyClamps(t);
         if (!healthy(y_, t))
           return;
         if (hitsTarget) {

@@ -30,7 +30,7 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
      | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
-     | RECORD ;
+     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -93,6 +93,8 @@ protocolItem
   | DURATION expr                                 # durationItem
   | INJECT IDENT injection                        # injectItem
   | RECORD recordTarget (',' recordTarget)* (EVERY expr)?   # recordItem
+  | CLAMP IDENT AT expr (FROM expr TO expr)?      # clampItem
+  | SYNAPSE IDENT expr REVERSAL expr synapseShape synapseTimes   # synapseItem
   | ';'                                           # emptyProtocolItem
   ;
 injection
@@ -101,6 +103,15 @@ injection
   | expr FROM expr TO expr                                # stepInjection
   ;
 recordTarget : word ('.' word)* ;
+synapseShape
+  : RISE expr DECAY expr                          # doubleExponential
+  | DECAY expr                                    # singleExponential
+  | PEAK expr                                     # alphaShape
+  ;
+synapseTimes
+  : AT expr (',' expr)*                           # listedTimes
+  | EVERY expr FROM expr TO expr                  # regularTimes
+  ;
 
 expr
   : IF expr THEN expr ELSE expr                   # ifExpr
@@ -183,6 +194,11 @@ EVERY : 'every' ;
 FROM : 'from' ;
 TO : 'to' ;
 RECORD : 'record' ;
+CLAMP : 'clamp' ;
+SYNAPSE : 'synapse' ;
+RISE : 'rise' ;
+DECAY : 'decay' ;
+PEAK : 'peak' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

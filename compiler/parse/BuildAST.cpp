@@ -659,6 +659,49 @@ private:
         }
         d->injections.push_back(std::move(inj));
       }
+      if (auto *c = dynamic_cast<P::ClampItemContext *>(item)) {
+        // CLAMP IDENT AT expr (FROM expr TO expr)?
+        Clamp clamp;
+        clamp.compartment = c->IDENT()->getText();
+        clamp.compartmentRange = range(c->IDENT());
+        clamp.range = range(c);
+        clamp.level = build(c->expr(0));
+        if (c->expr().size() == 3) {
+          clamp.from = build(c->expr(1));
+          clamp.to = build(c->expr(2));
+        }
+        d->clamps.push_back(std::move(clamp));
+      }
+      if (auto *c = dynamic_cast<P::SynapseItemContext *>(item)) {
+        // SYNAPSE IDENT expr REVERSAL expr synapseShape synapseTimes
+        Synapse syn;
+        syn.compartment = c->IDENT()->getText();
+        syn.compartmentRange = range(c->IDENT());
+        syn.range = range(c);
+        syn.conductance = build(c->expr(0));
+        syn.reversal = build(c->expr(1));
+        if (auto *s2 = dynamic_cast<P::DoubleExponentialContext *>(c->synapseShape())) {
+          syn.shape = SynapseShape::DoubleExponential;
+          syn.rise = build(s2->expr(0));
+          syn.decay = build(s2->expr(1));
+        } else if (auto *s1 = dynamic_cast<P::SingleExponentialContext *>(c->synapseShape())) {
+          syn.decay = build(s1->expr());
+        } else {
+          auto *a = static_cast<P::AlphaShapeContext *>(c->synapseShape());
+          syn.shape = SynapseShape::Alpha;
+          syn.peak = build(a->expr());
+        }
+        if (auto *l = dynamic_cast<P::ListedTimesContext *>(c->synapseTimes())) {
+          for (P::ExprContext *t : l->expr())
+            syn.times.push_back(build(t));
+        } else {
+          auto *r = static_cast<P::RegularTimesContext *>(c->synapseTimes());
+          syn.every = build(r->expr(0));
+          syn.from = build(r->expr(1));
+          syn.to = build(r->expr(2));
+        }
+        d->synapses.push_back(std::move(syn));
+      }
       if (auto *c = dynamic_cast<P::RecordItemContext *>(item)) {
         // RECORD recordTarget (',' recordTarget)* (EVERY expr)?
         if (!d->records.empty()) {
