@@ -2,6 +2,7 @@
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
 
+#include "Fuse.h"
 #include "Interpret.h"
 #include "Lower.h"
 #include "Measures.h"
@@ -267,20 +268,29 @@ int runCommand(const std::vector<std::string> &args) {
   }
 
   auto started = std::chrono::steady_clock::now();
+  // Exponential Euler runs a kernel with the step fused in; the other methods the plain one.
+  std::optional<ir::Kernel> fusedKernel;
+  if (model.protocol.method == ir::Method::ExponentialEuler)
+    fusedKernel = fuseExponentialEuler(model, model.protocol.step);
+  const ir::Kernel &toCompile = fusedKernel ? *fusedKernel : model.kernel;
   KernelRef kernel;
   Interpreter interpreter(model.kernel);
+  Interpreter fusedInterpreter(toCompile);
   kernel.interpreter = &interpreter;
+  FusedStep fused;
+  fused.available = fusedKernel.has_value();
+  fused.kernel.interpreter = &fusedInterpreter;
 #ifdef BRINE_HAVE_JIT
   std::unique_ptr<JIT> jit;
   if (o.engine == "jit") {
     std::string error;
     jit = JIT::create(error);
-    if (jit)
-      kernel.native = jit->compile(model.kernel, error);
-    if (!kernel.native) {
+    KernelFn native = jit ? jit->compile(toCompile, error) : nullptr;
+    if (!native) {
       std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", error.c_str());
       return Internal;
     }
+    (fusedKernel ? fused.kernel : kernel).native = native;
   }
 #else
   if (o.engine == "jit")
@@ -289,7 +299,7 @@ int runCommand(const std::vector<std::string> &args) {
   auto compiled = std::chrono::steady_clock::now();
   SimulationFailure failure;
   SimulationStats stats;
-  Trace trace = simulate(model, params, kernel, failure, &stats);
+  Trace trace = simulate(model, params, kernel, failure, &stats, fused);
   auto finished = std::chrono::steady_clock::now();
   if (failure.failed) {
     std::fprintf(stderr, "brine: error: the simulation failed at t = %.6g ms: '%s' %s\n", failure.time * 1e3,

@@ -23,8 +23,8 @@ constexpr double maxPotential = 2.0; // volts
 class Stepper {
 public:
   Stepper(const ir::Model &m, const std::vector<double> &params, KernelRef kernel, SimulationFailure &failure,
-          SimulationStats &stats)
-      : m_(m), p_(params), kernel_(kernel), failure_(failure), stats_(stats), y_(m.initialState),
+          SimulationStats &stats, FusedStep fused)
+      : m_(m), p_(params), kernel_(kernel), fused_(fused), failure_(failure), stats_(stats), y_(m.initialState),
         out_(m.kernel.outputs.size()) {
     const ir::Protocol &proto = m.protocol;
     for (int r : proto.record) {
@@ -36,7 +36,10 @@ public:
   Trace run() {
     switch (m_.protocol.method) {
     case ir::Method::ExponentialEuler:
-      fixedStep(false);
+      if (fused_.available)
+        fusedSteps();
+      else
+        fixedStep(false);
       break;
     case ir::Method::RungeKutta4:
       fixedStep(true);
@@ -52,6 +55,7 @@ private:
   const ir::Model &m_;
   const std::vector<double> &p_;
   KernelRef kernel_;
+  FusedStep fused_;
   SimulationFailure &failure_;
   SimulationStats &stats_;
   std::vector<double> y_, out_;
@@ -155,6 +159,31 @@ private:
     derivative(tmp.data(), scratch.data(), k4.data());
     for (size_t i = 0; i < n; ++i)
       y_[i] += dt / 6 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
+  }
+
+  // Exponential Euler with the step inside the kernel: one call per step.
+  void fusedSteps() {
+    const ir::Protocol &proto = m_.protocol;
+    double dt = proto.step;
+    long steps = std::lround(proto.duration / dt);
+    long every = std::max(1L, std::lround(proto.every / dt));
+    size_t n = y_.size();
+    std::vector<double> buffer(n + out_.size());
+    for (long i = 0; i <= steps; ++i) {
+      double t = i * dt;
+      fused_.kernel(y_.data(), p_.data(), t, buffer.data());
+      ++stats_.kernelCalls;
+      if (i % every == 0 || i == steps) {
+        std::copy(buffer.begin() + static_cast<long>(n), buffer.end(), out_.begin());
+        record(t);
+      }
+      if (i == steps)
+        break;
+      std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
+      ++stats_.steps;
+      if (!healthy(y_, t + dt))
+        return;
+    }
   }
 
   void fixedStep(bool rk4) {
@@ -276,9 +305,9 @@ private:
 } // namespace
 
 Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel, SimulationFailure &failure,
-               SimulationStats *stats) {
+               SimulationStats *stats, FusedStep fused) {
   SimulationStats local;
-  return Stepper(model, params, kernel, failure, stats ? *stats : local).run();
+  return Stepper(model, params, kernel, failure, stats ? *stats : local, fused).run();
 }
 
 } // namespace brine

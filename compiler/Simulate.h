@@ -42,8 +42,16 @@ struct SimulationStats {
   long kernelCalls = 0;
 };
 
-/// Runs the model's protocol with parameters `params` (same layout as model.params).
+/// A fused exponential Euler step (Fuse.h): out[0..states) is the next state, then the
+/// model kernel's outputs at the current state.
+struct FusedStep {
+  KernelRef kernel;
+  bool available = false;
+};
+
+/// Runs the model's protocol with parameters `params` (same layout as model.params). With
+/// exponential Euler and a fused step available, each step is one call of `fused`.
 Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel,
-               SimulationFailure &failure, SimulationStats *stats = nullptr);
+               SimulationFailure &failure, SimulationStats *stats = nullptr, FusedStep fused = {});
 
 } // namespace brine

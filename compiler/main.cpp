@@ -20,6 +20,7 @@ commands:
   check FILE...   check specs for syntax, units, charge and physical plausibility
   show FILE       print the resolved model: concentrations, reversal potentials, GHK rest
   run FILE        simulate one of the spec's protocols and write the recorded traces
+  rest FILE       find every steady state with no injected current, and its stability
   help [COMMAND]  show this help, or a command's help
 
 options:
@@ -65,6 +66,8 @@ int main(int argc, char **argv) {
       return brine::cli::showCommand(rest);
     if (command == "run")
       return brine::cli::runCommand(rest);
+    if (command == "rest")
+      return brine::cli::restCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
     return brine::cli::Usage;
   } catch (const std::exception &e) {

@@ -1,0 +1,58 @@
+// Fuse.cpp - Stage 9a: the exponential Euler step written into the kernel itself.
+#include "Fuse.h"
+
+#include <cmath>
+
+namespace brine {
+
+using ir::NodeId;
+using ir::Op;
+
+std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
+  for (const ir::Compartment &c : m.compartments)
+    if (c.clampedOutput >= 0)
+      return std::nullopt;
+  ir::Kernel k;
+  // Copy the model's kernel node by node (the copy re-shares and re-folds as it goes).
+  const auto &nodes = m.kernel.nodes();
+  std::vector<NodeId> map(nodes.size());
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    const ir::Node &n = nodes[i];
+    switch (n.op) {
+    case Op::Const: map[i] = k.constant(n.constant); break;
+    case Op::State: map[i] = k.state(n.index); break;
+    case Op::Param: map[i] = k.param(n.index); break;
+    case Op::Time: map[i] = k.time(); break;
+    case Op::Select: map[i] = k.select(map[n.a], map[n.b], map[n.c], n.loc); break;
+    default:
+      map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
+    }
+  }
+  auto output = [&](int slot) { return map[m.kernel.outputs[slot]]; };
+  std::vector<NodeId> next(m.stateNames.size(), -1);
+  for (size_t s = 0; s < next.size(); ++s)
+    next[s] = k.state(static_cast<int>(s));
+  // Gates: x + (inf - x)(1 - e^(-dt/tau)), the Rush-Larsen update.
+  for (const ir::Gate &g : m.gates) {
+    NodeId inf = output(g.infOutput), tau = output(g.tauOutput), x = k.state(g.state);
+    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.constant(dt), tau)));
+    next[g.state] = k.binary(Op::Add, inf, k.binary(Op::Mul, k.binary(Op::Sub, x, inf), decay));
+  }
+  // V: the exact exponential relaxation of C V' = GE - G V - Iother with the gates frozen.
+  for (const ir::Compartment &c : m.compartments) {
+    NodeId g = output(c.gOutput), ge = output(c.geOutput), other = output(c.iOtherOutput);
+    NodeId v = k.state(c.voltageState), cap = k.param(c.capacitanceParam);
+    NodeId vInf = k.binary(Op::Div, k.binary(Op::Sub, ge, other), g);
+    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.binary(Op::Mul, k.constant(dt), g), cap)));
+    NodeId relaxed = k.binary(Op::Add, vInf, k.binary(Op::Mul, k.binary(Op::Sub, v, vInf), decay));
+    NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Div, k.binary(Op::Mul, k.constant(dt), other), cap));
+    next[c.voltageState] = k.select(k.binary(Op::Gt, g, k.constant(0)), relaxed, explicitStep);
+  }
+  for (NodeId n : next)
+    k.addOutput(n);
+  for (size_t i = 0; i < m.kernel.outputs.size(); ++i)
+    k.addOutput(output(static_cast<int>(i)));
+  return k;
+}
+
+} // namespace brine

@@ -1,0 +1,18 @@
+// Fuse.h - Stage 9a: fuses a model's kernel with one exponential Euler step.
+//
+// The fused kernel computes, from (y, p, t), the next state after a step of `dt` in
+// out[0..states) followed by every output of the model's kernel (for recording), so a
+// step is one call into native code with nothing left for the C++ loop but a copy.
+// Both the JIT and the interpreter run the same fused kernel, so they stay comparable.
+#pragma once
+#include "IR.h"
+
+#include <optional>
+
+namespace brine {
+
+/// The fused step kernel, or nullopt when the model needs the general stepper (a voltage
+/// clamp, whose command replaces V, is handled there).
+std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt);
+
+} // namespace brine

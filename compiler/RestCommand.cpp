@@ -1,0 +1,246 @@
+// RestCommand.cpp - `brine rest`: every steady state of each compartment, its stability,
+// gates and currents (the analysis is in Rest.cpp).
+#include "Commands.h"
+
+#include "Lower.h"
+#include "Pipeline.h"
+#include "Rest.h"
+
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <exception>
+#include <nlohmann/json.hpp>
+#include <optional>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *restHelp = R"(usage: brine rest [options] FILE
+
+Finds every steady state of each compartment with no injected current: the potentials V
+where, with every gate at its steady value at V, the total membrane current is zero. V is
+scanned on a 0.1 mV grid, each sign change of the current is refined to 1e-12 V, and each
+steady state is classified by the eigenvalues of the Jacobian of the model's equations
+(V and gates) there: stable when every eigenvalue has a negative real part. For each one
+it prints the gates' values and each mechanism's current density. For a compartment whose
+channels are all ungated permeabilities, it also prints the GHK resting potential.
+Conventions: V is inside minus outside; membrane current is positive outward.
+
+options:
+  --format text|json  readable summary (default) or one JSON document
+  --from V            low end of the scanned potentials (default -150 mV), e.g. -100mV
+  --to V              high end (default 100 mV); a bare number is in mV
+  --version           print the version
+  --help              show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), restHelp);
+  return Usage;
+}
+
+// "-100mV", "-100 mV", "-0.1 V", "-100" (mV) -> volts.
+std::optional<double> parseVoltage(const std::string &text) {
+  const char *begin = text.c_str();
+  char *end = nullptr;
+  double number = std::strtod(begin, &end);
+  if (end == begin || !std::isfinite(number))
+    return std::nullopt;
+  std::string unit(end);
+  unit.erase(0, unit.find_first_not_of(' '));
+  while (!unit.empty() && unit.back() == ' ')
+    unit.pop_back();
+  if (unit.empty() || unit == "mV")
+    return number * 1e-3;
+  if (unit == "V")
+    return number;
+  if (unit == "uV" || unit == "µV")
+    return number * 1e-6;
+  return std::nullopt;
+}
+
+std::string format(const char *fmt, double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, fmt, v);
+  return buf;
+}
+
+std::string eigenvalueText(std::complex<double> e) {
+  // per ms
+  double re = e.real() * 1e-3, im = e.imag() * 1e-3;
+  if (im == 0)
+    return format("%.6g", re);
+  return format("%.6g", re) + (im < 0 ? " - " : " + ") + format("%.6g", std::fabs(im)) + "i";
+}
+
+std::string text(const std::string &modelName, const std::vector<rest::CompartmentRest> &result,
+                 const rest::Options &o) {
+  std::string out = "model " + modelName + ": steady states from " + format("%g", o.from * 1e3) + " to " +
+                    format("%g", o.to * 1e3) + " mV (gates at their steady values, no injected current)\n";
+  for (const rest::CompartmentRest &c : result) {
+    size_t n = c.steadyStates.size();
+    out += "\ncompartment " + c.name + ": " + std::to_string(n) + " steady state" + (n == 1 ? "" : "s") + "\n";
+    for (const rest::SteadyState &s : c.steadyStates) {
+      out += "  V = " + format("%.6f", s.v * 1e3) + " mV  " + (s.stable ? "stable" : "unstable") +
+             " (largest real part of an eigenvalue " + format("%.6g", s.maxRealEigenvalue * 1e-3) + " /ms)\n";
+      out += "    eigenvalues (/ms):";
+      for (size_t i = 0; i < s.eigenvalues.size(); ++i)
+        out += (i ? ", " : " ") + eigenvalueText(s.eigenvalues[i]);
+      out += "\n";
+      if (!s.gates.empty()) {
+        out += "    gates:";
+        for (const rest::Named &g : s.gates)
+          out += "  " + g.name + " " + format("%.6f", g.value);
+        out += "\n";
+      }
+      out += "    currents (uA/cm2, outward positive):";
+      for (const rest::Named &i : s.currents)
+        out += "  " + i.name + " " + format("%.6g", i.value);
+      out += "  total " + format("%.3g", s.totalCurrent) + "\n";
+    }
+    if (c.ghkRest) {
+      out += "  GHK resting potential " + format("%.6f", *c.ghkRest * 1e3) + " mV";
+      for (const rest::SteadyState &s : c.steadyStates)
+        out += "; steady state minus GHK rest " + format("%.3g", (s.v - *c.ghkRest) * 1e3) + " mV";
+      out += "\n";
+    }
+  }
+  return out;
+}
+
+std::string json(const std::string &modelName, const std::vector<rest::CompartmentRest> &result,
+                 const rest::Options &o) {
+  nlohmann::ordered_json doc;
+  doc["tool"] = "brine";
+  doc["version"] = BRINE_VERSION;
+  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+  doc["model"] = modelName;
+  doc["range_mV"] = {o.from * 1e3, o.to * 1e3};
+  doc["conventions"] = {{"membrane_potential", "inside minus outside"}, {"membrane_current", "positive outward"}};
+  nlohmann::ordered_json comps = nlohmann::ordered_json::array();
+  for (const rest::CompartmentRest &c : result) {
+    nlohmann::ordered_json jc;
+    jc["name"] = c.name;
+    nlohmann::ordered_json states = nlohmann::ordered_json::array();
+    for (const rest::SteadyState &s : c.steadyStates) {
+      nlohmann::ordered_json js;
+      js["V_mV"] = s.v * 1e3;
+      js["stable"] = s.stable;
+      js["max_real_eigenvalue_per_ms"] = s.maxRealEigenvalue * 1e-3;
+      nlohmann::ordered_json eig = nlohmann::ordered_json::array();
+      for (auto e : s.eigenvalues)
+        eig.push_back({{"re", e.real() * 1e-3}, {"im", e.imag() * 1e-3}});
+      js["eigenvalues_per_ms"] = eig;
+      nlohmann::ordered_json gates = nlohmann::ordered_json::object();
+      for (const rest::Named &g : s.gates)
+        gates[g.name] = g.value;
+      js["gates"] = gates;
+      nlohmann::ordered_json currents = nlohmann::ordered_json::object();
+      for (const rest::Named &i : s.currents)
+        currents[i.name] = i.value;
+      currents["total"] = s.totalCurrent;
+      js["currents_uA_per_cm2"] = currents;
+      states.push_back(js);
+    }
+    jc["steady_states"] = states;
+    jc["ghk_rest_mV"] = c.ghkRest ? nlohmann::ordered_json(*c.ghkRest * 1e3) : nlohmann::ordered_json(nullptr);
+    comps.push_back(jc);
+  }
+  doc["compartments"] = comps;
+  return doc.dump(1) + "\n";
+}
+
+} // namespace
+
+int restCommand(const std::vector<std::string> &args) {
+  std::string file, fmt = "text";
+  rest::Options options;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    std::string v;
+    bool missing = false;
+    auto value = [&](const char *name, std::string &into) {
+      std::string n(name);
+      if (a.rfind(n + "=", 0) == 0) {
+        into = a.substr(n.size() + 1);
+        return true;
+      }
+      if (a == n) {
+        if (i + 1 < args.size())
+          into = args[++i];
+        else
+          missing = true;
+        return true;
+      }
+      return false;
+    };
+    if (a == "--help" || a == "-h") {
+      std::fputs(restHelp, stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if (value("--format", fmt)) {
+      if (missing)
+        return usage("--format needs a value: text or json");
+      if (fmt != "text" && fmt != "json")
+        return usage("--format must be 'text' or 'json'");
+    } else if (value("--from", v) || value("--to", v)) {
+      bool from = a.rfind("--from", 0) == 0;
+      if (missing)
+        return usage(std::string(from ? "--from" : "--to") + " needs a voltage, e.g. -100mV");
+      auto q = parseVoltage(v);
+      if (!q)
+        return usage(std::string(from ? "--from" : "--to") + " needs a voltage, e.g. -100mV, not '" + v + "'");
+      (from ? options.from : options.to) = *q;
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usage("unknown option '" + a + "'");
+    } else if (file.empty()) {
+      file = a;
+    } else {
+      return usage("rest takes one spec file");
+    }
+  }
+  if (file.empty())
+    return usage("no spec file given");
+  if (!(options.from < options.to))
+    return usage("--from must be below --to");
+  if (options.to - options.from > 10.0)
+    return usage("the scanned range is wider than 10 V");
+
+  Compilation c;
+  compileFile(file, c);
+  for (const Diagnostic &d : c.diags.all())
+    std::fputs(renderText(d).c_str(), stderr);
+  if (c.diags.errorCount() > 0)
+    return SpecErrors;
+  size_t before = c.diags.all().size();
+  ir::Model model;
+  if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, model)) {
+    for (size_t i = before; i < c.diags.all().size(); ++i)
+      std::fputs(renderText(c.diags.all()[i]).c_str(), stderr);
+    return SpecErrors;
+  }
+  std::vector<rest::CompartmentRest> result;
+  try {
+    result = rest::findSteadyStates(model, &c.model, options);
+  } catch (const std::exception &e) {
+    std::fprintf(stderr, "brine: internal error: %s\n", e.what());
+    return Internal;
+  }
+  std::string out = fmt == "json" ? json(model.name, result, options) : text(model.name, result, options);
+  std::fputs(out.c_str(), stdout);
+  return Ok;
+}
+
+} // namespace brine::cli
