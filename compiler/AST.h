@@ -203,6 +203,9 @@ struct ConcentrationEntry {
   SourceRange ionRange;
   SourceRange range;
   ExprPtr value;
+  bool dynamic = false;      // changed by the currents of the ion during a run
+  SourceRange dynamicRange;
+  ExprPtr shellDepth;        // the pool is a shell under the membrane of this depth
   const IonDecl *target = nullptr; // set by Resolve
 };
 

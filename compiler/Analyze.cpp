@@ -165,6 +165,31 @@ private:
         v.area = M_PI * d * *len; // the side wall; the ends join other compartments
     if (g.shape == Shape::Area && g.area)
       v.area = value(*g.area, "the membrane area" + of);
+    if (g.shape == Shape::Sphere && diameter)
+      v.volume = M_PI * d * d * d / 6;
+    if (g.shape == Shape::Cylinder && diameter && v.area)
+      v.volume = *v.area * d / 4;
+    if (c.hasInside)
+      for (const ConcentrationEntry &e : c.inside.entries) {
+        if (!e.dynamic || !e.target)
+          continue;
+        CompartmentValues::Pool pool{e.target, &e, 0};
+        if (e.shellDepth) {
+          auto depth = value(*e.shellDepth, "the shell depth of '" + e.ion + "'");
+          if (depth && *depth > 0)
+            pool.areaPerVolume = 1 / *depth; // a thin shell: volume = area * depth
+          else if (depth)
+            diags_.error(e.shellDepth->range, "a shell depth must be positive");
+        } else if (v.volume && v.area && *v.volume > 0) {
+          pool.areaPerVolume = *v.area / *v.volume;
+        } else {
+          auto &diag = diags_.error(e.dynamicRange, "a dynamic concentration needs a volume");
+          DiagnosticEngine::note(diag, {}, "give compartment '" + c.name +
+                                               "' a sphere or cylinder geometry, or write 'dynamic shell 0.1 um'");
+        }
+        if (pool.areaPerVolume > 0)
+          v.pools.push_back(pool);
+      }
     if (c.capacitance)
       v.capacitance = value(*c.capacitance, "the capacitance" + of);
     if (c.initialV)

@@ -51,6 +51,13 @@ struct CompartmentValues {
   std::vector<const ast::IonDecl *> ions; // every ion with a concentration on either side, by name
   std::vector<Placement> placements;
   std::optional<double> ghkRest;     // V, from ungated permeability channels
+  std::optional<double> volume;      // m^3, from a sphere or cylinder geometry
+  struct Pool {
+    const ast::IonDecl *ion = nullptr;
+    const ast::ConcentrationEntry *entry = nullptr;
+    double areaPerVolume = 0; // 1/m: membrane area over pool volume
+  };
+  std::vector<Pool> pools;           // dynamic inside concentrations
   size_t ghkChannels = 0;            // how many channels entered the GHK rest
   std::optional<double> concentration(const ast::IonDecl *ion, ast::Side side) const;
   std::optional<double> nernst(const ast::IonDecl *ion, double kelvin) const;

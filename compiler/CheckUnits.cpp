@@ -107,8 +107,10 @@ private:
   }
 
   void solution(SolutionBody &body) {
-    for (ConcentrationEntry &e : body.entries)
+    for (ConcentrationEntry &e : body.entries) {
       expect(e.value.get(), dims::concentration(), "the concentration of '" + e.ion + "'");
+      expect(e.shellDepth.get(), dims::length(), "the shell depth of '" + e.ion + "'");
+    }
     for (ImpermeantEntry &i : body.impermeants)
       expect(i.amount.get(), dims::concentration(), "an impermeant concentration");
   }

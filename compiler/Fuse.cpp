@@ -48,6 +48,10 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
     NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Div, k.binary(Op::Mul, k.constant(dt), other), cap));
     next[c.voltageState] = k.select(k.binary(Op::Gt, g, k.constant(0)), relaxed, explicitStep);
   }
+  // Dynamic concentrations: a forward Euler step of their currents.
+  for (const ir::Pool &pool : m.pools)
+    next[pool.state] = k.binary(Op::Add, k.state(pool.state),
+                                k.binary(Op::Mul, k.constant(dt), output(pool.derivativeOutput)));
   for (NodeId n : next)
     k.addOutput(n);
   for (size_t i = 0; i < m.kernel.outputs.size(); ++i)

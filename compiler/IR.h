@@ -80,6 +80,18 @@ struct Compartment {
   // Voltage clamp: while clampedOutput is non-zero, V is held at commandOutput (volts).
   int clampedOutput = -1; // -1: never clamped
   int commandOutput = -1;
+  int injectedOutput = -1; // A/m^2 into the cell, for the charge balance
+  bool allCurrentCarried = false; // every membrane current is carried by a dynamic ion
+};
+
+/// A dynamic inside concentration: d[X]/dt = -I_X * (area/volume) / (z F).
+struct Pool {
+  std::string name; // "soma.Ca"
+  int compartment = -1;
+  int state = -1;           // mol/m^3
+  int derivativeOutput = -1; // mol/m^3/s
+  int valence = 0;
+  double areaPerVolume = 0; // 1/m
 };
 
 /// A quantity that can be recorded: a state or a kernel output.
@@ -115,6 +127,7 @@ struct Model {
   std::vector<Dimension> paramDims; // what `--set` must give for each parameter
   std::vector<Compartment> compartments;
   std::vector<Gate> gates;
+  std::vector<Pool> pools;
   std::vector<Recordable> recordables;
   Protocol protocol; // the one this model was lowered for (stimuli live in the kernel)
   Kernel kernel;

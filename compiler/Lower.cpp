@@ -7,7 +7,9 @@
 #include "Interpret.h"
 #include "Physics.h"
 
+#include <algorithm>
 #include <cmath>
+#include <map>
 
 namespace brine {
 
@@ -31,6 +33,7 @@ struct Env {
   const CompartmentValues *compartment = nullptr;
   NodeId voltage = -1;
   const std::vector<NodeId> *args = nullptr; // parameters of the inlined function
+  const std::map<const IonDecl *, NodeId> *pools = nullptr; // dynamic inside concentrations
 };
 
 class Lowerer {
@@ -122,6 +125,9 @@ private:
     }
     case ExprKind::Concentration: {
       auto &c = static_cast<const ConcentrationExpr &>(e);
+      if (c.side == Side::Inside && env.pools && c.target)
+        if (auto it = env.pools->find(c.target); it != env.pools->end())
+          return it->second;
       if (env.compartment && c.target)
         if (auto v = env.compartment->concentration(c.target, c.side))
           return num(*v);
@@ -154,6 +160,9 @@ private:
   NodeId call(const CallExpr &c, const Env &env) {
     SourceLoc loc = c.range.begin;
     if (c.math == MathFn::Reversal) {
+      if (c.reversalIon)
+        if (NodeId dynamic = nernstNode(c.reversalIon, env); dynamic >= 0)
+          return dynamic;
       if (env.compartment && c.reversalIon)
         if (auto v = env.compartment->nernst(c.reversalIon, *model_.temperature))
           return num(*v);
@@ -185,6 +194,33 @@ private:
     Env inner = env;
     inner.args = &args;
     return expr(*c.target->body, inner); // functions are inlined; shared nodes keep it small
+  }
+
+  // The Nernst potential of an ion whose inside concentration is dynamic, or -1.
+  NodeId nernstNode(const IonDecl *ion, const Env &env) {
+    if (!env.pools || !env.compartment)
+      return -1;
+    auto it = env.pools->find(ion);
+    auto z = integerValence(*ion);
+    auto out = env.compartment->outside ? env.compartment->outside->get(ion) : std::nullopt;
+    if (it == env.pools->end() || !z || !out)
+      return -1;
+    double scale = physics::thermalVoltage(*model_.temperature) / *z;
+    return mul(num(scale), k_.unary(Op::Log, div(num(*out), it->second)));
+  }
+
+  // Outward current density carried by each dynamic ion of the compartment being lowered.
+  std::map<const IonDecl *, NodeId> ionCurrent_;
+  bool allCarried_ = true;
+
+  void carries(const IonDecl *ion, NodeId current, const Env &env) {
+    if (!ion || !env.pools || !env.pools->count(ion)) {
+      allCarried_ = false;
+      return;
+    }
+    auto [it, inserted] = ionCurrent_.emplace(ion, current);
+    if (!inserted)
+      it->second = add(it->second, current);
   }
 
   // ---- mechanisms ----
@@ -237,14 +273,14 @@ private:
   }
 
   // GHK current density (A/m2, outward positive) of one ion with permeability `perm`.
-  NodeId ghk(NodeId perm, int z, double inside, double outside, NodeId v) {
+  NodeId ghkNode(NodeId perm, int z, NodeId inside, double outside, NodeId v) {
     double zF = z * physics::faraday;
     NodeId u = mul(v, num(z / physics::thermalVoltage(*model_.temperature))); // zFV/RT
     NodeId negU = k_.unary(Op::Neg, u);
     // u / (1 - e^-u), whose limit at u = 0 is 1
     NodeId factor = k_.select(k_.binary(Op::Eq, u, num(0)), num(1),
                               div(u, k_.unary(Op::Neg, k_.unary(Op::Expm1, negU))));
-    NodeId drive = sub(num(inside), mul(num(outside), k_.unary(Op::Exp, negU)));
+    NodeId drive = sub(inside, mul(num(outside), k_.unary(Op::Exp, negU)));
     return mul(mul(perm, num(zF)), mul(factor, drive));
   }
 
@@ -271,7 +307,13 @@ private:
           return;
         }
         double ratio = k.hasRatio ? k.ratio.value : 1.0;
-        current = add(current, ghk(mul(perm, num(ratio)), *z, *in, *out, env.voltage));
+        NodeId inside = num(*in);
+        if (env.pools)
+          if (auto it = env.pools->find(k.target); it != env.pools->end())
+            inside = it->second;
+        NodeId part = ghkNode(mul(perm, num(ratio)), *z, inside, *out, env.voltage);
+        carries(k.target, part, env);
+        current = add(current, part);
       }
       if (ch.carries.empty()) {
         fail(p.entry->nameRange, "a permeability density needs the ions '" + ch.name + "' carries");
@@ -284,10 +326,24 @@ private:
         return;
       }
       NodeId e = addParam(prefix + ".reversal", *p.reversal, dims::voltage());
+      // A Nernst reversal follows a dynamic concentration; a written one stays as written.
+      const IonDecl *single = ch.carries.size() == 1 ? ch.carries[0].target : nullptr;
+      if (p.reversalKind == ReversalKind::Nernst && single)
+        if (NodeId dynamic = nernstNode(single, env); dynamic >= 0)
+          e = dynamic;
+      if (p.reversalKind == ReversalKind::Ghk && env.pools)
+        for (const CarriedIon &k : ch.carries)
+          if (env.pools->count(k.target))
+            fail(p.entry->nameRange, "'" + ch.name + "' has a GHK reversal from several ions, so its current cannot "
+                                     "be shared among their dynamic concentrations; give it a permeability density");
       NodeId g = mul(density, open);
       cur.g = add(cur.g, g);
       cur.ge = add(cur.ge, mul(g, e));
       current = mul(g, sub(env.voltage, e));
+      if (single)
+        carries(single, current, env);
+      else
+        allCarried_ = false;
     }
     recordable(prefix + ".current", "uA/cm2", 100, current);
   }
@@ -303,12 +359,28 @@ private:
     int net = values->second.netOutwardCharge;
     NodeId density = addParam(prefix + ".density", *p.density, p.entry->density->type.dim);
     NodeId activity = expr(*pump.activity, env);
-    NodeId current;
-    if (p.densityKind == DensityKind::Current)
+    NodeId current, cycles; // cycles per area and time
+    if (p.densityKind == DensityKind::Current) {
       current = mul(mul(density, activity), num(net > 0 ? 1.0 : -1.0)); // the cycle fixes the sign
-    else
-      current = mul(mul(density, activity), num(net * physics::faraday));
+      cycles = div(mul(density, activity), num(std::abs(net) * physics::faraday));
+    } else {
+      cycles = mul(density, activity);
+      current = mul(cycles, num(net * physics::faraday));
+    }
     cur.other = add(cur.other, current);
+    for (const StoichTerm &t : pump.cycle) {
+      auto z = t.target ? integerValence(*t.target) : std::nullopt;
+      if (!z)
+        continue;
+      double outward = (t.direction == Direction::Out ? 1.0 : -1.0) * t.count.value * *z * physics::faraday;
+      NodeId ionPart = mul(cycles, num(outward));
+      if (env.pools && env.pools->count(t.target))
+        carries(t.target, ionPart, env);
+    }
+    if (net != 0 && !std::all_of(pump.cycle.begin(), pump.cycle.end(), [&](const StoichTerm &t) {
+          return env.pools && env.pools->count(t.target);
+        }))
+      allCarried_ = false;
     recordable(prefix + ".current", "uA/cm2", 100, current);
   }
 
@@ -451,6 +523,7 @@ private:
       sum = add(sum, k_.select(k_.binary(Op::Ge, t, num(onset)), waveform(syn, s), num(0)));
     }
     NodeId g = mul(num(*gmax * perArea), sum);
+    allCarried_ = false; // a synaptic current is not assigned to any ion
     cur.g = add(cur.g, g);
     cur.ge = add(cur.ge, mul(g, num(*reversal)));
     std::string prefix = c.decl->name + ".synapse" + std::to_string(number);
@@ -509,7 +582,24 @@ private:
     comp.area = c.area.value_or(0);
     comp.voltageState = addState(d.name + ".V", *c.initialV);
     comp.capacitanceParam = addParamIndex(d.name + ".capacitance", *c.capacitance, dims::specificCapacitance());
-    Env env{&c, k_.state(comp.voltageState), nullptr};
+    std::map<const IonDecl *, NodeId> pools;
+    for (const CompartmentValues::Pool &pool : c.pools) {
+      auto z = integerValence(*pool.ion);
+      auto initial = c.inside.get(pool.ion);
+      if (!z || !initial) {
+        fail(pool.entry->range, "a dynamic concentration needs a valence and a value");
+        continue;
+      }
+      int state = addState(d.name + "." + pool.ion->name, *initial);
+      pools[pool.ion] = k_.state(state);
+      out_.pools.push_back({d.name + "." + pool.ion->name, static_cast<int>(out_.compartments.size()), state, -1, *z,
+                            pool.areaPerVolume});
+      out_.recordables.push_back({d.name + "." + pool.ion->name, "mM", 1, state, -1});
+    }
+    size_t firstPool = out_.pools.size() - pools.size();
+    ionCurrent_.clear();
+    allCarried_ = true;
+    Env env{&c, k_.state(comp.voltageState), nullptr, pools.empty() ? nullptr : &pools};
     Currents cur{num(0), num(0), num(0), num(0)};
     for (const Placement &p : c.placements) {
       if (p.channel)
@@ -528,9 +618,24 @@ private:
       clamps(*protocol, c, comp);
     }
     NodeId ionic = add(sub(mul(cur.g, env.voltage), cur.ge), cur.other);
+    for (size_t i = firstPool; i < out_.pools.size(); ++i) {
+      ir::Pool &pool = out_.pools[i];
+      const IonDecl *ion = nullptr;
+      for (auto &[candidate, node] : pools)
+        if (out_.stateNames[pool.state] == d.name + "." + candidate->name)
+          ion = candidate;
+      NodeId current = ionCurrent_.count(ion) ? ionCurrent_[ion] : num(0);
+      // Outward current removes the ion from the inside: d[X]/dt = -I (A/V) / (z F).
+      pool.derivativeOutput =
+          k_.addOutput(mul(current, num(-pool.areaPerVolume / (pool.valence * physics::faraday))));
+      if (NodeId e = nernstNode(ion, env); e >= 0)
+        recordable(pool.name + ".reversal", "mV", 1e3, e);
+    }
+    comp.allCurrentCarried = !pools.empty() && allCarried_;
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
     comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell
+    comp.injectedOutput = k_.addOutput(cur.stimulus);
     out_.compartments.push_back(comp);
     out_.recordables.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
     recordable(d.name + ".membrane_current", "uA/cm2", 100, ionic);

@@ -205,6 +205,11 @@ private:
     }
     case DeclKind::Solution:
       solution(static_cast<SolutionDecl &>(d).body);
+      for (const ConcentrationEntry &e : static_cast<SolutionDecl &>(d).body.entries)
+        if (e.dynamic) {
+          auto &diag = diags_.error(e.dynamicRange, "an outside concentration cannot be dynamic");
+          DiagnosticEngine::note(diag, {}, "the bath is taken to be large; only a compartment's inside changes");
+        }
       return;
     case DeclKind::Compartment:
       compartment(static_cast<CompartmentDecl &>(d));
@@ -277,6 +282,7 @@ private:
     for (ConcentrationEntry &e : body.entries) {
       e.target = ion(e.ion, e.ionRange);
       expr(e.value.get(), {"a concentration"});
+      expr(e.shellDepth.get(), {"a shell depth"});
     }
     for (ImpermeantEntry &i : body.impermeants)
       expr(i.amount.get(), {"a concentration"});

@@ -99,14 +99,14 @@ std::string text(const std::string &modelName, const std::vector<rest::Compartme
       out += "\n";
       if (!s.gates.empty()) {
         out += "    gates:";
-        for (const rest::Named &g : s.gates)
-          out += "  " + g.name + " " + format("%.6f", g.value);
+        for (size_t i = 0; i < s.gates.size(); ++i)
+          out += (i ? ", " : " ") + s.gates[i].name + " " + format("%.6f", s.gates[i].value);
         out += "\n";
       }
       out += "    currents (uA/cm2, outward positive):";
       for (const rest::Named &i : s.currents)
-        out += "  " + i.name + " " + format("%.6g", i.value);
-      out += "  total " + format("%.3g", s.totalCurrent) + "\n";
+        out += " " + i.name + " " + format("%.6g", i.value) + ",";
+      out += " total " + format("%.3g", s.totalCurrent) + "\n";
     }
     if (c.ghkRest) {
       out += "  GHK resting potential " + format("%.6f", *c.ghkRest * 1e3) + " mV";

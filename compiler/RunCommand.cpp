@@ -7,6 +7,7 @@
 #include "Lower.h"
 #include "Measures.h"
 #include "Pipeline.h"
+#include "Plot.h"
 #include "Simulate.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
@@ -41,6 +42,7 @@ options:
   --engine jit|interpreter   native code (default) or the reference interpreter
   --threshold V        spike threshold for the summary (default 0 mV)
   -o FILE              write FILE (.csv or .json) atomically instead of CSV on standard output
+  --plot FILE          also draw the recorded quantities as an SVG figure in FILE
   --version            print the version
   --help               show this help
 
@@ -91,6 +93,7 @@ std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &tex
 
 struct RunOptions {
   std::string file, protocol, output, engine = "jit";
+  std::string plot;
   std::vector<std::string> sets;
   std::string duration, every;
   double threshold = 0;
@@ -171,8 +174,8 @@ int runCommand(const std::vector<std::string> &args) {
     } else if (a == "--version") {
       std::printf("brine %s\n", BRINE_VERSION);
       return Ok;
-    } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--duration", o.duration) ||
-               value("--every", o.every)) {
+    } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--plot", o.plot) ||
+               value("--duration", o.duration) || value("--every", o.every)) {
     } else if (value("--engine", o.engine)) {
       if (o.engine != "jit" && o.engine != "interpreter")
         return usage("--engine must be 'jit' or 'interpreter'");
@@ -318,13 +321,23 @@ int runCommand(const std::vector<std::string> &args) {
       return CannotWrite;
     }
   }
+  if (!o.plot.empty()) {
+    std::string error;
+    if (!writeFileAtomically(o.plot, plotSvg(trace, model.name + ": " + model.protocol.name), error)) {
+      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      return CannotWrite;
+    }
+  }
   using ms = std::chrono::duration<double, std::milli>;
   std::fprintf(stderr, "ran %s: %s, step %g ms, %g ms simulated, %ld steps; compile %.1f ms, simulate %.1f ms\n",
                model.protocol.name.c_str(), ir::methodName(model.protocol.method), model.protocol.step * 1e3,
                model.protocol.duration * 1e3, stats.steps, ms(compiled - started).count(),
                ms(finished - compiled).count());
+  if (!std::isnan(stats.chargeBalanceError))
+    std::fprintf(stderr, "charge balance: membrane charge and dynamic ion charge agree to %.3g (relative)\n",
+                 stats.chargeBalanceError);
   for (size_t col = 0; col < trace.columns(); ++col) {
-    if (trace.units[col] != "mV")
+    if (trace.units[col] != "mV" || trace.names[col].find(".reversal") != std::string::npos)
       continue;
     std::vector<double> values;
     for (size_t r = 0; r < trace.time.size(); ++r)

@@ -33,7 +33,55 @@ public:
     }
   }
 
+  // Charge per membrane area held by the capacitor and by each compartment's dynamic ions.
+  struct Charge {
+    std::vector<double> membrane, ions;
+  };
+  Charge charges(const std::vector<double> &y) const {
+    Charge q{std::vector<double>(m_.compartments.size()), std::vector<double>(m_.compartments.size())};
+    for (size_t i = 0; i < m_.compartments.size(); ++i) {
+      const ir::Compartment &c = m_.compartments[i];
+      q.membrane[i] = p_[c.capacitanceParam] * y[c.voltageState];
+    }
+    for (const ir::Pool &pool : m_.pools) // z F c per (area / volume)
+      q.ions[pool.compartment] += pool.valence * 96485.33212331001 * y[pool.state] / pool.areaPerVolume;
+    return q;
+  }
+  std::vector<double> injected_; // integral of injected current density per compartment
+  void accumulateInjection(const double *out, double dt) {
+    for (size_t i = 0; i < m_.compartments.size(); ++i)
+      injected_[i] += out[m_.compartments[i].injectedOutput] * dt;
+  }
+  void accumulateTrapezoid(const double *a, const double *b, double dt) {
+    for (size_t i = 0; i < m_.compartments.size(); ++i) {
+      int k = m_.compartments[i].injectedOutput;
+      injected_[i] += 0.5 * (a[k] + b[k]) * dt;
+    }
+  }
+  void chargeBalance(const Charge &start) {
+    Charge end = charges(y_);
+    double worst = NAN;
+    for (size_t i = 0; i < m_.compartments.size(); ++i) {
+      if (!m_.compartments[i].allCurrentCarried)
+        continue;
+      double dMembrane = end.membrane[i] - start.membrane[i], dIons = end.ions[i] - start.ions[i];
+      double moved = std::fabs(dMembrane) + std::fabs(dIons) + std::fabs(injected_[i]) + 1e-300;
+      double error = std::fabs(dMembrane - dIons - injected_[i]) / moved;
+      worst = std::isnan(worst) ? error : std::max(worst, error);
+    }
+    stats_.chargeBalanceError = worst;
+  }
+
   Trace run() {
+    injected_.assign(m_.compartments.size(), 0);
+    Charge start = charges(y_);
+    runMethod();
+    if (!failure_.failed)
+      chargeBalance(start);
+    return std::move(trace_);
+  }
+
+  void runMethod() {
     switch (m_.protocol.method) {
     case ir::Method::ExponentialEuler:
       if (fused_.available)
@@ -48,7 +96,6 @@ public:
       dormandPrince();
       break;
     }
-    return std::move(trace_);
   }
 
 private:
@@ -112,6 +159,8 @@ private:
   void derivative(const double *y, const double *out, double *dydt) {
     for (const ir::Gate &g : m_.gates)
       dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
+    for (const ir::Pool &pool : m_.pools)
+      dydt[pool.state] = out[pool.derivativeOutput];
     for (const ir::Compartment &c : m_.compartments) {
       double v = y[c.voltageState];
       double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
@@ -122,6 +171,8 @@ private:
 
   // Rush-Larsen gates and an exact exponential V step for frozen gates (first order).
   void exponentialEulerStep(double dt) {
+    for (const ir::Pool &pool : m_.pools) // forward Euler; their currents change slowly
+      y_[pool.state] += dt * out_[pool.derivativeOutput];
     for (const ir::Gate &g : m_.gates) {
       double inf = out_[g.infOutput], tau = out_[g.tauOutput];
       y_[g.state] = inf + (y_[g.state] - inf) * std::exp(-dt / tau);
@@ -180,6 +231,7 @@ private:
       if (i == steps)
         break;
       std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
+      accumulateInjection(buffer.data() + n, dt);
       ++stats_.steps;
       if (!healthy(y_, t + dt))
         return;
@@ -201,6 +253,7 @@ private:
         record(t);
       if (i == steps)
         break;
+      accumulateInjection(out_.data(), dt);
       if (rk4)
         rk4Step(t, dt, k1, k2, k3, k4, tmp, scratch);
       else
@@ -277,6 +330,7 @@ private:
       }
       double factor = err == 0 ? 5 : std::clamp(0.9 * std::pow(err, -0.2), 0.2, 5.0);
       if (err <= 1) {
+        accumulateTrapezoid(out_.data(), scratch.data(), step);
         t = hitsTarget ? target : t + step;
         y_.swap(ynew);
         k1.swap(k7); // first same as last

@@ -4,6 +4,7 @@
 #pragma once
 #include "IR.h"
 
+#include <cmath>
 #include <string>
 #include <vector>
 
@@ -40,6 +41,10 @@ struct SimulationStats {
   long steps = 0;
   long rejected = 0; // adaptive methods only
   long kernelCalls = 0;
+  /// For compartments whose every current is carried by a dynamic ion: the largest
+  /// |change of membrane charge - change of ion charge - injected charge| over the run,
+  /// relative to the charge moved (NaN when no compartment qualifies).
+  double chargeBalanceError = NAN;
 };
 
 /// A fused exponential Euler step (Fuse.h): out[0..states) is the next state, then the

@@ -30,7 +30,7 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
      | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
-     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK ;
+     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -48,7 +48,7 @@ unitTypeTerm : NUMBER | IDENT UNIT_POW? | '(' unitType ')' ;
 outsideDecl : OUTSIDE IDENT solutionBlock ;
 solutionBlock : '{' solutionEntry* '}' ;
 solutionEntry
-  : '[' IDENT ']' '=' expr          # concentrationEntry
+  : '[' IDENT ']' '=' expr (DYNAMIC (SHELL expr)?)?   # concentrationEntry
   | IMPERMEANT expr VALENCE signedNumber   # impermeantEntry
   | ';'                             # emptySolutionEntry
   ;
@@ -199,6 +199,8 @@ SYNAPSE : 'synapse' ;
 RISE : 'rise' ;
 DECAY : 'decay' ;
 PEAK : 'peak' ;
+DYNAMIC : 'dynamic' ;
+SHELL : 'shell' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

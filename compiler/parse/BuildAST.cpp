@@ -355,7 +355,14 @@ private:
     for (P::SolutionEntryContext *entry : ctx->solutionEntry()) {
       if (auto *c = dynamic_cast<P::ConcentrationEntryContext *>(entry)) {
         // '[' IDENT ']' '=' expr
-        ConcentrationEntry e{c->IDENT()->getText(), range(c->IDENT()), range(c), build(c->expr()), nullptr};
+        ConcentrationEntry e{c->IDENT()->getText(), range(c->IDENT()), range(c), build(c->expr(0)), false, {}, nullptr,
+                             nullptr};
+        if (c->DYNAMIC()) {
+          e.dynamic = true;
+          e.dynamicRange = range(c->DYNAMIC());
+          if (c->SHELL())
+            e.shellDepth = build(c->expr(1));
+        }
         bool repeated = false;
         for (const ConcentrationEntry &earlier : body.entries)
           if (earlier.ion == e.ion) {

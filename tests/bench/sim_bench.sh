@@ -9,7 +9,7 @@ brine=$build/brine
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
 # 1 s simulated at 10 us with exponential Euler, V recorded every 1 ms (recording kept small).
-sed -e 's/duration 200 ms/duration 1000 ms/' -e 's/from 0 ms to 200 ms/from 0 ms to 1000 ms/' \
+sed -e 's/duration 200 ms/duration 1000 ms/' -e 's/method rk4 step 10 us/method exponential_euler step 10 us/' -e 's/from 0 ms to 200 ms/from 0 ms to 1000 ms/' \
     -e 's/record axon.V every 0.01 ms/record axon.V every 1 ms/' \
     "$src/specs/reference/squid_axon_1952.brine" > "$tmp/hh1s.brine"
 sim_ms() { "$brine" run "$tmp/hh1s.brine" --engine "$1" -o "$tmp/out.csv" 2>&1 | sed -n 's/.*simulate \([0-9.]*\) ms.*/\1/p'; }

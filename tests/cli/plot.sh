@@ -1,0 +1,38 @@
+# plot.sh - `brine run --plot FILE`: an SVG figure of the recorded traces.
+source "$(dirname "$0")/lib/common.bash"
+
+HH="$SRC/specs/reference/squid_axon_1952.brine"
+
+expect_rc help 0 run --help
+expect_grep help out "--plot FILE"
+
+expect_rc plot 0 run --engine interpreter --duration 20ms --plot "$TMP/hh.svg" -o "$TMP/hh.csv" "$HH"
+[ -s "$TMP/hh.svg" ] || fail "plot: no SVG written"
+[ -s "$TMP/hh.csv" ] || fail "plot: the CSV was not written alongside the plot"
+if [ -s "$TMP/hh.svg" ]; then
+  grep -q '<svg xmlns="http://www.w3.org/2000/svg" version="1.1"' "$TMP/hh.svg" || fail "plot: not an SVG 1.1 root"
+  grep -q '>time (ms)<' "$TMP/hh.svg" || fail "plot: no time axis title"
+  grep -q '>V (mV)<' "$TMP/hh.svg" || fail "plot: no V axis title"
+  grep -q '>axon.V<' "$TMP/hh.svg" || fail "plot: no legend entry for axon.V"
+  [ "$(grep -c '<polyline' "$TMP/hh.svg")" -eq 1 ] || fail "plot: expected one polyline"
+  grep -qi 'nan' "$TMP/hh.svg" && fail "plot: NaN in the SVG"
+  if command -v xmllint >/dev/null 2>&1; then
+    xmllint --noout "$TMP/hh.svg" || fail "plot: xmllint rejects the SVG"
+  else
+    echo "note: xmllint not found (apt package libxml2-utils); skipping the XML check"
+  fi
+  # The same run gives the same bytes.
+  expect_rc again 0 run --engine interpreter --duration 20ms --plot "$TMP/again.svg" -o "$TMP/again.csv" "$HH"
+  cmp -s "$TMP/hh.svg" "$TMP/again.svg" || fail "plot: two identical runs gave different SVG"
+fi
+
+# An unwritable path: 73, and stdout still has the CSV (the traces were written first).
+expect_rc unwritable 73 run --engine interpreter --duration 5ms --plot "$TMP/no/such/dir/x.svg" "$HH"
+expect_grep unwritable err "brine: "
+
+# A failed spec writes no plot.
+error_spec "$TMP/error.brine"
+expect_rc error 65 run --plot "$TMP/error.svg" "$TMP/error.brine"
+[ -e "$TMP/error.svg" ] && fail "error: a plot was written for a spec with errors"
+
+finish

@@ -1,0 +1,126 @@
+#!/usr/bin/env python3
+"""Observed order of accuracy of brine's fixed-step methods on the Hodgkin-Huxley 1952 axon.
+
+usage: convergence_order.py BRINE SOURCE_DIR
+
+From rest (-65 mV, gates at steady state), a 10 uA/cm2 step for 10 ms (the first spike and the
+recovery after it), V recorded every 0.08 ms. The model is specs/reference/squid_axon_1952.brine
+with its protocol replaced in a temporary copy. Reference: dormand_prince at tolerance 1e-12
+(Dormand & Prince 1980). The slope of log(max |V - V_ref|) against log(step), fitted by least
+squares, must be about the method's order: exponential Euler (Rush & Larsen 1978; first order
+overall, references.md) 0.8-1.2 at steps 8, 4, 2, 1 us; classical RK4 (fourth order) 3.5-4.5 at
+40, 20, 10, 5 us.
+Exit status 0 when every check passes; otherwise 1, with one line per failure.
+"""
+
+import json
+import os
+import subprocess
+import sys
+import tempfile
+
+import numpy as np
+
+DURATION_MS = 10
+EVERY_MS = 0.08  # a whole number of steps for every step below
+# The injection lasts beyond the run so no stage of the last step sees it switch off.
+PROTOCOL = """protocol convergence {{
+  method {method}
+  duration {duration} ms
+  inject axon 10 uA/cm2 from 0 ms to 100 ms
+  record axon.V every {every} ms
+}}
+"""
+REFERENCE_METHOD = "dormand_prince step 1 us tolerance 1e-12"
+CASES = [
+    # (method, steps in us, accepted slope range, source of the expected order)
+    ("exponential_euler", (8, 4, 2, 1), (0.8, 1.2), "first order: Rush & Larsen 1978 (references.md)"),
+    ("rk4", (40, 20, 10, 5), (3.5, 4.5), "fourth order: classical Runge-Kutta"),
+]
+# The reference must be far more accurate than the smallest error it measures.
+REFERENCE_CHECK_METHOD = "dormand_prince step 1 us tolerance 1e-11"
+
+failures = []
+
+
+def fail(message):
+    failures.append(message)
+    print("FAIL: " + message)
+
+
+def ok(message):
+    print("ok: " + message)
+
+
+def main():
+    if len(sys.argv) != 3:
+        print(__doc__)
+        return 2
+    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
+        print(f"FAIL: {brine} is not an executable brine")
+        return 1
+    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.brine")
+    with open(spec) as f:
+        text = f.read()
+    model = text[:text.index("\nprotocol ")] + "\n\n"
+
+    with tempfile.TemporaryDirectory(prefix="brine-convergence-") as directory:
+        def run(method, name):
+            path = os.path.join(directory, name + ".brine")
+            out = os.path.join(directory, name + ".json")
+            with open(path, "w") as f:
+                f.write(model + PROTOCOL.format(method=method, duration=DURATION_MS, every=EVERY_MS))
+            cmd = [brine, "run", path, "-o", out]
+            r = subprocess.run(cmd, capture_output=True, text=True)
+            if r.returncode != 0:
+                fail(f"'{' '.join(cmd)}' ({method}) exited with {r.returncode}: {r.stderr.strip()}")
+                return None
+            with open(out) as f:
+                doc = json.load(f)
+            column = next(c for c in doc["columns"] if c["name"] == "axon.V")
+            return np.array(doc["time_ms"]), np.array(column["values"], dtype=float)
+
+        reference = run(REFERENCE_METHOD, "reference")
+        check = run(REFERENCE_CHECK_METHOD, "reference_check")
+        if reference is None or check is None:
+            print(f"{len(failures)} check(s) failed")
+            return 1
+        t_ref, v_ref = reference
+        reference_error = float(np.max(np.abs(check[1] - v_ref)))
+        print(f"reference: {REFERENCE_METHOD}; it moves by {reference_error:.2g} mV at tolerance 1e-11")
+
+        for method, steps, (low, high), source in CASES:
+            errors = []
+            for step in steps:
+                result = run(f"{method} step {step} us", f"{method}_{step}")
+                if result is None:
+                    break
+                t, v = result
+                if len(t) != len(t_ref) or np.max(np.abs(t - t_ref)) > 1e-9:
+                    fail(f"{method} {step} us: recorded at other times than the reference")
+                    break
+                errors.append(float(np.max(np.abs(v - v_ref))))
+            if len(errors) != len(steps):
+                continue
+            if min(errors) < 100 * reference_error:
+                fail(f"{method}: the smallest error {min(errors):.2g} mV is too close to the reference's own "
+                     f"{reference_error:.2g} mV to measure an order")
+                continue
+            slope = float(np.polyfit(np.log(steps), np.log(errors), 1)[0])
+            pairs = ", ".join(f"{s} us: {e:.3g} mV" for s, e in zip(steps, errors))
+            print(f"{method}: max |V - V_ref| {pairs}; fitted slope {slope:.3f}")
+            if not low <= slope <= high:
+                fail(f"{method}: observed order {slope:.3f}, expected {low}-{high} ({source})")
+            else:
+                ok(f"{method}: observed order {slope:.3f} within {low}-{high} ({source})")
+
+    if failures:
+        print(f"{len(failures)} check(s) failed")
+        return 1
+    print("all convergence checks passed")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
