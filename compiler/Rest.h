@@ -5,7 +5,8 @@
 // Compartments are not coupled, so each is analysed on its own: its V and its gates form
 // the ODE system dV/dt = -I/C, dx/dt = (inf - x)/tau. Roots of I(V) are bracketed on a
 // fine grid and refined by Brent's method; stability comes from the eigenvalues of the
-// system's Jacobian (central differences) at each root.
+// system's Jacobian (central differences) at each root. Dynamic concentrations (ir::Pool)
+// and other compartments' states are held at their initial values.
 #pragma once
 #include "IR.h"
 

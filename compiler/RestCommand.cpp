@@ -150,6 +150,8 @@ std::string json(const std::string &modelName, const std::vector<rest::Compartme
         currents[i.name] = i.value;
       currents["total"] = s.totalCurrent;
       js["currents_uA_per_cm2"] = currents;
+      if (c.ghkRest)
+        js["minus_ghk_rest_mV"] = (s.v - *c.ghkRest) * 1e3;
       states.push_back(js);
     }
     jc["steady_states"] = states;
@@ -240,6 +242,12 @@ int restCommand(const std::vector<std::string> &args) {
   }
   std::string out = fmt == "json" ? json(model.name, result, options) : text(model.name, result, options);
   std::fputs(out.c_str(), stdout);
+  if (!model.pools.empty()) {
+    bool one = model.pools.size() == 1;
+    std::fprintf(stderr, "note: %zu dynamic concentration%s held at %s initial value%s; they are not part of the "
+                         "steady states or their stability\n",
+                 model.pools.size(), one ? " is" : "s are", one ? "its" : "their", one ? "" : "s");
+  }
   return Ok;
 }
 

@@ -1,0 +1,180 @@
+// Simulate.tests.cpp - the steppers against closed-form solutions, the voltage clamp,
+// synaptic inputs, dynamic concentrations and their charge balance.
+#include "Fuse.h"
+#include "Interpret.h"
+#include "Lower.h"
+#include "Simulate.h"
+#include "TestSupport.h"
+
+#include <cmath>
+
+using namespace brine;
+using Catch::Matchers::WithinAbs;
+using Catch::Matchers::WithinRel;
+
+namespace {
+
+struct Run {
+  std::unique_ptr<Compilation> c;
+  ir::Model model;
+  Trace trace;
+  SimulationStats stats;
+  SimulationFailure failure;
+};
+
+// Checks, lowers for the spec's one protocol and simulates with the interpreter (fused
+// exponential Euler when the method is exponential Euler and `fuse` is set).
+Run simulateSpec(const std::string &text, bool fuse = true) {
+  Run r;
+  r.c = testing::compile(text);
+  INFO(testing::allDiagnostics(*r.c));
+  REQUIRE(r.c->checked);
+  auto all = protocols(r.c->program);
+  REQUIRE(all.size() == 1);
+  REQUIRE(lowerModel(r.c->program, r.c->model, r.c->evaluator, all[0], r.c->diags, r.model));
+  Interpreter interpreter(r.model.kernel);
+  KernelRef kernel{nullptr, &interpreter};
+  std::optional<ir::Kernel> fused;
+  if (fuse && r.model.protocol.method == ir::Method::ExponentialEuler)
+    fused = fuseExponentialEuler(r.model, r.model.protocol.step);
+  std::optional<Interpreter> fusedInterpreter;
+  FusedStep step;
+  if (fused) {
+    fusedInterpreter.emplace(*fused);
+    step = {KernelRef{nullptr, &*fusedInterpreter}, true};
+  }
+  r.trace = simulate(r.model, r.model.params, kernel, r.failure, &r.stats, step);
+  return r;
+}
+
+// A passive patch: C dV/dt = -g (V - E), so V(t) = E + (V0 - E) e^(-t g / C) exactly
+// (common practice: the RC membrane).
+std::string passive(const std::string &method) {
+  return "temperature 20 degC\n"
+         "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -20 mV\n  membrane { L 1 mS/cm2 }\n}\n"
+         "channel L { reversal -70 mV }\n"
+         "protocol p {\n  method " + method + "\n  duration 5 ms\n  record c.V every 0.1 ms\n}\n";
+}
+
+double passiveExact(double tSeconds) { return -70 + 50 * std::exp(-tSeconds / 1e-3); } // tau = C/g = 1 ms
+
+} // namespace
+
+TEST_CASE("exponential Euler is exact for a passive membrane", "[simulate]") {
+  for (bool fuse : {true, false}) {
+    Run r = simulateSpec(passive("exponential_euler step 100 us"), fuse);
+    REQUIRE_FALSE(r.failure.failed);
+    REQUIRE(r.trace.time.size() == 51);
+    for (size_t i = 0; i < r.trace.time.size(); ++i)
+      CHECK_THAT(r.trace.at(i, 0), WithinAbs(passiveExact(r.trace.time[i]), 1e-9));
+  }
+}
+
+TEST_CASE("RK4 and Dormand-Prince follow the passive membrane to their accuracy", "[simulate]") {
+  Run rk4 = simulateSpec(passive("rk4 step 10 us"));
+  Run dp = simulateSpec(passive("dormand_prince step 10 us tolerance 1e-10"));
+  for (Run *r : {&rk4, &dp}) {
+    REQUIRE_FALSE(r->failure.failed);
+    REQUIRE(r->trace.time.size() == 51);
+    for (size_t i = 0; i < r->trace.time.size(); ++i)
+      CHECK_THAT(r->trace.at(i, 0), WithinAbs(passiveExact(r->trace.time[i]), 1e-6));
+  }
+  CHECK(dp.stats.rejected >= 0);
+}
+
+TEST_CASE("a voltage clamp holds V at its command and reports the ionic current", "[simulate]") {
+  Run r = simulateSpec("temperature 20 degC\n"
+                       "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+                       "  membrane { L 2 mS/cm2 }\n}\n"
+                       "channel L { reversal -70 mV }\n"
+                       "protocol p {\n  method exponential_euler step 10 us\n  duration 4 ms\n"
+                       "  clamp c at -70 mV\n  clamp c at -20 mV from 1 ms to 3 ms\n"
+                       "  record c.V, c.clamp_current every 0.5 ms\n}\n");
+  REQUIRE_FALSE(r.failure.failed);
+  for (size_t i = 0; i < r.trace.time.size(); ++i) {
+    double t = r.trace.time[i];
+    bool stepped = t >= 1e-3 && t < 3e-3;
+    double command = stepped ? -20 : -70;
+    CHECK_THAT(r.trace.at(i, 0), WithinAbs(command, 1e-12));
+    // I = g (V - E) = 2 mS/cm2 * 50 mV = 100 uA/cm2 during the step, 0 at holding.
+    CHECK_THAT(r.trace.at(i, 1), WithinAbs(stepped ? 100 : 0, 1e-9));
+  }
+}
+
+TEST_CASE("a synaptic conductance follows its time course", "[simulate]") {
+  // A single-exponential synapse clamped at -70 mV: I = g e^(-(t - t0)/tau) (V - E).
+  Run r = simulateSpec("temperature 20 degC\n"
+                       "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+                       "  membrane { L 0.1 mS/cm2 }\n}\n"
+                       "channel L { reversal -70 mV }\n"
+                       "protocol p {\n  method exponential_euler step 10 us\n  duration 10 ms\n"
+                       "  clamp c at -70 mV\n"
+                       "  synapse c 1 mS/cm2 reversal 0 mV decay 2 ms at 2 ms\n"
+                       "  record c.synapse1.conductance, c.synapse1.current every 1 ms\n}\n");
+  REQUIRE_FALSE(r.failure.failed);
+  for (size_t i = 0; i < r.trace.time.size(); ++i) {
+    double t = r.trace.time[i];
+    double g = t >= 2e-3 ? std::exp(-(t - 2e-3) / 2e-3) : 0; // mS/cm2
+    CHECK_THAT(r.trace.at(i, 0), WithinAbs(g, 1e-12));
+    CHECK_THAT(r.trace.at(i, 1), WithinAbs(g * -70, 1e-9)); // mS/cm2 * mV = uA/cm2
+  }
+}
+
+TEST_CASE("the double-exponential and alpha time courses peak at 1", "[simulate]") {
+  for (std::string shape : {"rise 0.5 ms decay 3 ms", "peak 1 ms"}) {
+    Run r = simulateSpec("temperature 20 degC\n"
+                         "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+                         "  membrane { L 0.1 mS/cm2 }\n}\n"
+                         "channel L { reversal -70 mV }\n"
+                         "protocol p {\n  method exponential_euler step 1 us\n  duration 8 ms\n"
+                         "  synapse c 1 mS/cm2 reversal 0 mV " + shape + " at 1 ms\n"
+                         "  record c.synapse1.conductance every 1 us\n}\n");
+    REQUIRE_FALSE(r.failure.failed);
+    double peak = 0;
+    for (size_t i = 0; i < r.trace.time.size(); ++i)
+      peak = std::max(peak, r.trace.at(i, 0));
+    INFO(shape);
+    CHECK_THAT(peak, WithinAbs(1.0, 1e-6));
+  }
+}
+
+TEST_CASE("dynamic concentrations conserve charge with the membrane", "[simulate]") {
+  // Every current is carried by a dynamic ion (GHK leaks and a 3 Na : 2 K pump), so the
+  // membrane charge C V changes exactly as the ions' charge z F c V/A does (common practice:
+  // charge conservation). RK4 keeps this linear invariant up to rounding.
+  std::string spec = "use std.ions\nuse std.math\ntemperature 37 degC\n"
+                     "outside bath { [Na] = 145 mM  [K] = 5 mM  impermeant 150 mM valence -1 }\n"
+                     "compartment cell {\n  sphere diameter 10 um\n  capacitance 1 uF/cm2\n  initial V = -60 mV\n"
+                     "  inside { [Na] = 20 mM dynamic  [K] = 130 mM dynamic  impermeant 150 mM valence -1 }\n"
+                     "  membrane { NaLeak 2e-7 cm/s  KLeak 5e-6 cm/s  Pump 20 uA/cm2 }\n}\n"
+                     "channel NaLeak { carries Na }\nchannel KLeak { carries K }\n"
+                     "pump Pump { cycle 3 Na out, 2 K in  activity = hill([Na]in, 10 mM, 1.5) }\n"
+                     "protocol relax {\n  method rk4 step 20 us\n  duration 200 ms\n"
+                     "  record cell.V, cell.Na, cell.K every 10 ms\n}\n";
+  Run r = simulateSpec(spec);
+  REQUIRE_FALSE(r.failure.failed);
+  REQUIRE_FALSE(std::isnan(r.stats.chargeBalanceError));
+  CHECK(r.stats.chargeBalanceError < 1e-7);
+  // The pump moves Na out: the inside Na falls.
+  CHECK(r.trace.at(r.trace.time.size() - 1, 1) < 20);
+  // Without the K pool, K currents are carried by nothing dynamic: no balance to report.
+  std::string fixedK = spec;
+  fixedK.replace(fixedK.find("[K] = 130 mM dynamic"), 20, "[K] = 130 mM");
+  fixedK.replace(fixedK.find(", cell.K every"), 8, "");
+  Run partial = simulateSpec(fixedK);
+  REQUIRE_FALSE(partial.failure.failed);
+  CHECK(std::isnan(partial.stats.chargeBalanceError));
+}
+
+TEST_CASE("a run that goes numerically wrong stops with the time and the variable", "[simulate]") {
+  // A channel with an absurd density makes V explode with forward-stepping RK4.
+  Run r = simulateSpec("temperature 20 degC\n"
+                       "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -20 mV\n"
+                       "  membrane { L 1e7 mS/cm2 }\n}\n"
+                       "channel L { reversal -70 mV }\n"
+                       "protocol p {\n  method rk4 step 100 us\n  duration 5 ms\n}\n");
+  REQUIRE(r.failure.failed);
+  CHECK(r.failure.variable == "c.V");
+  CHECK(r.failure.time > 0);
+  CHECK(r.failure.time <= 5e-3);
+}
