@@ -101,6 +101,7 @@ struct Recordable {
   double scale = 1; // SI value * scale = value in the display unit
   int state = -1;   // one of state / output is set
   int output = -1;
+  bool mechanismCurrent = false; // the current of one channel or pump (not a per-ion sum)
 };
 
 enum class Method { ExponentialEuler, RungeKutta4, DormandPrince };

@@ -91,8 +91,9 @@ private:
   NodeId addParam(const std::string &name, double value, Dimension dim) {
     return k_.param(addParamIndex(name, value, dim));
   }
-  void recordable(const std::string &name, const std::string &unit, double scale, NodeId node) {
-    ir::Recordable r{name, unit, scale, -1, k_.addOutput(node)};
+  void recordable(const std::string &name, const std::string &unit, double scale, NodeId node,
+                  bool mechanismCurrent = false) {
+    ir::Recordable r{name, unit, scale, -1, k_.addOutput(node), mechanismCurrent};
     out_.recordables.push_back(r);
   }
 
@@ -214,10 +215,12 @@ private:
   bool allCarried_ = true;
 
   void carries(const IonDecl *ion, NodeId current, const Env &env) {
-    if (!ion || !env.pools || !env.pools->count(ion)) {
+    if (!ion) {
       allCarried_ = false;
       return;
     }
+    if (!env.pools || !env.pools->count(ion))
+      allCarried_ = false;
     auto [it, inserted] = ionCurrent_.emplace(ion, current);
     if (!inserted)
       it->second = add(it->second, current);
@@ -340,12 +343,14 @@ private:
       cur.g = add(cur.g, g);
       cur.ge = add(cur.ge, mul(g, e));
       current = mul(g, sub(env.voltage, e));
+      recordable(prefix + ".conductance", "mS/cm2", 0.1, g);
+      recordable(prefix + ".reversal", "mV", 1e3, e);
       if (single)
         carries(single, current, env);
       else
         allCarried_ = false;
     }
-    recordable(prefix + ".current", "uA/cm2", 100, current);
+    recordable(prefix + ".current", "uA/cm2", 100, current, true);
   }
 
   void pump(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
@@ -374,14 +379,9 @@ private:
         continue;
       double outward = (t.direction == Direction::Out ? 1.0 : -1.0) * t.count.value * *z * physics::faraday;
       NodeId ionPart = mul(cycles, num(outward));
-      if (env.pools && env.pools->count(t.target))
-        carries(t.target, ionPart, env);
+      carries(t.target, ionPart, env);
     }
-    if (net != 0 && !std::all_of(pump.cycle.begin(), pump.cycle.end(), [&](const StoichTerm &t) {
-          return env.pools && env.pools->count(t.target);
-        }))
-      allCarried_ = false;
-    recordable(prefix + ".current", "uA/cm2", 100, current);
+    recordable(prefix + ".current", "uA/cm2", 100, current, true);
   }
 
   std::optional<double> time(const Expr *e) { return e ? evaluator_.evaluate(*e, {}) : std::nullopt; }
@@ -632,6 +632,12 @@ private:
         recordable(pool.name + ".reversal", "mV", 1e3, e);
     }
     comp.allCurrentCarried = !pools.empty() && allCarried_;
+    std::vector<const IonDecl *> carried;
+    for (auto &[ion, current] : ionCurrent_)
+      carried.push_back(ion);
+    std::sort(carried.begin(), carried.end(), [](auto *a, auto *b) { return a->name < b->name; });
+    for (const IonDecl *ion : carried)
+      recordable(d.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
     comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell

@@ -437,7 +437,8 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Mode
         s.gates.push_back({g->name.substr(prefix.size()), sys.state()[g->state]});
       const std::string suffix = ".current";
       for (const ir::Recordable &r : model.recordables) {
-        if (r.output < 0 || r.name.rfind(prefix, 0) != 0 || r.name.size() <= prefix.size() + suffix.size() ||
+        if (!r.mechanismCurrent || r.output < 0 || r.name.rfind(prefix, 0) != 0 ||
+            r.name.size() <= prefix.size() + suffix.size() ||
             r.name.compare(r.name.size() - suffix.size(), suffix.size(), suffix) != 0)
           continue;
         std::string mechanism = r.name.substr(prefix.size(), r.name.size() - prefix.size() - suffix.size());

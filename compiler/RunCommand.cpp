@@ -350,8 +350,9 @@ int runCommand(const std::vector<std::string> &args) {
       std::fprintf(stderr, ", first at %.4f ms", spikes.front() * 1e3);
     if (rate)
       std::fprintf(stderr, ", %.3f Hz", *rate);
-    std::fprintf(stderr, "; peak %.3f mV, minimum %.3f mV\n", measures::peak(values) * 1e3,
-                 measures::minimum(values) * 1e3);
+    std::fprintf(stderr, "; peak %.3f mV, minimum %.3f mV, mean %.3f mV, final %.3f mV\n",
+                 measures::peak(values) * 1e3, measures::minimum(values) * 1e3,
+                 measures::mean(trace.time, values) * 1e3, values.empty() ? NAN : values.back() * 1e3);
   }
   return Ok;
 }
