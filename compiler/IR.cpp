@@ -32,6 +32,7 @@ const char *methodName(Method m) {
   case Method::ExponentialEuler: return "exponential_euler";
   case Method::RungeKutta4: return "rk4";
   case Method::DormandPrince: return "dormand_prince";
+  case Method::Rosenbrock: return "rosenbrock";
   }
   return "?";
 }

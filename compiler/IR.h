@@ -104,7 +104,7 @@ struct Recordable {
   bool mechanismCurrent = false; // the current of one channel or pump (not a per-ion sum)
 };
 
-enum class Method { ExponentialEuler, RungeKutta4, DormandPrince };
+enum class Method { ExponentialEuler, RungeKutta4, DormandPrince, Rosenbrock };
 const char *methodName(Method m);
 
 /// A protocol after lowering: how long, with which method, what to record.

@@ -667,9 +667,11 @@ private:
         proto.method = ir::Method::RungeKutta4;
       else if (p.method == "dormand_prince")
         proto.method = ir::Method::DormandPrince;
+      else if (p.method == "rosenbrock")
+        proto.method = ir::Method::Rosenbrock;
       else {
         fail(p.methodRange, "unknown method '" + p.method + "'");
-        DiagnosticEngine::note(*diags_.last(), {}, "the methods are exponential_euler, rk4 and dormand_prince");
+        DiagnosticEngine::note(*diags_.last(), {}, "the methods are exponential_euler, rk4, dormand_prince and rosenbrock");
       }
     }
     if (p.step) {
@@ -700,7 +702,8 @@ private:
       else
         proto.every = *v;
     }
-    if (proto.method != ir::Method::DormandPrince && p.every) {
+    bool adaptive = proto.method == ir::Method::DormandPrince || proto.method == ir::Method::Rosenbrock;
+    if (!adaptive && p.every) {
       double ratio = proto.every / proto.step;
       if (std::fabs(ratio - std::round(ratio)) > 1e-9 * ratio || ratio < 0.5)
         fail(p.every->range, "the recording interval must be a whole number of steps");

@@ -264,7 +264,7 @@ int runCommand(const std::vector<std::string> &args) {
   if (!override(o.duration, model.protocol.duration, "--duration") ||
       !override(o.every, model.protocol.every, "--every"))
     return Usage;
-  if (model.protocol.method != ir::Method::DormandPrince) {
+  if (model.protocol.method != ir::Method::DormandPrince && model.protocol.method != ir::Method::Rosenbrock) {
     double ratio = model.protocol.every / model.protocol.step;
     if (std::fabs(ratio - std::round(ratio)) > 1e-9 * ratio || ratio < 0.5)
       return usage("the recording interval must be a whole number of steps");

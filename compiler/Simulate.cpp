@@ -95,6 +95,9 @@ public:
     case ir::Method::DormandPrince:
       dormandPrince();
       break;
+    case ir::Method::Rosenbrock:
+      rosenbrock();
+      break;
     }
   }
 
@@ -261,6 +264,133 @@ private:
       ++stats_.steps;
       if (!healthy(y_, t + dt))
         return;
+    }
+  }
+
+  // Solves a x = b in place by Gaussian elimination with partial pivoting (n is small).
+  static bool solve(std::vector<double> &a, std::vector<double> &b, size_t n) {
+    for (size_t col = 0; col < n; ++col) {
+      size_t pivot = col;
+      for (size_t r = col + 1; r < n; ++r)
+        if (std::fabs(a[r * n + col]) > std::fabs(a[pivot * n + col]))
+          pivot = r;
+      if (a[pivot * n + col] == 0)
+        return false;
+      if (pivot != col) {
+        for (size_t c = 0; c < n; ++c)
+          std::swap(a[col * n + c], a[pivot * n + c]);
+        std::swap(b[col], b[pivot]);
+      }
+      for (size_t r = col + 1; r < n; ++r) {
+        double f = a[r * n + col] / a[col * n + col];
+        if (f == 0)
+          continue;
+        for (size_t c = col; c < n; ++c)
+          a[r * n + c] -= f * a[col * n + c];
+        b[r] -= f * b[col];
+      }
+    }
+    for (size_t i = n; i-- > 0;) {
+      double s = b[i];
+      for (size_t c = i + 1; c < n; ++c)
+        s -= a[i * n + c] * b[c];
+      b[i] = s / a[i * n + i];
+    }
+    return true;
+  }
+
+  // The second-order, L-stable Rosenbrock method ROS2 (Verwer, Spee, Blom & Hundsdorfer
+  // 1999, gamma = 1 + 1/sqrt(2)) with its embedded first-order solution for step control.
+  // For stiff models; its Jacobian is taken by forward differences at every step.
+  void rosenbrock() {
+    const ir::Protocol &proto = m_.protocol;
+    const double gamma = 1 + 1 / std::sqrt(2.0);
+    size_t n = y_.size();
+    std::vector<double> f0(n), f1(n), k1(n), k2(n), tmp(n), ynew(n), jac(n * n), a(n * n), scratch(out_.size());
+    double t = 0, h = proto.step;
+    long recordIndex = 0;
+    long recordCount = std::lround(proto.duration / proto.every);
+    evaluate(y_.data(), t, out_.data());
+    applyClamps(t);
+    record(t);
+    ++recordIndex;
+    const long maxSteps = 100000000;
+    while (recordIndex <= recordCount) {
+      double target = std::min(recordIndex * proto.every, proto.duration);
+      bool hitsTarget = t + h >= target;
+      double step = hitsTarget ? target - t : h;
+      derivative(y_.data(), out_.data(), f0.data());
+      for (size_t j = 0; j < n; ++j) { // J[i][j] = d f_i / d y_j
+        double delta = 1e-7 * std::max(std::fabs(y_[j]), 1e-3);
+        tmp = y_;
+        tmp[j] += delta;
+        evaluate(tmp.data(), t, scratch.data());
+        derivative(tmp.data(), scratch.data(), f1.data());
+        for (size_t i = 0; i < n; ++i)
+          jac[i * n + j] = (f1[i] - f0[i]) / delta;
+      }
+      auto matrix = [&] {
+        for (size_t i = 0; i < n * n; ++i)
+          a[i] = -gamma * step * jac[i];
+        for (size_t i = 0; i < n; ++i)
+          a[i * n + i] += 1;
+      };
+      matrix();
+      k1 = f0;
+      bool ok = solve(a, k1, n);
+      for (size_t i = 0; i < n; ++i)
+        tmp[i] = y_[i] + step * k1[i];
+      evaluate(tmp.data(), t + step, scratch.data());
+      derivative(tmp.data(), scratch.data(), k2.data());
+      for (size_t i = 0; i < n; ++i)
+        k2[i] -= 2 * k1[i];
+      matrix();
+      ok = ok && solve(a, k2, n);
+      if (!ok) {
+        fail(t, 0, "the Jacobian system is singular");
+        return;
+      }
+      double err = 0;
+      for (size_t i = 0; i < n; ++i) {
+        ynew[i] = y_[i] + step * (1.5 * k1[i] + 0.5 * k2[i]);
+        double e = 0.5 * step * (k1[i] + k2[i]); // against the first-order y + h k1
+        double scale = proto.atol + proto.rtol * std::max(std::fabs(y_[i]), std::fabs(ynew[i]));
+        err += (e / scale) * (e / scale);
+      }
+      err = std::sqrt(err / static_cast<double>(n));
+      if (!std::isfinite(err)) {
+        healthy(ynew, t + step);
+        if (!failure_.failed)
+          fail(t, 0, "the error estimate is not finite");
+        return;
+      }
+      if (++stats_.steps > maxSteps) {
+        fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
+        return;
+      }
+      double factor = err == 0 ? 5 : std::clamp(0.9 / std::sqrt(err), 0.2, 5.0); // order 2: err^(-1/2)
+      if (err <= 1) {
+        evaluate(ynew.data(), t + step, scratch.data());
+        accumulateTrapezoid(out_.data(), scratch.data(), step);
+        t = hitsTarget ? target : t + step;
+        y_.swap(ynew);
+        out_.swap(scratch);
+        applyClamps(t);
+        if (!healthy(y_, t))
+          return;
+        if (hitsTarget) {
+          record(t);
+          ++recordIndex;
+        }
+        h = hitsTarget ? std::max(h, step * factor) : step * factor;
+      } else {
+        ++stats_.rejected;
+        h = step * std::max(factor, 0.2);
+      }
+      if (h < 1e-15) {
+        fail(t, 0, "the step size fell below 1e-15 s");
+        return;
+      }
     }
   }
 

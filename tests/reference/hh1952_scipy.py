@@ -253,6 +253,13 @@ def main():
                               f"{np.max(np.abs(same - ours)):.2g} ms")
                 continue
             compare(f"brine exponential_euler {step} us", data, reference)
+        # The stiff (Rosenbrock ROS2, second order) method at a moderate tolerance.
+        variant = os.path.join(directory, "squid_axon_1952_ros.brine")
+        with open(variant, "w") as f:
+            f.write(method_line.sub(r"\1method rosenbrock step 10 us tolerance 1e-7", text))
+        data = run_brine(brine, variant, os.path.join(directory, "ros.csv"))
+        if data is not None:
+            compare("brine rosenbrock tolerance 1e-7", data, reference)
         # The same protocol with the adaptive method.
         variant = os.path.join(directory, "squid_axon_1952_dp.brine")
         with open(variant, "w") as f:

@@ -178,3 +178,24 @@ TEST_CASE("a run that goes numerically wrong stops with the time and the variabl
   CHECK(r.failure.time > 0);
   CHECK(r.failure.time <= 5e-3);
 }
+
+TEST_CASE("the Rosenbrock method takes large steps through a stiff gate", "[simulate]") {
+  // A gate with a 1 us time constant following V: explicit RK4 at 100 us is unstable
+  // (|1 + z + z^2/2 + z^3/6 + z^4/24| > 1 for z = -100); the L-stable ROS2 starting from the
+  // same step is stable and agrees with Dormand-Prince at a tight tolerance.
+  std::string base = "use std.math\ntemperature 20 degC\n"
+                     "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -20 mV\n  membrane { L 1 mS/cm2 }\n}\n"
+                     "channel L {\n  reversal -70 mV\n  gate x { steady = logistic((V + 40 mV) / 10 mV); tau = 1 us }\n}\n";
+  auto protocol = [](const std::string &method) {
+    return "protocol p {\n  method " + method + "\n  duration 5 ms\n  record c.V every 0.1 ms\n}\n";
+  };
+  Run rk4 = simulateSpec(base + protocol("rk4 step 100 us"));
+  CHECK(rk4.failure.failed);
+  Run ros = simulateSpec(base + protocol("rosenbrock step 100 us tolerance 1e-6"));
+  Run dp = simulateSpec(base + protocol("dormand_prince step 1 us tolerance 1e-11"));
+  REQUIRE_FALSE(ros.failure.failed);
+  REQUIRE_FALSE(dp.failure.failed);
+  REQUIRE(ros.trace.time.size() == dp.trace.time.size());
+  for (size_t i = 0; i < ros.trace.time.size(); ++i)
+    CHECK_THAT(ros.trace.at(i, 0), WithinAbs(dp.trace.at(i, 0), 1e-2));
+}
