@@ -445,6 +445,12 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Mode
         s.currents.push_back({mechanism, sys.outputs()[r.output] * r.scale});
       }
       s.totalCurrent = total * 100; // A/m2 -> uA/cm2
+      // The slope of the steady-state I-V curve gives the input resistance for small
+      // steady injected currents (common practice: R_in = dV/dI at rest).
+      const double dv = 1e-6;
+      s.slopeConductance = (sys.steadyCurrent(v + dv) - sys.steadyCurrent(v - dv)) / (2 * dv);
+      if (comp.area > 0 && s.slopeConductance != 0)
+        s.inputResistance = 1 / (s.slopeConductance * comp.area);
       cr.steadyStates.push_back(std::move(s));
     }
     result.push_back(std::move(cr));

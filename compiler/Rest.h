@@ -40,6 +40,9 @@ struct SteadyState {
   std::vector<Named> gates;                     // steady values (dimensionless)
   std::vector<Named> currents;                  // per mechanism, uA/cm2, outward positive
   double totalCurrent = 0;                      // uA/cm2 (zero up to rounding)
+  double slopeConductance = 0;                  // S/m2: dI/dV of the steady-state I-V curve
+  // Input resistance for small steady currents: 1/slope (ohm m2), and over the area.
+  std::optional<double> inputResistance;        // ohm, when the compartment has an area
 };
 
 struct CompartmentRest {

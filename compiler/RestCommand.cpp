@@ -107,6 +107,10 @@ std::string text(const std::string &modelName, const std::vector<rest::Compartme
       for (const rest::Named &i : s.currents)
         out += " " + i.name + " " + format("%.6g", i.value) + ",";
       out += " total " + format("%.3g", s.totalCurrent) + "\n";
+      out += "    slope conductance " + format("%.6g", s.slopeConductance * 0.1) + " mS/cm2";
+      if (s.inputResistance)
+        out += ", input resistance " + format("%.6g", *s.inputResistance * 1e-6) + " Mohm";
+      out += "\n";
     }
     if (c.ghkRest) {
       out += "  GHK resting potential " + format("%.6f", *c.ghkRest * 1e3) + " mV";
@@ -150,6 +154,9 @@ std::string json(const std::string &modelName, const std::vector<rest::Compartme
         currents[i.name] = i.value;
       currents["total"] = s.totalCurrent;
       js["currents_uA_per_cm2"] = currents;
+      js["slope_conductance_mS_per_cm2"] = s.slopeConductance * 0.1;
+      js["input_resistance_MOhm"] =
+          s.inputResistance ? nlohmann::ordered_json(*s.inputResistance * 1e-6) : nlohmann::ordered_json(nullptr);
       if (c.ghkRest)
         js["minus_ghk_rest_mV"] = (s.v - *c.ghkRest) * 1e3;
       states.push_back(js);

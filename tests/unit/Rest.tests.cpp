@@ -207,3 +207,23 @@ TEST_CASE("the scanned range limits the steady states found", "[rest]") {
   REQUIRE(result.size() == 1);
   CHECK(result[0].steadyStates.empty());
 }
+
+TEST_CASE("the input resistance of a passive patch is 1 / (g area)", "[rest]") {
+  // A 0.5 mS/cm2 leak over 1000 um2: R_in = 1 / (0.5 mS/cm2 * 1e-5 cm2) = 200 Mohm
+  // (common practice: Ohm's law for a passive membrane).
+  auto c = testing::compile("temperature 20 degC\n"
+                            "compartment c {\n  area 1000 um2\n  capacitance 1 uF/cm2\n  initial V = -60 mV\n"
+                            "  membrane { L 0.5 mS/cm2 }\n}\n"
+                            "channel L { reversal -60 mV }\n");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  ir::Model m = lowerForRest(*c);
+  auto found = rest::findSteadyStates(m, &c->model);
+  REQUIRE(found.size() == 1);
+  REQUIRE(found[0].steadyStates.size() == 1);
+  const rest::SteadyState &s = found[0].steadyStates[0];
+  CHECK_THAT(s.v, Catch::Matchers::WithinAbs(-0.060, 1e-12));
+  CHECK_THAT(s.slopeConductance, Catch::Matchers::WithinRel(5.0, 1e-6)); // S/m2
+  REQUIRE(s.inputResistance.has_value());
+  CHECK_THAT(*s.inputResistance, Catch::Matchers::WithinRel(200e6, 1e-6));
+}
