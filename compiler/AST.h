@@ -371,6 +371,32 @@ struct ProtocolDecl : Decl {
   static bool classof(const Decl *d) { return d->kind == DeclKind::Protocol; }
 };
 
+enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual };
+
+/// An argument of a measure: a dotted name (soma.V, K, soma) or a value (0 mV).
+struct ExpectArg {
+  std::string path; // empty when the argument is a value
+  ExprPtr value;
+  SourceRange range;
+};
+
+/// expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]: a value the model must reproduce.
+struct ExpectDecl : Decl {
+  ExpectDecl(SourceRange r) : Decl(DeclKind::Expect, r) {}
+  std::string protocol; // empty for measures of the model itself
+  SourceRange protocolRange;
+  std::string measure;
+  SourceRange measureRange;
+  std::vector<ExpectArg> args;
+  CheckKind check = CheckKind::Equal;
+  ExprPtr value, tolerance, high; // Equal: value within tolerance; Range: value to high
+  bool relative = false;
+  std::string source;
+  std::string text; // the expectation as written, for reports
+  const ProtocolDecl *target = nullptr; // set by Resolve
+  static bool classof(const Decl *d) { return d->kind == DeclKind::Expect; }
+};
+
 /// One parsed file.
 struct Module {
   const SourceFile *file = nullptr;

@@ -48,6 +48,7 @@ const char *describe(DeclKind k) {
   case DeclKind::Channel: return "channel";
   case DeclKind::Pump: return "pump";
   case DeclKind::Protocol: return "protocol";
+  case DeclKind::Expect: return "expectation";
   }
   return "declaration";
 }
@@ -209,6 +210,23 @@ public:
       for (auto &t : p.cycle)
         line(1, "moves " + num(t.count.value) + " " + t.ion + (t.direction == Direction::In ? " in" : " out"));
       expr(1, "activity", p.activity.get());
+      break;
+    }
+    case DeclKind::Expect: {
+      auto &e = static_cast<const ExpectDecl &>(d);
+      line(1, "measure " + (e.protocol.empty() ? "" : e.protocol + ": ") + e.measure);
+      for (auto &a : e.args) {
+        if (!a.path.empty())
+          line(2, "arg " + a.path);
+        expr(2, "arg", a.value.get());
+      }
+      static const char *checks[] = {"==", "in", "<", "<=", ">", ">="};
+      line(1, std::string("check ") + checks[static_cast<int>(e.check)] + (e.relative ? " relative" : ""));
+      expr(2, "value", e.value.get());
+      expr(2, "tolerance", e.tolerance.get());
+      expr(2, "to", e.high.get());
+      if (!e.source.empty())
+        line(1, "source " + e.source);
       break;
     }
     case DeclKind::Protocol: {

@@ -65,6 +65,17 @@ private:
     case DeclKind::Protocol:
       protocol(static_cast<ProtocolDecl &>(d));
       return;
+    case DeclKind::Expect: {
+      // Arguments and values are only inferred here; Expect.cpp knows what each measure wants.
+      auto &e = static_cast<ExpectDecl &>(d);
+      for (ExpectArg &a : e.args)
+        if (a.value)
+          infer(*a.value);
+      for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
+        if (x)
+          infer(*x);
+      return;
+    }
     case DeclKind::Pump: {
       auto &p = static_cast<PumpDecl &>(d);
       expect(p.activity.get(), Dimension::none(), "the activity of '" + p.name + "'",

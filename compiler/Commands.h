@@ -11,6 +11,7 @@ enum ExitCode { Ok = 0, ExpectationsFailed = 1, Usage = 64, SpecErrors = 65, Int
 int checkCommand(const std::vector<std::string> &args);
 int showCommand(const std::vector<std::string> &args);
 int runCommand(const std::vector<std::string> &args);
+int testCommand(const std::vector<std::string> &args);
 int restCommand(const std::vector<std::string> &args);
 
 /// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.

@@ -4,6 +4,7 @@
 #include "CheckCharge.h"
 #include "CheckPhysics.h"
 #include "CheckUnits.h"
+#include "Expect.h"
 #include "Lower.h"
 #include "Modules.h"
 
@@ -32,9 +33,13 @@ void run(const SourceFile &root, Compilation &c) {
   bool lowered = true;
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
     ir::Model model;
-    lowered = lowerModel(c.program, c.model, c.evaluator, p, c.diags, model) && lowered;
+    if (lowerModel(c.program, c.model, c.evaluator, p, c.diags, model))
+      c.lowered.emplace(p, std::move(model));
+    else
+      lowered = false;
   }
-  c.checked = lowered && c.diags.errorCount() == 0;
+  bool expectations = lowered && checkExpectations(c, c.diags);
+  c.checked = lowered && expectations && c.diags.errorCount() == 0;
 }
 
 } // namespace

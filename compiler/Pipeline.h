@@ -4,9 +4,11 @@
 #include "Analyze.h"
 #include "Diagnostics.h"
 #include "Evaluate.h"
+#include "IR.h"
 #include "Resolve.h"
 #include "Source.h"
 
+#include <map>
 #include <string>
 
 namespace brine {
@@ -19,6 +21,7 @@ struct Compilation {
   SymbolTable symbols;
   Evaluator evaluator;
   Model model;
+  std::map<const ast::ProtocolDecl *, ir::Model> lowered; // every protocol, lowered by check
   bool checked = false; // every stage ran without errors
 };
 

@@ -67,6 +67,7 @@ public:
       Decl *d = decl.get();
       switch (d->kind) {
       case DeclKind::Use:
+      case DeclKind::Expect:
         continue;
       case DeclKind::Model:
         if (modelAt.valid()) {
@@ -226,6 +227,27 @@ private:
           expr(e, kinetic);
       expr(c.q10.get(), {"a Q10 factor"});
       expr(c.q10Reference.get(), {"a Q10 reference temperature"});
+      return;
+    }
+    case DeclKind::Expect: {
+      auto &e = static_cast<ExpectDecl &>(d);
+      Context plain{"an expectation"};
+      for (ExpectArg &a : e.args)
+        expr(a.value.get(), plain);
+      for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
+        expr(x, plain);
+      if (!e.protocol.empty()) {
+        Decl *target = lookup(e.protocol);
+        if (!target)
+          unknown(e.protocolRange, e.protocol, "protocol", {DeclKind::Protocol});
+        else if (auto *p = dyn_cast<ProtocolDecl>(target))
+          e.target = p;
+        else {
+          auto &diag = diags_.error(e.protocolRange, "'" + e.protocol + "' is " + article(target->kind) +
+                                                         ", not a protocol");
+          DiagnosticEngine::note(diag, target->nameRange, "declared here");
+        }
+      }
       return;
     }
     case DeclKind::Protocol: {

@@ -20,6 +20,7 @@ commands:
   check FILE...   check specs for syntax, units, charge and physical plausibility
   show FILE       print the resolved model: concentrations, reversal potentials, GHK rest
   run FILE        simulate one of the spec's protocols and write the recorded traces
+  test PATH...    measure every expectation of the specs under PATH; N passed, M failed
   rest FILE       find every steady state with no injected current, and its stability
   help [COMMAND]  show this help, or a command's help
 
@@ -27,7 +28,7 @@ options:
   --help          show help (also after a command: brine check --help)
   --version       print the version
 
-exit status: 0 success, 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
+exit status: 0 success, 1 expectations failed (test), 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
              73 an output file could not be written
 
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
@@ -66,6 +67,8 @@ int main(int argc, char **argv) {
       return brine::cli::showCommand(rest);
     if (command == "run")
       return brine::cli::runCommand(rest);
+    if (command == "test")
+      return brine::cli::testCommand(rest);
     if (command == "rest")
       return brine::cli::restCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);

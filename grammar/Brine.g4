@@ -16,6 +16,7 @@ item
   | channelDecl
   | pumpDecl
   | protocolDecl
+  | expectDecl
   | ';'
   ;
 
@@ -30,7 +31,7 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
      | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
-     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL ;
+     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL | EXPECT | WITHIN | RELATIVE | SOURCE ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -85,6 +86,15 @@ pumpItem
   | ';'                                           # emptyPumpItem
   ;
 stoichTerm : NUMBER IDENT dir=(IN | OUT) ;
+
+// expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]
+expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
+expectArg : recordTarget | expr ;
+expectCheck
+  : '==' expr (WITHIN expr RELATIVE?)?            # equalCheck
+  | IN expr TO expr                               # rangeCheck
+  | op=('<' | '<=' | '>' | '>=') expr             # boundCheck
+  ;
 
 // protocol NAME { method ... step ...; duration ...; inject ...; record ... every ... }
 protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
@@ -201,6 +211,10 @@ DECAY : 'decay' ;
 PEAK : 'peak' ;
 DYNAMIC : 'dynamic' ;
 SHELL : 'shell' ;
+EXPECT : 'expect' ;
+WITHIN : 'within' ;
+RELATIVE : 'relative' ;
+SOURCE : 'source' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

@@ -124,6 +124,8 @@ private:
       return build(c);
     if (auto *c = item->protocolDecl())
       return build(c);
+    if (auto *c = item->expectDecl())
+      return build(c);
     return nullptr; // a stray ';'
   }
 
@@ -604,6 +606,58 @@ private:
         }
       }
     }
+    return d;
+  }
+
+  // expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
+  DeclPtr build(P::ExpectDeclContext *ctx) {
+    auto d = std::make_unique<ExpectDecl>(range(ctx));
+    if (ctx->IDENT()) {
+      d->protocol = ctx->IDENT()->getText();
+      d->protocolRange = range(ctx->IDENT());
+    }
+    d->measure = ctx->word()->getText();
+    d->measureRange = range(ctx->word());
+    d->name = "";
+    d->nameRange = d->measureRange;
+    for (P::ExpectArgContext *a : ctx->expectArg()) {
+      // expectArg : recordTarget | expr ;
+      ExpectArg arg;
+      arg.range = range(a);
+      if (a->recordTarget())
+        arg.path = a->recordTarget()->getText();
+      else
+        arg.value = build(a->expr());
+      d->args.push_back(std::move(arg));
+    }
+    P::ExpectCheckContext *check = ctx->expectCheck();
+    if (auto *eq = dynamic_cast<P::EqualCheckContext *>(check)) {
+      // '==' expr (WITHIN expr RELATIVE?)?
+      d->check = CheckKind::Equal;
+      d->value = build(eq->expr(0));
+      if (eq->expr().size() > 1)
+        d->tolerance = build(eq->expr(1));
+      d->relative = eq->RELATIVE() != nullptr;
+    } else if (auto *r = dynamic_cast<P::RangeCheckContext *>(check)) {
+      // IN expr TO expr
+      d->check = CheckKind::Range;
+      d->value = build(r->expr(0));
+      d->high = build(r->expr(1));
+    } else {
+      auto *b = static_cast<P::BoundCheckContext *>(check);
+      std::string op = b->op->getText();
+      d->check = op == "<" ? CheckKind::Less : op == "<=" ? CheckKind::LessEqual : op == ">" ? CheckKind::Greater
+                                                                                             : CheckKind::GreaterEqual;
+      d->value = build(b->expr());
+    }
+    if (ctx->STRING())
+      d->source = unquote(ctx->STRING()->getText());
+    // The expectation as written, without its source, for reports.
+    size_t from = ctx->getStart()->getStartIndex();
+    size_t to = check->getStop()->getStopIndex();
+    std::string text = file_.text().substr(file_.locAtCodePoint(from).offset,
+                                           file_.locAtCodePoint(to).offset - file_.locAtCodePoint(from).offset + 1);
+    d->text = text.substr(text.find_first_not_of(" ", 6)); // drop "expect"
     return d;
   }
 

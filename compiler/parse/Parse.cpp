@@ -30,7 +30,7 @@ bool startsClause(size_t type) {
   case BrineLexer::OUT:
     return false;
   default:
-    return type >= BrineLexer::MODEL && type <= BrineLexer::SHELL;
+    return type >= BrineLexer::MODEL && type <= BrineLexer::SOURCE;
   }
 }
 

@@ -111,7 +111,7 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
       message = "unexpected end of file" + (expected.empty() ? "" : "; expected " + expected);
     else
       message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
-    bool keyword = offending && offending->getType() >= BrineLexer::MODEL && offending->getType() <= BrineLexer::SHELL;
+    bool keyword = offending && offending->getType() >= BrineLexer::MODEL && offending->getType() <= BrineLexer::SOURCE;
     if (keyword && expected.find("a name") != std::string::npos)
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
   }

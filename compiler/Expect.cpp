@@ -1,0 +1,550 @@
+// Expect.cpp - Stage 11: validating and measuring expectations.
+#include "Expect.h"
+
+#include "Diagnostics.h"
+#include "Fuse.h"
+#include "Interpret.h"
+#include "Lower.h"
+#include "Measures.h"
+#include "Physics.h"
+#include "Pipeline.h"
+#include "Rest.h"
+
+#include <cmath>
+#include <cstdio>
+#include <map>
+
+namespace brine {
+
+using namespace ast;
+
+std::vector<const ExpectDecl *> expectations(const Program &program) {
+  std::vector<const ExpectDecl *> out;
+  for (auto &m : program.modules)
+    for (auto &d : m->decls)
+      if (auto *e = dyn_cast<ExpectDecl>(d.get()))
+        out.push_back(e);
+  return out;
+}
+
+namespace {
+
+enum class Arg { Ion, Compartment, Pump, Trace, Threshold, Time };
+
+struct MeasureSpec {
+  const char *name;
+  bool protocol;               // measured on a protocol's run
+  std::vector<Arg> args;
+  size_t required;             // leading args that must be given
+  const char *dimension;       // "voltage", "area", "none", "rate", "time", "resistance", or "trace"
+  const char *description;
+};
+
+const std::vector<MeasureSpec> &measureSpecs() {
+  static const std::vector<MeasureSpec> specs = {
+      {"reversal", false, {Arg::Ion, Arg::Compartment}, 2, "voltage", "the Nernst potential of an ion in a compartment"},
+      {"ghk_rest", false, {Arg::Compartment}, 1, "voltage", "the GHK resting potential of a compartment"},
+      {"area", false, {Arg::Compartment}, 1, "area", "the membrane area of a compartment"},
+      {"net_charge", false, {Arg::Pump}, 1, "none", "the elementary charges a pump moves out per cycle"},
+      {"rest", false, {Arg::Compartment}, 1, "voltage", "the compartment's one stable steady state"},
+      {"input_resistance", false, {Arg::Compartment}, 1, "resistance", "the input resistance at rest"},
+      {"spike_count", true, {Arg::Trace, Arg::Threshold}, 1, "none", "upward crossings of a threshold (0 mV)"},
+      {"firing_rate", true, {Arg::Trace, Arg::Threshold}, 1, "rate", "spikes per second, first to last spike"},
+      {"first_spike", true, {Arg::Trace, Arg::Threshold}, 1, "time", "the time of the first spike"},
+      {"last_interval", true, {Arg::Trace, Arg::Threshold}, 1, "time", "the last interspike interval"},
+      {"peak", true, {Arg::Trace}, 1, "trace", "the largest recorded value"},
+      {"minimum", true, {Arg::Trace}, 1, "trace", "the smallest recorded value"},
+      {"mean", true, {Arg::Trace}, 1, "trace", "the time-weighted mean"},
+      {"final", true, {Arg::Trace}, 1, "trace", "the value at the end of the run"},
+      {"value", true, {Arg::Trace, Arg::Time}, 2, "trace", "the value at a time (linear interpolation)"},
+  };
+  return specs;
+}
+
+const MeasureSpec *findMeasure(const std::string &name) {
+  for (const MeasureSpec &m : measureSpecs())
+    if (name == m.name)
+      return &m;
+  return nullptr;
+}
+
+// A recordable's display unit back to its dimension.
+Dimension unitDimension(const std::string &unit) {
+  if (unit == "mV")
+    return dims::voltage();
+  if (unit == "uA/cm2")
+    return dims::currentDensity();
+  if (unit == "mS/cm2")
+    return dims::conductanceDensity();
+  if (unit == "mM")
+    return dims::concentration();
+  return Dimension::none();
+}
+
+Dimension namedDimension(const std::string &name) {
+  if (name == "voltage")
+    return dims::voltage();
+  if (name == "area")
+    return dims::area();
+  if (name == "rate")
+    return dims::rate();
+  if (name == "time")
+    return dims::time();
+  if (name == "resistance")
+    return dims::voltage() / dims::current();
+  return Dimension::none();
+}
+
+// A value in the unit modellers read for its dimension.
+std::string display(double si, const Dimension &d) {
+  char buf[64];
+  if (d == dims::voltage())
+    std::snprintf(buf, sizeof buf, "%.8g mV", si * 1e3);
+  else if (d == dims::time())
+    std::snprintf(buf, sizeof buf, "%.8g ms", si * 1e3);
+  else if (d == dims::rate())
+    std::snprintf(buf, sizeof buf, "%.8g Hz", si);
+  else if (d == dims::area())
+    std::snprintf(buf, sizeof buf, "%.6g um2", si * 1e12);
+  else if (d == dims::voltage() / dims::current())
+    std::snprintf(buf, sizeof buf, "%.6g Mohm", si * 1e-6);
+  else if (d == dims::currentDensity())
+    std::snprintf(buf, sizeof buf, "%.6g uA/cm2", si * 100);
+  else if (d == dims::conductanceDensity())
+    std::snprintf(buf, sizeof buf, "%.6g mS/cm2", si * 0.1);
+  else if (d == dims::concentration())
+    std::snprintf(buf, sizeof buf, "%.6g mM", si);
+  else
+    std::snprintf(buf, sizeof buf, "%.6g", si);
+  return buf;
+}
+
+const CompartmentValues *compartmentNamed(const Model &m, const std::string &name) {
+  for (const CompartmentValues &c : m.compartments)
+    if (c.decl->name == name)
+      return &c;
+  return nullptr;
+}
+
+const ir::Model *loweredFor(const Compilation &c, const ProtocolDecl *p) {
+  auto it = c.lowered.find(p);
+  return it == c.lowered.end() ? nullptr : &it->second;
+}
+
+// The dimension a measure's value has, or nullopt when it cannot be known (reported).
+std::optional<Dimension> measureDimension(const Compilation &c, const ExpectDecl &e, const MeasureSpec &spec) {
+  if (std::string(spec.dimension) != "trace")
+    return namedDimension(spec.dimension);
+  const ir::Model *m = e.target ? loweredFor(c, e.target) : nullptr;
+  if (!m || e.args.empty())
+    return std::nullopt;
+  int r = m->findRecordable(e.args[0].path);
+  if (r < 0)
+    return std::nullopt;
+  return unitDimension(m->recordables[r].unit);
+}
+
+class Validator {
+public:
+  Validator(Compilation &c, DiagnosticEngine &diags) : c_(c), diags_(diags) {}
+
+  void check(const ExpectDecl &e) {
+    const MeasureSpec *spec = findMeasure(e.measure);
+    if (!spec) {
+      auto &d = diags_.error(e.measureRange, "unknown measure '" + e.measure + "'");
+      std::string names;
+      for (const MeasureSpec &m : measureSpecs())
+        names += (names.empty() ? "" : ", ") + std::string(m.name);
+      DiagnosticEngine::note(d, {}, "the measures are " + names);
+      return;
+    }
+    if (spec->protocol && e.protocol.empty()) {
+      auto &d = diags_.error(e.measureRange, "'" + e.measure + "' is measured on a protocol's run");
+      DiagnosticEngine::note(d, {}, "name the protocol: expect PROTOCOL: " + e.measure + "(...) ...");
+      return;
+    }
+    if (!spec->protocol && !e.protocol.empty()) {
+      diags_.error(e.protocolRange, "'" + e.measure + "' is a property of the model, not of a protocol's run");
+      return;
+    }
+    if (!e.protocol.empty() && !e.target)
+      return; // Resolve reported it
+    if (e.args.size() < spec->required || e.args.size() > spec->args.size()) {
+      diags_.error(e.measureRange, "'" + e.measure + "' takes " +
+                                       (spec->required == spec->args.size()
+                                            ? std::to_string(spec->required)
+                                            : std::to_string(spec->required) + " or " + std::to_string(spec->args.size())) +
+                                       " argument" + (spec->args.size() == 1 ? "" : "s") + ", not " +
+                                       std::to_string(e.args.size()));
+      return;
+    }
+    bool ok = true;
+    for (size_t i = 0; i < e.args.size(); ++i)
+      ok = argument(e, spec->args[i], e.args[i]) && ok;
+    if (!ok)
+      return;
+    auto dim = measureDimension(c_, e, *spec);
+    if (!dim)
+      return;
+    expectDimension(e.value.get(), *dim, "the expected value");
+    expectDimension(e.high.get(), *dim, "the upper end of the range");
+    if (e.tolerance)
+      expectDimension(e.tolerance.get(), e.relative ? Dimension::none() : *dim, "the tolerance");
+  }
+
+private:
+  Compilation &c_;
+  DiagnosticEngine &diags_;
+
+  bool argument(const ExpectDecl &e, Arg kind, const ExpectArg &a) {
+    auto needPath = [&](const char *what) {
+      if (a.path.empty()) {
+        diags_.error(a.range, std::string("expected ") + what + " here");
+        return false;
+      }
+      return true;
+    };
+    switch (kind) {
+    case Arg::Ion: {
+      if (!needPath("an ion"))
+        return false;
+      auto it = c_.symbols.byName.find(a.path);
+      if (it == c_.symbols.byName.end() || it->second->kind != DeclKind::Ion) {
+        diags_.error(a.range, "'" + a.path + "' is not an ion");
+        return false;
+      }
+      return true;
+    }
+    case Arg::Compartment:
+      if (!needPath("a compartment"))
+        return false;
+      if (!compartmentNamed(c_.model, a.path)) {
+        diags_.error(a.range, "there is no compartment '" + a.path + "'");
+        return false;
+      }
+      return true;
+    case Arg::Pump: {
+      if (!needPath("a pump"))
+        return false;
+      auto it = c_.symbols.byName.find(a.path);
+      if (it == c_.symbols.byName.end() || it->second->kind != DeclKind::Pump) {
+        diags_.error(a.range, "'" + a.path + "' is not a pump or exchanger");
+        return false;
+      }
+      return true;
+    }
+    case Arg::Trace: {
+      if (!needPath("a recorded quantity such as soma.V"))
+        return false;
+      const ir::Model *m = loweredFor(c_, e.target);
+      if (m && m->findRecordable(a.path) < 0) {
+        auto &d = diags_.error(a.range, "protocol '" + e.protocol + "' has nothing called '" + a.path + "' to measure");
+        DiagnosticEngine::note(d, {}, "`brine check --emit ir FILE` lists the recordable quantities");
+        return false;
+      }
+      return true;
+    }
+    case Arg::Threshold:
+      return valueArgument(a, dims::voltage(), "a threshold");
+    case Arg::Time:
+      return valueArgument(a, dims::time(), "a time");
+    }
+    return true;
+  }
+
+  bool valueArgument(const ExpectArg &a, const Dimension &d, const char *what) {
+    if (!a.value) {
+      diags_.error(a.range, std::string("expected ") + what + " (" + describeDimension(d) + ") here");
+      return false;
+    }
+    if (a.value->type.known && a.value->type.dim != d) {
+      diags_.error(a.value->range, std::string(what) + " must be " + describeDimension(d) + ", got " +
+                                       describeDimension(a.value->type.dim));
+      return false;
+    }
+    return true;
+  }
+
+  void expectDimension(const Expr *e, const Dimension &d, const char *what) {
+    if (e && e->type.known && e->type.dim != d)
+      diags_.error(e->range, std::string(what) + " must be " + describeDimension(d) + ", got " +
+                                 describeDimension(e->type.dim));
+  }
+};
+
+// ---- measuring ----
+
+struct Run {
+  bool ok = false;
+  std::string error;
+  Trace trace;
+};
+
+class Measurer {
+public:
+  Measurer(Compilation &c, const KernelCompiler &compile) : c_(c), compile_(compile) {}
+
+  ExpectResult measure(const ExpectDecl &e) {
+    ExpectResult r;
+    r.decl = &e;
+    const MeasureSpec *spec = findMeasure(e.measure);
+    auto dim = spec ? measureDimension(c_, e, *spec) : std::nullopt;
+    if (!spec || !dim) {
+      r.measuredText = "cannot be measured";
+      return r;
+    }
+    std::string why;
+    r.measured = value(e, *spec, why);
+    r.expectedText = expected(e, *dim);
+    if (!r.measured) {
+      r.measuredText = why;
+      return r;
+    }
+    r.measuredText = display(*r.measured, *dim);
+    r.passed = judge(e, *r.measured);
+    return r;
+  }
+
+private:
+  Compilation &c_;
+  const KernelCompiler &compile_;
+  std::map<const ProtocolDecl *, Run> runs_;
+  std::optional<std::vector<rest::CompartmentRest>> rest_;
+  std::string restError_;
+
+  double eval(const Expr &e) { return c_.evaluator.evaluate(e, {}).value_or(NAN); }
+
+  std::string expected(const ExpectDecl &e, const Dimension &d) {
+    double v = e.value ? eval(*e.value) : NAN;
+    switch (e.check) {
+    case CheckKind::Equal:
+      if (!e.tolerance)
+        return display(v, d) + " exactly";
+      if (e.relative)
+        return display(v, d) + " within " + display(eval(*e.tolerance), Dimension::none()) + " relative";
+      return display(v, d) + " within " + display(eval(*e.tolerance), d);
+    case CheckKind::Range: return display(v, d) + " to " + display(eval(*e.high), d);
+    case CheckKind::Less: return "< " + display(v, d);
+    case CheckKind::LessEqual: return "<= " + display(v, d);
+    case CheckKind::Greater: return "> " + display(v, d);
+    case CheckKind::GreaterEqual: return ">= " + display(v, d);
+    }
+    return "";
+  }
+
+  bool judge(const ExpectDecl &e, double m) {
+    double v = e.value ? eval(*e.value) : NAN;
+    switch (e.check) {
+    case CheckKind::Equal: {
+      if (!e.tolerance)
+        return m == v;
+      double tol = eval(*e.tolerance);
+      return std::fabs(m - v) <= (e.relative ? tol * std::fabs(v) : tol);
+    }
+    case CheckKind::Range: return m >= v && m <= eval(*e.high);
+    case CheckKind::Less: return m < v;
+    case CheckKind::LessEqual: return m <= v;
+    case CheckKind::Greater: return m > v;
+    case CheckKind::GreaterEqual: return m >= v;
+    }
+    return false;
+  }
+
+  std::optional<double> value(const ExpectDecl &e, const MeasureSpec &spec, std::string &why) {
+    std::string name = spec.name;
+    const Model &m = c_.model;
+    if (name == "reversal") {
+      auto *comp = compartmentNamed(m, e.args[1].path);
+      auto *ion = dyn_cast<IonDecl>(c_.symbols.byName.at(e.args[0].path));
+      auto v = comp && m.temperature ? comp->nernst(ion, *m.temperature) : std::nullopt;
+      if (!v)
+        why = "no concentrations of '" + e.args[0].path + "' on both sides";
+      return v;
+    }
+    if (name == "ghk_rest" || name == "area") {
+      auto *comp = compartmentNamed(m, e.args[0].path);
+      auto v = name == "area" ? comp->area : comp->ghkRest;
+      if (!v)
+        why = name == "area" ? "the compartment has no geometry" : "no GHK resting potential (no ungated permeability channels)";
+      return v;
+    }
+    if (name == "net_charge") {
+      auto *pump = dyn_cast<PumpDecl>(c_.symbols.byName.at(e.args[0].path));
+      auto it = m.pumps.find(pump);
+      if (it == m.pumps.end() || !it->second.chargeKnown) {
+        why = "the cycle's charge is unknown";
+        return std::nullopt;
+      }
+      return static_cast<double>(it->second.netOutwardCharge);
+    }
+    if (name == "rest" || name == "input_resistance")
+      return restValue(e.args[0].path, name == "input_resistance", why);
+    return protocolValue(e, name, why);
+  }
+
+  std::optional<double> restValue(const std::string &compartment, bool resistance, std::string &why) {
+    if (!rest_) {
+      ir::Model model;
+      DiagnosticEngine quiet;
+      if (!lowerModel(c_.program, c_.model, c_.evaluator, nullptr, quiet, model)) {
+        restError_ = "the model cannot be lowered for a steady-state search";
+        rest_.emplace();
+      } else {
+        try {
+          rest_ = rest::findSteadyStates(model, &c_.model);
+        } catch (std::exception &ex) {
+          restError_ = ex.what();
+          rest_.emplace();
+        }
+      }
+    }
+    for (const rest::CompartmentRest &cr : *rest_) {
+      if (cr.name != compartment)
+        continue;
+      std::vector<const rest::SteadyState *> stable;
+      for (const rest::SteadyState &s : cr.steadyStates)
+        if (s.stable)
+          stable.push_back(&s);
+      if (stable.size() != 1) {
+        why = "has " + std::to_string(stable.size()) + " stable steady states from -150 to +100 mV, not one";
+        return std::nullopt;
+      }
+      if (!resistance)
+        return stable[0]->v;
+      if (!stable[0]->inputResistance)
+        why = "the compartment has no area";
+      return stable[0]->inputResistance;
+    }
+    why = restError_.empty() ? "no steady-state analysis of '" + compartment + "'" : restError_;
+    return std::nullopt;
+  }
+
+  // Runs a protocol once, recording everything its expectations measure.
+  Run &run(const ProtocolDecl *p) {
+    auto found = runs_.find(p);
+    if (found != runs_.end())
+      return found->second;
+    Run &r = runs_[p];
+    const ir::Model *lowered = loweredFor(c_, p);
+    if (!lowered) {
+      r.error = "the protocol could not be lowered";
+      return r;
+    }
+    ir::Model model = *lowered;
+    for (const ExpectDecl *e : expectations(c_.program))
+      if (e->target == p && !e->args.empty()) {
+        int index = model.findRecordable(e->args[0].path);
+        if (index >= 0 && std::find(model.protocol.record.begin(), model.protocol.record.end(), index) ==
+                              model.protocol.record.end())
+          model.protocol.record.push_back(index);
+      }
+    std::optional<ir::Kernel> fused;
+    if (model.protocol.method == ir::Method::ExponentialEuler)
+      fused = fuseExponentialEuler(model, model.protocol.step);
+    Interpreter plain(model.kernel);
+    std::optional<Interpreter> fusedInterpreter;
+    KernelRef kernel{nullptr, &plain};
+    FusedStep step;
+    if (fused) {
+      fusedInterpreter.emplace(*fused);
+      step = {KernelRef{nullptr, &*fusedInterpreter}, true};
+    }
+    if (compile_) {
+      std::string error;
+      KernelFn native = compile_(fused ? *fused : model.kernel, error);
+      if (native)
+        (fused ? step.kernel : kernel).native = native;
+    }
+    SimulationFailure failure;
+    r.trace = simulate(model, model.params, kernel, failure, nullptr, step);
+    if (failure.failed) {
+      char buf[96];
+      std::snprintf(buf, sizeof buf, "the run failed at %.6g ms: ", failure.time * 1e3);
+      r.error = buf + failure.variable + " " + failure.reason;
+      return r;
+    }
+    r.ok = true;
+    return r;
+  }
+
+  std::optional<double> protocolValue(const ExpectDecl &e, const std::string &name, std::string &why) {
+    Run &r = run(e.target);
+    if (!r.ok) {
+      why = r.error;
+      return std::nullopt;
+    }
+    const Trace &t = r.trace;
+    size_t column = 0;
+    while (column < t.columns() && t.names[column] != e.args[0].path)
+      ++column;
+    if (column == t.columns()) {
+      why = "'" + e.args[0].path + "' was not recorded";
+      return std::nullopt;
+    }
+    const ir::Model *m = loweredFor(c_, e.target);
+    double scale = m->recordables[m->findRecordable(e.args[0].path)].scale;
+    std::vector<double> values(t.time.size());
+    for (size_t i = 0; i < t.time.size(); ++i)
+      values[i] = t.at(i, column) / scale; // back to SI
+    double threshold = e.args.size() > 1 && e.args[1].value ? eval(*e.args[1].value) : 0.0;
+    if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
+      auto spikes = measures::spikeTimes(t.time, values, threshold);
+      if (name == "spike_count")
+        return static_cast<double>(spikes.size());
+      if (name == "first_spike") {
+        if (spikes.empty())
+          why = "no spike";
+        return spikes.empty() ? std::nullopt : std::optional<double>(spikes.front());
+      }
+      if (spikes.size() < 2) {
+        why = std::to_string(spikes.size()) + " spike" + (spikes.size() == 1 ? "" : "s") + ", fewer than two";
+        return std::nullopt;
+      }
+      if (name == "last_interval")
+        return spikes.back() - spikes[spikes.size() - 2];
+      return measures::firingRate(spikes);
+    }
+    if (name == "peak")
+      return measures::peak(values);
+    if (name == "minimum")
+      return measures::minimum(values);
+    if (name == "mean")
+      return measures::mean(t.time, values);
+    if (name == "final")
+      return values.back();
+    if (name == "value") {
+      double at = eval(*e.args[1].value);
+      for (size_t i = 1; i < t.time.size(); ++i)
+        if (t.time[i] >= at) {
+          double f = (at - t.time[i - 1]) / (t.time[i] - t.time[i - 1]);
+          return values[i - 1] + f * (values[i] - values[i - 1]);
+        }
+      if (!t.time.empty() && at == t.time.back())
+        return values.back();
+      why = "the run ends before that time";
+      return std::nullopt;
+    }
+    why = "unknown measure";
+    return std::nullopt;
+  }
+};
+
+} // namespace
+
+bool checkExpectations(Compilation &c, DiagnosticEngine &diags) {
+  size_t before = diags.errorCount();
+  Validator v(c, diags);
+  for (const ExpectDecl *e : expectations(c.program))
+    v.check(*e);
+  return diags.errorCount() == before;
+}
+
+std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &compile) {
+  Measurer m(c, compile);
+  std::vector<ExpectResult> out;
+  for (const ExpectDecl *e : expectations(c.program))
+    out.push_back(m.measure(*e));
+  return out;
+}
+
+} // namespace brine

@@ -1,0 +1,287 @@
+// TestCommand.cpp - `brine test`: finds specs with expectations, measures every one (in
+// parallel across files), reports measured vs expected, and writes JUnit XML and JSON.
+#include "Commands.h"
+
+#include "Expect.h"
+#include "Pipeline.h"
+#ifdef BRINE_HAVE_JIT
+#include "JIT.h"
+#endif
+
+#include <algorithm>
+#include <atomic>
+#include <cstdio>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+#include <thread>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+const char *testHelp = R"(usage: brine test [options] PATH...
+
+Finds every .brine file under the PATHs (files starting with '_' are helpers and are skipped),
+checks each, and measures each of its expectations:
+
+  expect reversal(K, soma) == -91.49 mV within 0.01 mV source "Hille 2001, Table 1.1"
+  expect step10: firing_rate(axon.V) in 67 Hz to 69 Hz
+
+Prints every expectation with its measured value, the expected value or range, its source
+and PASS or FAIL, then a summary line "N passed, M failed". Files run in parallel on all
+cores; the output order is the sorted order of the files and does not depend on timing.
+
+options:
+  --junit FILE            also write JUnit XML (one test suite per file) atomically
+  --json FILE             also write the results as JSON atomically
+  --jobs N                files checked at once (default: the number of cores)
+  --engine jit|interpreter   native code (default) or the reference interpreter for runs
+  --version               print the version
+  --help                  show this help
+
+exit status: 0 every expectation passed, 1 some failed, 64 bad usage, 65 a spec has errors,
+             70 internal fault, 73 an output file could not be written
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+struct FileResult {
+  std::string path;
+  std::string diagnostics; // rendered, when the spec has errors
+  bool specErrors = false;
+  std::vector<ExpectResult> results;
+  std::unique_ptr<Compilation> compilation; // keeps results' declarations alive
+  std::string hashNote;
+};
+
+std::vector<std::string> discover(const std::vector<std::string> &paths, std::string &error) {
+  std::vector<std::string> files;
+  for (const std::string &p : paths) {
+    std::error_code ec;
+    if (fs::is_directory(p, ec)) {
+      for (auto &entry : fs::recursive_directory_iterator(p, ec))
+        if (entry.is_regular_file() && entry.path().extension() == ".brine" &&
+            entry.path().filename().string()[0] != '_')
+          files.push_back(entry.path().lexically_normal().string());
+    } else if (fs::is_regular_file(p, ec)) {
+      files.push_back(fs::path(p).lexically_normal().string());
+    } else {
+      error = "cannot find '" + p + "'";
+      return {};
+    }
+  }
+  std::sort(files.begin(), files.end());
+  files.erase(std::unique(files.begin(), files.end()), files.end());
+  return files;
+}
+
+void runFile(FileResult &f, bool jit) {
+  f.compilation = std::make_unique<Compilation>();
+  Compilation &c = *f.compilation;
+  compileFile(f.path, c);
+  if (c.diags.errorCount() > 0) {
+    f.specErrors = true;
+    for (const Diagnostic &d : c.diags.all())
+      f.diagnostics += renderText(d);
+    return;
+  }
+  if (expectations(c.program).empty())
+    return;
+  KernelCompiler compile;
+#ifdef BRINE_HAVE_JIT
+  std::shared_ptr<JIT> engine;
+  if (jit)
+    compile = [&engine](const ir::Kernel &k, std::string &error) -> KernelFn {
+      if (!engine)
+        engine = JIT::create(error);
+      return engine ? engine->compile(k, error) : nullptr;
+    };
+#else
+  (void)jit;
+#endif
+  f.results = runExpectations(c, compile);
+}
+
+std::string xmlEscape(const std::string &s) {
+  std::string out;
+  for (char ch : s) {
+    switch (ch) {
+    case '&': out += "&amp;"; break;
+    case '<': out += "&lt;"; break;
+    case '>': out += "&gt;"; break;
+    case '"': out += "&quot;"; break;
+    default: out += ch;
+    }
+  }
+  return out;
+}
+
+} // namespace
+
+int testCommand(const std::vector<std::string> &args) {
+  std::vector<std::string> paths;
+  std::string junit, jsonPath, engine = "jit";
+  unsigned jobs = std::max(1u, std::thread::hardware_concurrency());
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    auto value = [&](const char *name, std::string &into) {
+      std::string n(name);
+      if (a.rfind(n + "=", 0) == 0) {
+        into = a.substr(n.size() + 1);
+        return true;
+      }
+      if (a == n && i + 1 < args.size()) {
+        into = args[++i];
+        return true;
+      }
+      return false;
+    };
+    std::string v;
+    if (a == "--help" || a == "-h") {
+      std::fputs(testHelp, stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if (value("--junit", junit) || value("--json", jsonPath)) {
+    } else if (value("--engine", engine)) {
+      if (engine != "jit" && engine != "interpreter") {
+        std::fprintf(stderr, "brine: --engine must be 'jit' or 'interpreter'\n\n%s", testHelp);
+        return Usage;
+      }
+    } else if (value("--jobs", v)) {
+      int n = std::atoi(v.c_str());
+      if (n < 1) {
+        std::fprintf(stderr, "brine: --jobs needs a positive number\n\n%s", testHelp);
+        return Usage;
+      }
+      jobs = static_cast<unsigned>(n);
+    } else if (a.size() > 1 && a[0] == '-') {
+      std::fprintf(stderr, "brine: unknown option '%s'\n\n%s", a.c_str(), testHelp);
+      return Usage;
+    } else {
+      paths.push_back(a);
+    }
+  }
+  if (paths.empty()) {
+    std::fprintf(stderr, "brine: no path given\n\n%s", testHelp);
+    return Usage;
+  }
+  std::string error;
+  std::vector<std::string> files = discover(paths, error);
+  if (!error.empty()) {
+    std::fprintf(stderr, "brine: error: %s\n", error.c_str());
+    return Usage;
+  }
+  std::vector<FileResult> results(files.size());
+  for (size_t i = 0; i < files.size(); ++i)
+    results[i].path = files[i];
+  std::atomic<size_t> next{0};
+  auto worker = [&] {
+    for (size_t i = next++; i < results.size(); i = next++)
+      runFile(results[i], engine == "jit");
+  };
+  std::vector<std::thread> pool;
+  for (unsigned t = 0; t < std::min<size_t>(jobs, files.size()); ++t)
+    pool.emplace_back(worker);
+  for (auto &t : pool)
+    t.join();
+
+  size_t passed = 0, failed = 0, broken = 0;
+  std::string out;
+  for (const FileResult &f : results) {
+    if (f.specErrors) {
+      ++broken;
+      std::fputs(f.diagnostics.c_str(), stderr);
+      out += f.path + ": the spec has errors; its expectations were not measured\n";
+      continue;
+    }
+    if (f.results.empty())
+      continue;
+    out += f.path + "\n";
+    for (const ExpectResult &r : f.results) {
+      (r.passed ? passed : failed)++;
+      out += std::string("  ") + (r.passed ? "PASS" : "FAIL") + "  line " + std::to_string(r.decl->range.begin.line) +
+             "  " + r.decl->text + ": measured " + r.measuredText + (r.expectedText.empty() ? "" : "; expected " + r.expectedText);
+      if (!r.decl->source.empty())
+        out += "  [" + r.decl->source + "]";
+      out += "\n";
+    }
+  }
+  out += std::to_string(passed) + " passed, " + std::to_string(failed) + " failed";
+  if (broken)
+    out += ", " + std::to_string(broken) + " file" + (broken == 1 ? "" : "s") + " with errors";
+  out += "\n";
+  std::fputs(out.c_str(), stdout);
+
+  if (!junit.empty()) {
+    std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"brine\" tests=\"" +
+                      std::to_string(passed + failed) + "\" failures=\"" + std::to_string(failed) + "\" errors=\"" +
+                      std::to_string(broken) + "\">\n";
+    for (const FileResult &f : results) {
+      if (!f.specErrors && f.results.empty())
+        continue;
+      size_t fails = 0;
+      for (const ExpectResult &r : f.results)
+        fails += !r.passed;
+      xml += "  <testsuite name=\"" + xmlEscape(f.path) + "\" tests=\"" + std::to_string(f.results.size()) +
+             "\" failures=\"" + std::to_string(fails) + "\" errors=\"" + (f.specErrors ? "1" : "0") + "\">\n";
+      if (f.specErrors)
+        xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"check\">\n      <error message=\"the spec has errors\">" +
+               xmlEscape(f.diagnostics) + "</error>\n    </testcase>\n";
+      for (const ExpectResult &r : f.results) {
+        xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"line " +
+               std::to_string(r.decl->range.begin.line) + ": " + xmlEscape(r.decl->text) + "\">";
+        std::string detail = "measured " + r.measuredText + "; expected " + r.expectedText +
+                             (r.decl->source.empty() ? "" : "; source: " + r.decl->source);
+        if (!r.passed)
+          xml += "\n      <failure message=\"" + xmlEscape(detail) + "\"/>\n    ";
+        else
+          xml += "\n      <system-out>" + xmlEscape(detail) + "</system-out>\n    ";
+        xml += "</testcase>\n";
+      }
+      xml += "  </testsuite>\n";
+    }
+    xml += "</testsuites>\n";
+    if (!writeFileAtomically(junit, xml, error)) {
+      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      return CannotWrite;
+    }
+  }
+  if (!jsonPath.empty()) {
+    nlohmann::ordered_json doc;
+    doc["tool"] = "brine";
+    doc["version"] = BRINE_VERSION;
+    doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+    doc["passed"] = passed;
+    doc["failed"] = failed;
+    doc["files_with_errors"] = broken;
+    nlohmann::ordered_json list = nlohmann::ordered_json::array();
+    for (const FileResult &f : results)
+      for (const ExpectResult &r : f.results)
+        list.push_back({{"file", f.path},
+                        {"line", r.decl->range.begin.line},
+                        {"expectation", r.decl->text},
+                        {"passed", r.passed},
+                        {"measured", r.measuredText},
+                        {"measured_si", r.measured ? nlohmann::ordered_json(*r.measured) : nlohmann::ordered_json(nullptr)},
+                        {"expected", r.expectedText},
+                        {"source", r.decl->source}});
+    doc["expectations"] = list;
+    if (!writeFileAtomically(jsonPath, doc.dump(2) + "\n", error)) {
+      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      return CannotWrite;
+    }
+  }
+  if (broken)
+    return SpecErrors;
+  return failed ? ExpectationsFailed : Ok;
+}
+
+} // namespace brine::cli

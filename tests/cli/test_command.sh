@@ -1,0 +1,47 @@
+# test_command.sh - `brine test`: the shipped reference suites pass; a perturbed copy of a
+# model fails with measured vs expected; JUnit XML validates; JSON parses; exit codes.
+source "$(dirname "$0")/lib/common.bash"
+
+expect_rc suite 0 test "$SRC/specs" --junit "$TMP/suite.xml" --json "$TMP/suite.json"
+expect_grep suite out '^[0-9]+ passed, 0 failed$'
+expect_grep suite out 'PASS  line [0-9]+  reversal\(K, fibre\)'
+if command -v xmllint >/dev/null; then
+  xmllint --noout --schema "$(dirname "$0")/junit.xsd" "$TMP/suite.xml" 2>"$TMP/xmllint.err" ||
+    fail "JUnit XML does not validate: $(cat "$TMP/xmllint.err")"
+else
+  echo "note: xmllint is missing; JUnit schema check skipped"
+fi
+"$PY" -c 'import json,sys; d=json.load(open(sys.argv[1])); assert d["failed"] == 0 and d["passed"] > 0' "$TMP/suite.json" ||
+  fail "JSON results do not parse or do not say all passed"
+
+# A perturbed copy: inside K 155 mM -> 100 mM moves E_K by about 12 mV.
+mkdir "$TMP/perturbed"
+sed 's/\[K\] = 155 mM/[K] = 100 mM/' "$SRC/specs/reference/mammalian_skeletal_muscle.brine" >"$TMP/perturbed/muscle.brine"
+grep -q '\[K\] = 100 mM' "$TMP/perturbed/muscle.brine" || fail "the perturbation did not apply"
+expect_rc perturbed 1 test "$TMP/perturbed" --junit "$TMP/perturbed.xml"
+expect_grep perturbed out 'FAIL  line [0-9]+  reversal\(K, fibre\) == -98 mV within 1 mV: measured -86\.[0-9]+ mV; expected -98 mV within 1 mV'
+expect_grep perturbed out '^[0-9]+ passed, 1 failed$'
+grep -q '<failure message="measured -86' "$TMP/perturbed.xml" || fail "JUnit XML lacks the failure"
+if command -v xmllint >/dev/null; then
+  xmllint --noout --schema "$(dirname "$0")/junit.xsd" "$TMP/perturbed.xml" 2>/dev/null || fail "perturbed JUnit XML does not validate"
+fi
+
+# A spec with errors: exit 65, the diagnostics on stderr.
+printf 'const a = 1 mV + 1 ms\nexpect rest(x) == 1 mV\n' >"$TMP/broken.brine"
+expect_rc broken 65 test "$TMP/broken.brine"
+expect_grep broken err 'broken.brine:1:[0-9]+: error: cannot add'
+
+# Usage.
+expect_rc nopath 64 test
+expect_rc badopt 64 test --bogus "$SRC/specs"
+expect_rc help 0 test --help
+expect_grep help out 'usage: brine test'
+expect_rc missing 64 test "$TMP/does-not-exist"
+
+# The same results whatever the number of jobs.
+run jobs1 test "$SRC/specs" --jobs 1
+cp "$TMP/jobs1.out" "$TMP/jobs1.keep"
+run jobs4 test "$SRC/specs" --jobs 4
+cmp -s "$TMP/jobs1.keep" "$TMP/jobs4.out" || fail "output differs between --jobs 1 and --jobs 4"
+
+finish
