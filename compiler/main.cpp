@@ -28,8 +28,8 @@ options:
   --help          show help (also after a command: brine check --help)
   --version       print the version
 
-exit status: 0 success, 1 expectations failed (test), 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
-             73 an output file could not be written
+exit status: 0 success, 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
+             73 an output file could not be written; 1 from `brine test` when expectations failed
 
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
