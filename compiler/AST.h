@@ -375,8 +375,10 @@ enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual };
 
 /// An argument of a measure: a dotted name (soma.V, K, soma) or a value (0 mV).
 struct ExpectArg {
-  std::string path; // empty when the argument is a value
+  std::string path; // empty when the argument is a value or a string
   ExprPtr value;
+  std::string text; // a string argument (a snapshot file)
+  bool isString = false;
   SourceRange range;
 };
 

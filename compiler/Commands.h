@@ -12,7 +12,11 @@ int checkCommand(const std::vector<std::string> &args);
 int showCommand(const std::vector<std::string> &args);
 int runCommand(const std::vector<std::string> &args);
 int testCommand(const std::vector<std::string> &args);
+int snapshotCommand(const std::vector<std::string> &args);
 int restCommand(const std::vector<std::string> &args);
+int methodsCommand(const std::vector<std::string> &args);
+int fmtCommand(const std::vector<std::string> &args);
+int hashCommand(const std::vector<std::string> &args);
 
 /// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);

@@ -12,7 +12,10 @@
 
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
+#include <fstream>
 #include <map>
+#include <sstream>
 
 namespace brine {
 
@@ -29,7 +32,7 @@ std::vector<const ExpectDecl *> expectations(const Program &program) {
 
 namespace {
 
-enum class Arg { Ion, Compartment, Pump, Trace, Threshold, Time };
+enum class Arg { Ion, Compartment, Pump, Trace, Threshold, Time, File };
 
 struct MeasureSpec {
   const char *name;
@@ -57,6 +60,10 @@ const std::vector<MeasureSpec> &measureSpecs() {
       {"mean", true, {Arg::Trace}, 1, "trace", "the time-weighted mean"},
       {"final", true, {Arg::Trace}, 1, "trace", "the value at the end of the run"},
       {"value", true, {Arg::Trace, Arg::Time}, 2, "trace", "the value at a time (linear interpolation)"},
+      {"snapshot_max_error", true, {Arg::Trace, Arg::File}, 2, "trace",
+       "the largest difference from a snapshot's column (brine snapshot)"},
+      {"snapshot_rms_error", true, {Arg::Trace, Arg::File}, 2, "trace",
+       "the root-mean-square difference from a snapshot's column"},
   };
   return specs;
 }
@@ -244,6 +251,12 @@ private:
       }
       return true;
     }
+    case Arg::File:
+      if (!a.isString) {
+        diags_.error(a.range, "expected a snapshot file name in quotes here");
+        return false;
+      }
+      return true;
     case Arg::Threshold:
       return valueArgument(a, dims::voltage(), "a threshold");
     case Arg::Time:
@@ -438,25 +451,9 @@ private:
                               model.protocol.record.end())
           model.protocol.record.push_back(index);
       }
-    std::optional<ir::Kernel> fused;
-    if (model.protocol.method == ir::Method::ExponentialEuler)
-      fused = fuseExponentialEuler(model, model.protocol.step);
-    Interpreter plain(model.kernel);
-    std::optional<Interpreter> fusedInterpreter;
-    KernelRef kernel{nullptr, &plain};
-    FusedStep step;
-    if (fused) {
-      fusedInterpreter.emplace(*fused);
-      step = {KernelRef{nullptr, &*fusedInterpreter}, true};
-    }
-    if (compile_) {
-      std::string error;
-      KernelFn native = compile_(fused ? *fused : model.kernel, error);
-      if (native)
-        (fused ? step.kernel : kernel).native = native;
-    }
-    SimulationFailure failure;
-    r.trace = simulate(model, model.params, kernel, failure, nullptr, step);
+    RunOutcome outcome = runModel(model, model.params, compile_);
+    const SimulationFailure &failure = outcome.failure;
+    r.trace = std::move(outcome.trace);
     if (failure.failed) {
       char buf[96];
       std::snprintf(buf, sizeof buf, "the run failed at %.6g ms: ", failure.time * 1e3);
@@ -465,6 +462,61 @@ private:
     }
     r.ok = true;
     return r;
+  }
+
+  // Compares a recorded column with the same column of a snapshot file (relative to the
+  // spec's directory), sample by sample; the sample times must agree.
+  std::optional<double> snapshotError(const ExpectDecl &e, const std::string &file, const Trace &t, size_t column,
+                                      double scale, bool rms, std::string &why) {
+    std::filesystem::path path = std::filesystem::path(e.range.begin.file->path()).parent_path() / file;
+    std::ifstream in(path);
+    if (!in) {
+      why = "cannot read the snapshot '" + path.string() + "' (make it with `brine snapshot`)";
+      return std::nullopt;
+    }
+    std::string line;
+    std::vector<std::string> header;
+    size_t row = 0;
+    long wanted = -1;
+    double worst = 0, sumSquares = 0;
+    while (std::getline(in, line)) {
+      if (line.empty() || line[0] == '#')
+        continue;
+      std::vector<std::string> cells;
+      std::stringstream s(line);
+      std::string cell;
+      while (std::getline(s, cell, ','))
+        cells.push_back(cell);
+      if (header.empty()) {
+        header = cells;
+        for (size_t i = 0; i < header.size(); ++i)
+          if (header[i].rfind(t.names[column] + " (", 0) == 0)
+            wanted = static_cast<long>(i);
+        if (wanted < 0) {
+          why = "the snapshot has no column '" + t.names[column] + "'";
+          return std::nullopt;
+        }
+        continue;
+      }
+      if (row >= t.time.size() || cells.size() != header.size()) {
+        why = "the snapshot has more samples than the run, or a short row";
+        return std::nullopt;
+      }
+      double time = std::strtod(cells[0].c_str(), nullptr) * 1e-3;
+      if (std::fabs(time - t.time[row]) > 1e-9 * std::max(1.0, std::fabs(time)) + 1e-12) {
+        why = "the snapshot's sample times differ from the run's";
+        return std::nullopt;
+      }
+      double diff = (std::strtod(cells[static_cast<size_t>(wanted)].c_str(), nullptr) - t.at(row, column)) / scale;
+      worst = std::max(worst, std::fabs(diff));
+      sumSquares += diff * diff;
+      ++row;
+    }
+    if (row != t.time.size()) {
+      why = "the snapshot has " + std::to_string(row) + " samples, the run " + std::to_string(t.time.size());
+      return std::nullopt;
+    }
+    return rms ? std::sqrt(sumSquares / static_cast<double>(row)) : worst;
   }
 
   std::optional<double> protocolValue(const ExpectDecl &e, const std::string &name, std::string &why) {
@@ -512,6 +564,8 @@ private:
       return measures::mean(t.time, values);
     if (name == "final")
       return values.back();
+    if (name == "snapshot_max_error" || name == "snapshot_rms_error")
+      return snapshotError(e, e.args[1].text, t, column, scale, name == "snapshot_rms_error", why);
     if (name == "value") {
       double at = eval(*e.args[1].value);
       for (size_t i = 1; i < t.time.size(); ++i)

@@ -4,7 +4,7 @@
 // protocols and steady-state searches as needed, and compares.
 #pragma once
 #include "AST.h"
-#include "Simulate.h"
+#include "Run.h"
 
 #include <functional>
 #include <optional>
@@ -25,9 +25,6 @@ struct ExpectResult {
   std::string measuredText;       // "68.216 Hz", or why nothing could be measured
   std::string expectedText;       // "67 Hz to 69 Hz", "-64.996 mV within 0.001 mV"
 };
-
-/// Compiles a kernel to native code, or returns nullptr (with `error`) to use the interpreter.
-using KernelCompiler = std::function<KernelFn(const ir::Kernel &, std::string &error)>;
 
 /// Measures and judges every expectation of the program, in declaration order. Protocols
 /// run once each; `compile` (may be empty) makes their kernels native.

@@ -2,8 +2,7 @@
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
 
-#include "Fuse.h"
-#include "Interpret.h"
+#include "Run.h"
 #include "Lower.h"
 #include "Measures.h"
 #include "Pipeline.h"
@@ -270,40 +269,30 @@ int runCommand(const std::vector<std::string> &args) {
       return usage("the recording interval must be a whole number of steps");
   }
 
-  auto started = std::chrono::steady_clock::now();
-  // Exponential Euler runs a kernel with the step fused in; the other methods the plain one.
-  std::optional<ir::Kernel> fusedKernel;
-  if (model.protocol.method == ir::Method::ExponentialEuler)
-    fusedKernel = fuseExponentialEuler(model, model.protocol.step);
-  const ir::Kernel &toCompile = fusedKernel ? *fusedKernel : model.kernel;
-  KernelRef kernel;
-  Interpreter interpreter(model.kernel);
-  Interpreter fusedInterpreter(toCompile);
-  kernel.interpreter = &interpreter;
-  FusedStep fused;
-  fused.available = fusedKernel.has_value();
-  fused.kernel.interpreter = &fusedInterpreter;
+  KernelCompiler compile;
 #ifdef BRINE_HAVE_JIT
   std::unique_ptr<JIT> jit;
+  std::string jitError;
   if (o.engine == "jit") {
-    std::string error;
-    jit = JIT::create(error);
-    KernelFn native = jit ? jit->compile(toCompile, error) : nullptr;
-    if (!native) {
-      std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", error.c_str());
+    jit = JIT::create(jitError);
+    if (!jit) {
+      std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", jitError.c_str());
       return Internal;
     }
-    (fusedKernel ? fused.kernel : kernel).native = native;
+    compile = [&jit](const ir::Kernel &k, std::string &error) { return jit->compile(k, error); };
   }
 #else
   if (o.engine == "jit")
     std::fprintf(stderr, "brine: note: this build has no JIT; using the reference interpreter\n");
 #endif
-  auto compiled = std::chrono::steady_clock::now();
-  SimulationFailure failure;
-  SimulationStats stats;
-  Trace trace = simulate(model, params, kernel, failure, &stats, fused);
-  auto finished = std::chrono::steady_clock::now();
+  RunOutcome outcome = runModel(model, params, compile);
+  if (compile && !outcome.native) {
+    std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", outcome.compileError.c_str());
+    return Internal;
+  }
+  const SimulationFailure &failure = outcome.failure;
+  const SimulationStats &stats = outcome.stats;
+  Trace &trace = outcome.trace;
   if (failure.failed) {
     std::fprintf(stderr, "brine: error: the simulation failed at t = %.6g ms: '%s' %s\n", failure.time * 1e3,
                  failure.variable.c_str(), failure.reason.c_str());
@@ -328,11 +317,9 @@ int runCommand(const std::vector<std::string> &args) {
       return CannotWrite;
     }
   }
-  using ms = std::chrono::duration<double, std::milli>;
   std::fprintf(stderr, "ran %s: %s, step %g ms, %g ms simulated, %ld steps; compile %.1f ms, simulate %.1f ms\n",
                model.protocol.name.c_str(), ir::methodName(model.protocol.method), model.protocol.step * 1e3,
-               model.protocol.duration * 1e3, stats.steps, ms(compiled - started).count(),
-               ms(finished - compiled).count());
+               model.protocol.duration * 1e3, stats.steps, outcome.compileMs, outcome.simulateMs);
   if (!std::isnan(stats.chargeBalanceError))
     std::fprintf(stderr, "charge balance: membrane charge and dynamic ion charge agree to %.3g (relative)\n",
                  stats.chargeBalanceError);

@@ -21,7 +21,11 @@ commands:
   show FILE       print the resolved model: concentrations, reversal potentials, GHK rest
   run FILE        simulate one of the spec's protocols and write the recorded traces
   test PATH...    measure every expectation of the specs under PATH; N passed, M failed
+  snapshot FILE   record the protocols' traces as reference files for expectations
   rest FILE       find every steady state with no injected current, and its stability
+  methods FILE    write a methods-section description (Markdown or LaTeX) of the model
+  fmt FILE...     rewrite specs in the canonical layout (--check: only list those that differ)
+  hash FILE       print the SHA-256 of the model: its modules in canonical form, no comments
   help [COMMAND]  show this help, or a command's help
 
 options:
@@ -30,6 +34,7 @@ options:
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
              73 an output file could not be written; 1 from `brine test` when expectations failed
+             and from `brine fmt --check` when a file is not in canonical layout
 
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -69,8 +74,16 @@ int main(int argc, char **argv) {
       return brine::cli::runCommand(rest);
     if (command == "test")
       return brine::cli::testCommand(rest);
+    if (command == "snapshot")
+      return brine::cli::snapshotCommand(rest);
     if (command == "rest")
       return brine::cli::restCommand(rest);
+    if (command == "fmt")
+      return brine::cli::fmtCommand(rest);
+    if (command == "hash")
+      return brine::cli::hashCommand(rest);
+    if (command == "methods")
+      return brine::cli::methodsCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
     return brine::cli::Usage;
   } catch (const std::exception &e) {

@@ -621,10 +621,13 @@ private:
     d->name = "";
     d->nameRange = d->measureRange;
     for (P::ExpectArgContext *a : ctx->expectArg()) {
-      // expectArg : recordTarget | expr ;
+      // expectArg : STRING | recordTarget | expr ;
       ExpectArg arg;
       arg.range = range(a);
-      if (a->recordTarget())
+      if (a->STRING()) {
+        arg.isString = true;
+        arg.text = unquote(a->STRING()->getText());
+      } else if (a->recordTarget())
         arg.path = a->recordTarget()->getText();
       else
         arg.value = build(a->expr());

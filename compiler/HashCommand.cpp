@@ -1,0 +1,152 @@
+// HashCommand.cpp - `brine hash`: one SHA-256 naming a model exactly, whatever its layout.
+//
+// Digests the tool version, then each module the spec loads (dependencies first, the root
+// last): its name and its bare canonical form (parse/Format.h), which has no comments and no
+// layout left. Reformatting or editing comments keeps the hash; changing any token changes it.
+#include "Commands.h"
+
+#include "Diagnostics.h"
+#include "Modules.h"
+#include "Sha256.h"
+#include "Source.h"
+#include "parse/Format.h"
+
+#include <cstdio>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+#include <unistd.h>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *hashHelp = R"(usage: brine hash [options] FILE
+
+Prints a SHA-256 that identifies the model in FILE: it covers the brine version and, for
+FILE and every module it uses (standard modules by name, other files by their path relative
+to FILE's directory), the canonical form without comments. Reformatting a spec or editing
+its comments leaves the hash unchanged; changing any number, unit or name changes it.
+
+output: sha256:<64 hex digits>  FILE
+
+options:
+  --format text|json  the line above (default), or {"file", "hash", "version", "modules"}
+                      where each module has its "name" and its own "hash"
+  --version           print the version
+  --help              show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec or a module it uses has syntax errors or
+             cannot be read, 70 internal fault
+)";
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), hashHelp);
+  return Usage;
+}
+
+// A module's name as hashed: std modules by name, the root as "(root)", other files by
+// their path relative to the root's directory, so moving the whole model keeps the hash.
+std::string hashedName(const ast::Module &module, const ast::Program &program, const std::string &rootPath) {
+  if (&module == program.root)
+    return "(root)";
+  for (const StdModule &m : stdModules())
+    if (module.name == m.name)
+      return module.name;
+  namespace fs = std::filesystem;
+  fs::path base = fs::path(rootPath).parent_path();
+  if (base.empty())
+    return fs::path(module.name).lexically_normal().generic_string();
+  fs::path relative = fs::path(module.name).lexically_relative(base);
+  return (relative.empty() ? fs::path(module.name) : relative).generic_string();
+}
+
+} // namespace
+
+int hashCommand(const std::vector<std::string> &args) {
+  std::vector<std::string> files;
+  std::string format = "text";
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    if (a == "--help" || a == "-h") {
+      std::fputs(hashHelp, stdout);
+      return Ok;
+    }
+    if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    }
+    if (a == "--format" || a.rfind("--format=", 0) == 0) {
+      if (a == "--format") {
+        if (i + 1 >= args.size())
+          return usage("--format needs a value: 'text' or 'json'");
+        format = args[++i];
+      } else {
+        format = a.substr(9);
+      }
+      if (format != "text" && format != "json")
+        return usage("--format must be 'text' or 'json', not '" + format + "'");
+    } else if (a == "--") {
+      files.insert(files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
+      break;
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usage("unknown option '" + a + "'");
+    } else {
+      files.push_back(a);
+    }
+  }
+  if (files.empty())
+    return usage("no spec file given");
+  if (files.size() != 1)
+    return usage("hash takes exactly one spec file");
+
+  bool colour = isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
+  SourceManager sources;
+  DiagnosticEngine diags;
+  std::string error;
+  const SourceFile *root = sources.load(files[0], error);
+  if (!root) {
+    std::fprintf(stderr, "brine: cannot read '%s': %s\n", files[0].c_str(), error.c_str());
+    return SpecErrors;
+  }
+  ast::Program program;
+  bool loaded = loadProgram(*root, sources, diags, program);
+  if (!loaded) {
+    // Only what stopped the loading is worth showing; `brine check` reports the rest.
+    for (const Diagnostic &d : diags.all())
+      std::fputs(renderText(d, colour).c_str(), stderr);
+    return SpecErrors;
+  }
+
+  Sha256 whole;
+  std::string header = "brine-hash 1\nversion " + std::string(BRINE_VERSION) + "\n";
+  whole.update(header);
+  nlohmann::json modules = nlohmann::json::array();
+  for (const auto &module : program.modules) {
+    DiagnosticEngine formatDiags;
+    std::optional<std::string> bare = bareSpec(*module->file, formatDiags);
+    if (!bare) {
+      for (const Diagnostic &d : formatDiags.all())
+        std::fputs(renderText(d, colour).c_str(), stderr);
+      return SpecErrors;
+    }
+    std::string name = hashedName(*module, program, root->path());
+    // Length-prefixed, so no two different module lists digest the same bytes.
+    whole.update("module " + std::to_string(name.size()) + " " + name + " " + std::to_string(bare->size()) + "\n");
+    whole.update(*bare);
+    modules.push_back({{"name", name}, {"hash", "sha256:" + sha256Hex(*bare)}});
+  }
+  std::string hash = "sha256:" + toHex(whole.digest());
+  if (format == "json") {
+    nlohmann::json out{{"file", files[0]}, {"hash", hash}, {"version", BRINE_VERSION}, {"modules", modules}};
+    std::printf("%s\n", out.dump(2).c_str());
+  } else {
+    std::printf("%s  %s\n", hash.c_str(), files[0].c_str());
+  }
+  return Ok;
+}
+
+} // namespace brine::cli

@@ -1,0 +1,138 @@
+// MethodsCommand.cpp - `brine methods`: a methods-section description of a checked model
+// (the text is generated in Methods.cpp).
+#include "Commands.h"
+
+#include "Methods.h"
+#include "Pipeline.h"
+
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <unistd.h>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *methodsHelp = R"(usage: brine methods [options] FILE
+
+Writes a methods-section description of the checked model, to paste into a paper and edit:
+the temperature; the sign conventions (V inside minus outside, membrane current positive
+outward); the solutions of each compartment with the Nernst reversal potentials at the model
+temperature and the exact 2019 SI constants used; each compartment's geometry, membrane area
+and specific capacitance; each channel type with the ions it carries, its reversal (Nernst,
+GHK with permeability ratios, or as written), its density in each compartment and its gating
+equations as LaTeX math, with Q10; each pump and exchanger with its cycle, net charge and
+activity law; each protocol with its stimuli, recordings and integration method (with
+references); the tool version. The output is deterministic.
+
+options:
+  --format markdown|latex  Markdown with $...$ math (default), or LaTeX: a complete document
+                           (article class and amsmath only)
+  --fragment               with --format latex: the body only, without \documentclass and
+                           \begin{document} ... \end{document}
+  -o FILE                  write to FILE (atomically) instead of standard output
+  --version                print the version
+  --help                   show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
+             73 the output file could not be written
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), methodsHelp);
+  return Usage;
+}
+
+} // namespace
+
+int methodsCommand(const std::vector<std::string> &args) {
+  std::vector<std::string> files;
+  std::string formatName = "markdown", output;
+  bool fragment = false, help = false, version = false;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    auto value = [&](const std::string &name, std::string &into, bool &missing) -> bool {
+      if (a.rfind(name + "=", 0) == 0 && name != "-o") {
+        into = a.substr(name.size() + 1);
+        return true;
+      }
+      if (a == name) {
+        if (i + 1 >= args.size()) {
+          missing = true;
+          return true;
+        }
+        into = args[++i];
+        return true;
+      }
+      return false;
+    };
+    bool missing = false;
+    if (a == "--help" || a == "-h")
+      help = true;
+    else if (a == "--version")
+      version = true;
+    else if (a == "--fragment")
+      fragment = true;
+    else if (value("--format", formatName, missing)) {
+      if (missing)
+        return usage("--format needs a value: markdown or latex");
+      if (formatName != "markdown" && formatName != "latex")
+        return usage("--format must be 'markdown' or 'latex', not '" + formatName + "'");
+    } else if (value("-o", output, missing)) {
+      if (missing || output.empty())
+        return usage("-o needs a file name");
+    } else if (a == "--") {
+      files.insert(files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
+      break;
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usage("unknown option '" + a + "'");
+    } else {
+      files.push_back(a);
+    }
+  }
+  if (help) {
+    std::fputs(methodsHelp, stdout);
+    return Ok;
+  }
+  if (version) {
+    std::printf("brine %s\n", BRINE_VERSION);
+    return Ok;
+  }
+  if (files.size() != 1)
+    return usage(files.empty() ? "no spec file given" : "methods takes exactly one spec file");
+  if (fragment && formatName != "latex")
+    return usage("--fragment needs --format latex");
+
+  Compilation c;
+  compileFile(files[0], c);
+  bool colour = isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
+  for (const Diagnostic &d : c.diags.all())
+    std::fputs(renderText(d, colour).c_str(), stderr);
+  if (c.diags.errorCount() > 0 || !c.checked)
+    return SpecErrors;
+
+  MethodsOptions options;
+  options.format = formatName == "latex" ? MethodsFormat::Latex : MethodsFormat::Markdown;
+  options.fragment = fragment;
+  options.sourceName = std::filesystem::path(files[0]).filename().string();
+  std::string text = methodsText(c, options);
+  if (output.empty()) {
+    std::fputs(text.c_str(), stdout);
+    return Ok;
+  }
+  std::string error;
+  if (!writeFileAtomically(output, text, error)) {
+    std::fprintf(stderr, "brine: %s\n", error.c_str());
+    return CannotWrite;
+  }
+  return Ok;
+}
+
+} // namespace brine::cli

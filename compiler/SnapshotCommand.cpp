@@ -1,0 +1,138 @@
+// SnapshotCommand.cpp - `brine snapshot`: records a model's protocols into reference files
+// that expectations compare later runs with (snapshot_max_error, snapshot_rms_error).
+#include "Commands.h"
+
+#include "Lower.h"
+#include "Pipeline.h"
+#include "Run.h"
+#ifdef BRINE_HAVE_JIT
+#include "JIT.h"
+#endif
+
+#include <cstdio>
+#include <filesystem>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *snapshotHelp = R"(usage: brine snapshot [options] FILE
+
+Runs each protocol of FILE (or the one named) and writes its recorded quantities to
+<stem>.<protocol>.snapshot.csv beside FILE: comment lines starting with '#' (tool version,
+model, protocol, method, step), a header "time (ms),soma.V (mV),...", then one row per
+recorded sample with 12 significant digits, so a snapshot diffs line by line. Expectations
+compare later runs with it:
+
+  expect step10: snapshot_max_error(axon.V, "squid_axon_1952.step10.snapshot.csv") < 1e-6 mV
+
+options:
+  --protocol NAME          only this protocol
+  --engine jit|interpreter native code (default) or the reference interpreter
+  --version                print the version
+  --help                   show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors or a run failed, 70 internal
+             fault, 73 a snapshot could not be written
+)";
+
+} // namespace
+
+int snapshotCommand(const std::vector<std::string> &args) {
+  std::string file, only, engine = "jit";
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    if (a == "--help" || a == "-h") {
+      std::fputs(snapshotHelp, stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if ((a == "--protocol" || a == "--engine") && i + 1 < args.size()) {
+      (a == "--protocol" ? only : engine) = args[++i];
+    } else if (a.size() > 1 && a[0] == '-') {
+      std::fprintf(stderr, "brine: unknown option '%s'\n\n%s", a.c_str(), snapshotHelp);
+      return Usage;
+    } else if (file.empty()) {
+      file = a;
+    } else {
+      std::fprintf(stderr, "brine: snapshot takes one spec file\n\n%s", snapshotHelp);
+      return Usage;
+    }
+  }
+  if (file.empty() || (engine != "jit" && engine != "interpreter")) {
+    std::fprintf(stderr, "brine: %s\n\n%s", file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'",
+                 snapshotHelp);
+    return Usage;
+  }
+  Compilation c;
+  compileFile(file, c);
+  for (const Diagnostic &d : c.diags.all())
+    std::fputs(renderText(d).c_str(), stderr);
+  if (c.diags.errorCount() > 0)
+    return SpecErrors;
+  KernelCompiler compile;
+#ifdef BRINE_HAVE_JIT
+  std::unique_ptr<JIT> jit;
+  if (engine == "jit")
+    compile = [&jit](const ir::Kernel &k, std::string &error) -> KernelFn {
+      if (!jit)
+        jit = JIT::create(error);
+      return jit ? jit->compile(k, error) : nullptr;
+    };
+#endif
+  std::filesystem::path spec(file);
+  size_t written = 0;
+  for (const ast::ProtocolDecl *p : protocols(c.program)) {
+    if (!only.empty() && p->name != only)
+      continue;
+    const ir::Model &model = c.lowered.at(p);
+    RunOutcome run = runModel(model, model.params, compile);
+    if (run.failure.failed) {
+      std::fprintf(stderr, "brine: error: protocol '%s' failed at t = %.6g ms: '%s' %s\n", p->name.c_str(),
+                   run.failure.time * 1e3, run.failure.variable.c_str(), run.failure.reason.c_str());
+      return SpecErrors;
+    }
+    const Trace &t = run.trace;
+    char buf[160];
+    std::string text = "# brine " + std::string(BRINE_VERSION) + " snapshot of model " + model.name + ", protocol " +
+                       p->name + "\n";
+    std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n", ir::methodName(model.protocol.method),
+                  model.protocol.step * 1e3, model.protocol.duration * 1e3);
+    text += buf;
+    text += "# research modelling output; not for clinical or diagnostic decisions\n";
+    text += "time (ms)";
+    for (size_t col = 0; col < t.columns(); ++col)
+      text += "," + t.names[col] + " (" + t.units[col] + ")";
+    text += "\n";
+    for (size_t r = 0; r < t.time.size(); ++r) {
+      std::snprintf(buf, sizeof buf, "%.10g", t.time[r] * 1e3);
+      text += buf;
+      for (size_t col = 0; col < t.columns(); ++col) {
+        std::snprintf(buf, sizeof buf, ",%.12g", t.at(r, col));
+        text += buf;
+      }
+      text += "\n";
+    }
+    std::filesystem::path out = spec.parent_path() / (spec.stem().string() + "." + p->name + ".snapshot.csv");
+    std::string error;
+    if (!writeFileAtomically(out.string(), text, error)) {
+      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      return CannotWrite;
+    }
+    std::fprintf(stderr, "wrote %s (%zu samples of %zu quantities)\n", out.string().c_str(), t.time.size(), t.columns());
+    ++written;
+  }
+  if (written == 0) {
+    std::fprintf(stderr, "brine: error: '%s' has %s\n", file.c_str(),
+                 only.empty() ? "no protocol" : ("no protocol '" + only + "'").c_str());
+    return Usage;
+  }
+  return Ok;
+}
+
+} // namespace brine::cli

@@ -1,0 +1,160 @@
+// Methods.tests.cpp - `brine methods`: golden Markdown and LaTeX for the shipped specs, and
+// the LaTeX rendering of expressions and units.
+//
+// Update the golden files after an intended change with
+//   BRINE_UPDATE_GOLDEN=1 ./brine_tests "[methods]"
+// and review the diff. The tool version is replaced by @VERSION@ before comparing.
+#include "Methods.h"
+#include "TestSupport.h"
+
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+using namespace brine;
+using testing::compile;
+
+namespace {
+
+std::string readFile(const std::string &path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+std::string normaliseVersion(std::string text) {
+  const std::string version = std::string("brine ") + methodsToolVersion();
+  for (size_t at = text.find(version); at != std::string::npos; at = text.find(version, at))
+    text.replace(at, version.size(), "brine @VERSION@"), at += 15;
+  return text;
+}
+
+std::string methodsOf(const std::string &spec, MethodsFormat format, bool fragment = false) {
+  Compilation c;
+  compileFile(std::string(BRINE_SOURCE_DIR) + "/" + spec, c);
+  INFO(testing::allDiagnostics(c));
+  REQUIRE(c.checked);
+  MethodsOptions o;
+  o.format = format;
+  o.fragment = fragment;
+  o.sourceName = std::filesystem::path(spec).filename().string();
+  return methodsText(c, o);
+}
+
+// The first line where the texts differ, for the failure message.
+std::string firstDifference(const std::string &a, const std::string &b) {
+  std::istringstream x(a), y(b);
+  std::string lx, ly;
+  for (int line = 1;; ++line) {
+    bool gx = static_cast<bool>(std::getline(x, lx)), gy = static_cast<bool>(std::getline(y, ly));
+    if (!gx && !gy)
+      return "texts differ only in line endings";
+    if (!gx || !gy || lx != ly)
+      return "line " + std::to_string(line) + ":\n  expected: " + (gx ? lx : "<end>") + "\n  actual:   " +
+             (gy ? ly : "<end>");
+  }
+}
+
+void checkGolden(const std::string &spec, const std::string &name, MethodsFormat format) {
+  std::string actual = normaliseVersion(methodsOf(spec, format));
+  std::string path = std::string(BRINE_TESTS_DIR) + "/golden/methods/" + name +
+                     (format == MethodsFormat::Latex ? ".tex.expected" : ".md.expected");
+  const char *update = std::getenv("BRINE_UPDATE_GOLDEN");
+  if (update && std::string(update) == "1") {
+    std::filesystem::create_directories(std::filesystem::path(path).parent_path());
+    std::ofstream(path, std::ios::binary) << actual;
+    WARN("updated " << path);
+    return;
+  }
+  REQUIRE(std::filesystem::exists(path));
+  std::string expected = readFile(path);
+  INFO(path << " (set BRINE_UPDATE_GOLDEN=1 to regenerate)\n" << firstDifference(expected, actual));
+  CHECK(expected == actual);
+}
+
+const char *squid = "specs/reference/squid_axon_1952.brine";
+const char *tidewater = "specs/demo/tidewater_cell.brine";
+
+} // namespace
+
+TEST_CASE("methods: golden Markdown and LaTeX of the shipped specs", "[methods]") {
+  checkGolden(squid, "squid_axon_1952", MethodsFormat::Markdown);
+  checkGolden(squid, "squid_axon_1952", MethodsFormat::Latex);
+  checkGolden(tidewater, "tidewater_cell", MethodsFormat::Markdown);
+  checkGolden(tidewater, "tidewater_cell", MethodsFormat::Latex);
+}
+
+TEST_CASE("methods: output is deterministic and states what a paper needs", "[methods]") {
+  std::string md = methodsOf(tidewater, MethodsFormat::Markdown);
+  CHECK(md == methodsOf(tidewater, MethodsFormat::Markdown));
+  CHECK(md.find("inside minus outside") != std::string::npos);
+  CHECK(md.find("positive outward") != std::string::npos);
+  CHECK(md.find("8.31446261815324") != std::string::npos);
+  CHECK(md.find("96485.33212331") != std::string::npos);
+  CHECK(md.find("$310.15\\,\\mathrm{K}$") != std::string::npos);
+  CHECK(md.find("| $\\mathrm{K^{+}}$ | $+1$ | 140 | 5 | $-89.0587$ |") != std::string::npos);
+  CHECK(md.find("\\alpha_{m} = \\frac{1.2\\,\\mathrm{ms^{-1}}}{\\operatorname{exprel}") != std::string::npos);
+  CHECK(md.find("m^{3} h") != std::string::npos);
+  CHECK(md.find("P_{\\mathrm{Na}} : P_{\\mathrm{K}} = 1 : 1.3") != std::string::npos);
+  CHECK(md.find("a net charge of $+1\\,e$ outward per cycle") != std::string::npos);
+  CHECK(md.find("Rush & Larsen 1978") != std::string::npos);
+  CHECK(md.find("Model hash: see `brine hash FILE`") != std::string::npos);
+  CHECK(md.find("brine is a research modelling tool; it is not for clinical or diagnostic decisions") !=
+        std::string::npos);
+  // Each function used by the kinetics is defined exactly once.
+  CHECK(md.find("\\operatorname{logistic}\\left(x\\right) = ") != std::string::npos);
+  CHECK(md.find("\\operatorname{logistic}\\left(x\\right) = ") == md.rfind("\\operatorname{logistic}\\left(x\\right) = "));
+  // Channels are sorted by name, compartments keep the model's order.
+  CHECK(md.find("### Channel `MixedCation`") < md.find("### Channel `TidewaterSpikeNa`"));
+  CHECK(md.find("### Compartment `soma`") < md.find("### Compartment `dendrite`"));
+}
+
+TEST_CASE("methods: a LaTeX document uses only article and amsmath; a fragment has no preamble", "[methods]") {
+  std::string doc = methodsOf(squid, MethodsFormat::Latex);
+  CHECK(doc.rfind("\\documentclass{article}\n\\usepackage{amsmath}\n\\begin{document}\n", 0) == 0);
+  CHECK(doc.find("\\usepackage", doc.find("amsmath")) == std::string::npos);
+  CHECK(doc.size() > 15);
+  CHECK(doc.compare(doc.size() - 15, 15, "\\end{document}\n") == 0);
+  std::string fragment = methodsOf(squid, MethodsFormat::Latex, true);
+  CHECK(fragment.find("\\documentclass") == std::string::npos);
+  CHECK(fragment.find("\\end{document}") == std::string::npos);
+  CHECK(fragment.rfind("\\section*{Methods: SquidAxon1952}", 0) == 0);
+  // The Dormand-Prince or Rosenbrock reference appears only when a protocol uses the method.
+  CHECK(doc.find("Dormand") == std::string::npos);
+  CHECK(doc.find("Runge--Kutta method (RK4)") != std::string::npos);
+}
+
+TEST_CASE("methods: units as LaTeX", "[methods]") {
+  CHECK(latexUnit("mV") == "\\mathrm{mV}");
+  CHECK(latexUnit("/ms") == "\\mathrm{ms^{-1}}");
+  CHECK(latexUnit("uA/cm2") == "\\mathrm{\\mu A\\,cm^{-2}}");
+  CHECK(latexUnit("\u00B5m") == "\\mathrm{\\mu m}");
+  CHECK(latexUnit("mol/cm2/s") == "\\mathrm{mol\\,cm^{-2}\\,s^{-1}}");
+  CHECK(latexUnit("J/mol/K") == "\\mathrm{J\\,mol^{-1}\\,K^{-1}}");
+  CHECK(latexUnit("cm^2") == "\\mathrm{cm^{2}}");
+  CHECK(latexUnit("Mohm") == "\\mathrm{M\\Omega}");
+  CHECK(latexUnit("degC") == "{}^{\\circ}\\mathrm{C}");
+}
+
+TEST_CASE("methods: expressions as LaTeX", "[methods]") {
+  auto c = compile(R"(use std.ions
+const k_B2: 1 = 2
+fn f(x: 1) -> 1 = exp(-x) / (1 + x)
+fn g(x: 1) -> 1 = -(x + 1) * 2e-6 - (x - 3)
+fn h(x: 1) -> 1 = pow(x, 2) + (x / 2)^2 + abs(x) + sqrt(x) + k_B2
+fn c(v: mV) -> 1 = if v > 0 mV then 1 else 0
+)");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  auto body = [&](const char *name) {
+    const ast::FnDecl *fn = testing::find<ast::FnDecl>(*c, name);
+    REQUIRE(fn != nullptr);
+    return latexExpr(*fn->body);
+  };
+  CHECK(body("f") == "\\frac{\\exp\\left(-x\\right)}{1 + x}");
+  CHECK(body("g") == "-\\left(x + 1\\right) \\cdot 2 \\times 10^{-6} - \\left(x - 3\\right)");
+  CHECK(body("h") == "{x}^{2} + {\\left(\\frac{x}{2}\\right)}^{2} + \\left|x\\right| + \\sqrt{x} + \\mathrm{k\\_B2}");
+  CHECK(body("c") == "\\begin{cases} 1 & \\text{if } v > 0\\,\\mathrm{mV} \\\\ 0 & \\text{otherwise} \\end{cases}");
+}
