@@ -508,7 +508,7 @@ MethodRef methodInfo(const std::string &method) {
     return {"the classical fourth-order Runge" "\u2013" "Kutta method (RK4) on the full system", ""};
   if (method == "dormand_prince")
     return {"the adaptive embedded Runge" "\u2013" "Kutta 5(4) pair of Dormand & Prince (1980), keeping the error of "
-            "each step below atol + rtol" "\u00B7" "|y|",
+            "each step below " + M("\\mathrm{atol} + \\mathrm{rtol}\\,|y|"),
             "J. R. Dormand and P. J. Prince (1980). A family of embedded Runge" "\u2013" "Kutta formulae. Journal of "
             "Computational and Applied Mathematics 6(1):19" "\u2013" "26."};
   if (method == "rosenbrock")

@@ -22,7 +22,8 @@ namespace {
 
 const char *snapshotHelp = R"(usage: brine snapshot [options] FILE
 
-Runs each protocol of FILE (or the one named) and writes its recorded quantities to
+Runs each protocol declared in FILE (or the one named, which may come from a used file) and
+writes its recorded quantities to
 <stem>.<protocol>.snapshot.csv beside FILE: comment lines starting with '#' (tool version,
 model, protocol, method, step), a header "time (ms),soma.V (mV),...", then one row per
 recorded sample with 12 significant digits, so a snapshot diffs line by line. Expectations
@@ -88,7 +89,11 @@ int snapshotCommand(const std::vector<std::string> &args) {
   std::filesystem::path spec(file);
   size_t written = 0;
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
-    if (!only.empty() && p->name != only)
+    // By default the root file's own protocols; a used model's need --protocol.
+    bool own = false;
+    for (auto &d : c.program.root->decls)
+      own = own || d.get() == p;
+    if (only.empty() ? !own : p->name != only)
       continue;
     const ir::Model &model = c.lowered.at(p);
     RunOutcome run = runModel(model, model.params, compile);

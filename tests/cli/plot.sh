@@ -6,7 +6,7 @@ HH="$SRC/specs/reference/squid_axon_1952.brine"
 expect_rc help 0 run --help
 expect_grep help out "--plot FILE"
 
-expect_rc plot 0 run --engine interpreter --duration 20ms --plot "$TMP/hh.svg" -o "$TMP/hh.csv" "$HH"
+expect_rc plot 0 run --engine interpreter --protocol step10 --duration 20ms --plot "$TMP/hh.svg" -o "$TMP/hh.csv" "$HH"
 [ -s "$TMP/hh.svg" ] || fail "plot: no SVG written"
 [ -s "$TMP/hh.csv" ] || fail "plot: the CSV was not written alongside the plot"
 if [ -s "$TMP/hh.svg" ]; then
@@ -22,12 +22,12 @@ if [ -s "$TMP/hh.svg" ]; then
     echo "note: xmllint not found (apt package libxml2-utils); skipping the XML check"
   fi
   # The same run gives the same bytes.
-  expect_rc again 0 run --engine interpreter --duration 20ms --plot "$TMP/again.svg" -o "$TMP/again.csv" "$HH"
+  expect_rc again 0 run --engine interpreter --protocol step10 --duration 20ms --plot "$TMP/again.svg" -o "$TMP/again.csv" "$HH"
   cmp -s "$TMP/hh.svg" "$TMP/again.svg" || fail "plot: two identical runs gave different SVG"
 fi
 
 # An unwritable path: 73, and stdout still has the CSV (the traces were written first).
-expect_rc unwritable 73 run --engine interpreter --duration 5ms --plot "$TMP/no/such/dir/x.svg" "$HH"
+expect_rc unwritable 73 run --engine interpreter --protocol step10 --duration 5ms --plot "$TMP/no/such/dir/x.svg" "$HH"
 expect_grep unwritable err "brine: "
 
 # A failed spec writes no plot.
