@@ -1004,8 +1004,7 @@ private:
       }
       for (const Clamp &cl : p->clamps)
         stimuli.push_back("A voltage clamp of " + Code(cl.compartment) + " at " + M(mathOf(cl.level)) +
-                          window(cl.from, cl.to) + " (the capacitive transient at a command step is not included in "
-                          "the clamp current).");
+                          window(cl.from, cl.to) + ".");
       for (const Synapse &sy : p->synapses) {
         std::string shape;
         switch (sy.shape) {
@@ -1039,12 +1038,18 @@ private:
         d_.para("Stimuli (injected currents are positive into the cell; each adds to the others):");
         d_.items(stimuli);
       }
+      if (!p->clamps.empty())
+        d_.para("Where clamp windows overlap, the earlier line wins. While clamped, " + M("V") +
+                " follows the command and the clamp current is the membrane's ionic current at the command "
+                "potential (outward positive); the capacitive transient at a command step is not included.");
       std::vector<std::string> records;
       for (const RecordTarget &r : p->records)
         records.push_back(Code(r.path));
       std::string rec = records.empty() ? "Recorded: the membrane potential of every compartment"
                                         : "Recorded: " + joinAnd(records);
-      rec += p->every ? ", every " + M(mathOf(p->every)) + "." : std::string(", at every step.");
+      rec += p->every ? ", every " + M(mathOf(p->every)) + "."
+                      : ", every " + (p->step ? M(mathOf(p->step)) : M("10\\,\\mu\\mathrm{s}")) +
+                            " (by default, the step).";
       d_.para(rec);
     }
   }

@@ -31,6 +31,28 @@ printf 'const a = 1 mV + 1 ms\nexpect rest(x) == 1 mV\n' >"$TMP/broken.brine"
 expect_rc broken 65 test "$TMP/broken.brine"
 expect_grep broken err 'broken.brine:1:[0-9]+: error: cannot add'
 
+# Snapshots: make one of a copy, pass against it, then fail after a small change of the model.
+mkdir "$TMP/snap"
+cp "$SRC/specs/reference/squid_axon_1952.brine" "$TMP/snap/model.brine"
+cat >"$TMP/snap/check.brine" <<'SPEC'
+use "model.brine"
+protocol short {
+  method rk4 step 10 us
+  duration 30 ms
+  inject axon 10 uA/cm2 from 0 ms to 30 ms
+  record axon.V every 0.5 ms
+}
+expect short: snapshot_max_error(axon.V, "check.short.snapshot.csv") < 1e-6 mV
+SPEC
+expect_rc snapshot 0 snapshot "$TMP/snap/check.brine"
+[ -f "$TMP/snap/check.short.snapshot.csv" ] || fail "snapshot: no file written"
+grep -q '^time (ms),axon.V (mV)$' "$TMP/snap/check.short.snapshot.csv" || fail "snapshot: header missing"
+expect_rc snapshot_pass 0 test "$TMP/snap/check.brine"
+sed -i 's/SquidPotassium1952 36 mS\/cm2/SquidPotassium1952 35.9 mS\/cm2/' "$TMP/snap/model.brine"
+grep -q 'SquidPotassium1952 35.9 mS/cm2' "$TMP/snap/model.brine" || fail "snapshot: the perturbation did not apply"
+expect_rc snapshot_fail 1 test "$TMP/snap/check.brine"
+expect_grep snapshot_fail out 'FAIL  line 8  short: snapshot_max_error'
+
 # Usage.
 expect_rc nopath 64 test
 expect_rc badopt 64 test --bogus "$SRC/specs"
