@@ -78,17 +78,7 @@ int usageError(const std::string &message, const char *help) {
 int parseOptions(const std::vector<std::string> &args, Options &o, const char *help, bool allowCheckOptions) {
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) -> bool {
-      if (a.rfind(name + "=", 0) == 0) {
-        into = a.substr(name.size() + 1);
-        return true;
-      }
-      if (a == name && i + 1 < args.size()) {
-        into = args[++i];
-        return true;
-      }
-      return false;
-    };
+    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
     if (a == "--help" || a == "-h")
       o.help = true;
     else if (a == "--version")
@@ -141,6 +131,19 @@ bool useColour(const std::string &setting) {
 }
 
 } // namespace
+
+bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into) {
+  const std::string &a = args[i];
+  if (a.rfind(name + "=", 0) == 0) {
+    into = a.substr(name.size() + 1);
+    return true;
+  }
+  if (a == name && i + 1 < args.size()) {
+    into = args[++i];
+    return true;
+  }
+  return false;
+}
 
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
   std::string temporary = path + ".tmp-" + std::to_string(getpid());

@@ -18,6 +18,10 @@ int methodsCommand(const std::vector<std::string> &args);
 int fmtCommand(const std::vector<std::string> &args);
 int hashCommand(const std::vector<std::string> &args);
 
+/// If args[i] is "NAME=VALUE", or "NAME" followed by a value, stores the value (moving i
+/// past it) and returns true.
+bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
+
 /// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
 } // namespace brine::cli

@@ -178,21 +178,7 @@ int restCommand(const std::vector<std::string> &args) {
     const std::string &a = args[i];
     std::string v;
     bool missing = false;
-    auto value = [&](const char *name, std::string &into) {
-      std::string n(name);
-      if (a.rfind(n + "=", 0) == 0) {
-        into = a.substr(n.size() + 1);
-        return true;
-      }
-      if (a == n) {
-        if (i + 1 < args.size())
-          into = args[++i];
-        else
-          missing = true;
-        return true;
-      }
-      return false;
-    };
+    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
     if (a == "--help" || a == "-h") {
       std::fputs(restHelp, stdout);
       return Ok;

@@ -1,6 +1,8 @@
 // Sha256.cpp - SHA-256 as specified in FIPS 180-4, section 6.2; tested against its vectors.
 #include "Sha256.h"
 
+#include <algorithm>
+
 namespace brine {
 
 namespace {

@@ -130,18 +130,7 @@ int testCommand(const std::vector<std::string> &args) {
   unsigned jobs = std::max(1u, std::thread::hardware_concurrency());
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string &a = args[i];
-    auto value = [&](const char *name, std::string &into) {
-      std::string n(name);
-      if (a.rfind(n + "=", 0) == 0) {
-        into = a.substr(n.size() + 1);
-        return true;
-      }
-      if (a == n && i + 1 < args.size()) {
-        into = args[++i];
-        return true;
-      }
-      return false;
-    };
+    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
     std::string v;
     if (a == "--help" || a == "-h") {
       std::fputs(testHelp, stdout);

@@ -9,6 +9,7 @@
 #include "Parse.h"
 #include "ParseInternal.h"
 
+#include <cctype>
 #include <map>
 #include <stdexcept>
 
@@ -332,6 +333,15 @@ private:
       return false;
     return !t.node->parent->children.empty() && t.node->parent->children[0] == t.node;
   }
+  // A name or keyword (what a parenthesis may be glued to), by its text.
+  static bool isWord(const Token &t) {
+    unsigned char c = t.text.empty() ? 0 : static_cast<unsigned char>(t.text[0]);
+    return std::isalpha(c) || c == '_' || c >= 0x80;
+  }
+  bool firstChild(size_t a) const {
+    const TerminalNode *node = p_.tokens[a].node;
+    return node && node->parent && !node->parent->children.empty() && node->parent->children[0] == node;
+  }
   int parentRule(size_t a) const {
     auto *ctx = p_.tokens[a].node ? dynamic_cast<ParserRuleContext *>(p_.tokens[a].node->parent) : nullptr;
     return ctx ? static_cast<int>(ctx->getRuleIndex()) : -1;
@@ -351,8 +361,8 @@ private:
       glue = (x.type == BrineLexer::IDENT || x.type == BrineLexer::UNIT_POW || x.type == BrineLexer::UNIT_DIV ||
               x.type == BrineLexer::UNIT_MUL || x.text == ")" ||
               (x.type == BrineLexer::NUMBER && parentRule(b) != BrineParser::RuleUnit));
-    else if (y.text == "(" && x.type == BrineLexer::IDENT && sameParent(a, b))
-      glue = true; // a call, or a fn's parameter list
+    else if (y.text == "(" && isWord(x) && !firstChild(b))
+      glue = true; // a call, a fn's parameter list, an expectation's measure: not "(x)" alone
     else if ((y.type == BrineLexer::IN || y.type == BrineLexer::OUT) && x.text == "]" && sameParent(a, b))
       glue = true; // [Na]in
     return glue && lexesApart(x, y);
