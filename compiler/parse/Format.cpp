@@ -489,10 +489,13 @@ private:
       if (!blocks_[b].membrane || oneLine[b])
         continue;
       std::vector<const MembraneColumns *> rows;
-      for (auto [first, last] : blocks_[b].entries) {
+      for (auto [first, entryLast] : blocks_[b].entries) {
+        size_t last = entryLast;
         auto it = membraneRows_.find(first);
         if (it == membraneRows_.end() || it->second.densityBegin == none)
           continue;
+        while (last > first && !keep[last])
+          --last; // a dropped ';' at the end of the entry
         if (!multiLine(keptIndex[first], keptIndex[last]))
           rows.push_back(&it->second);
       }

@@ -3,6 +3,10 @@
 
 #include <catch2/catch.hpp>
 
+#include <cstdio>
+#include <fstream>
+#include <sstream>
+
 using namespace brine;
 
 TEST_CASE("SHA-256 of the FIPS 180-2 messages", "[sha256]") {
@@ -32,4 +36,25 @@ TEST_CASE("SHA-256 across block boundaries", "[sha256]") {
     CHECK(toHex(pieces.digest()) == sha256Hex(text));
   }
   CHECK(sha256Hex(std::string(64, 'a')) == "ffe054fe7ae0cb6dc65c3af9b61d5209f439851db43d0ba5997337df154668eb");
+}
+
+TEST_CASE("SHA-256 agrees with sha256sum on shipped files", "[sha256]") {
+  for (const char *name : {"stdlib/math.brine", "specs/demo/tidewater_cell.brine", "docs/language.md"}) {
+    std::string path = std::string(BRINE_SOURCE_DIR) + "/" + name;
+    std::ifstream in(path, std::ios::binary);
+    std::stringstream text;
+    text << in.rdbuf();
+    std::string command = "sha256sum '" + path + "' 2>/dev/null";
+    FILE *pipe = popen(command.c_str(), "r");
+    REQUIRE(pipe);
+    char line[256] = {0};
+    bool got = std::fgets(line, sizeof line, pipe) != nullptr;
+    pclose(pipe);
+    if (!got) {
+      WARN("sha256sum is not available; skipped " << name);
+      continue;
+    }
+    INFO(name);
+    CHECK(sha256Hex(text.str()) == std::string(line).substr(0, 64));
+  }
 }
