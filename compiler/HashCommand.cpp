@@ -6,6 +6,7 @@
 #include "Commands.h"
 
 #include "Diagnostics.h"
+#include "ModelHash.h"
 #include "Modules.h"
 #include "Sha256.h"
 #include "Source.h"
@@ -46,22 +47,6 @@ exit status: 0 success, 64 bad usage, 65 the spec or a module it uses has syntax
 int usage(const std::string &message) {
   std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), hashHelp);
   return Usage;
-}
-
-// A module's name as hashed: std modules by name, the root as "(root)", other files by
-// their path relative to the root's directory, so moving the whole model keeps the hash.
-std::string hashedName(const ast::Module &module, const ast::Program &program, const std::string &rootPath) {
-  if (&module == program.root)
-    return "(root)";
-  for (const StdModule &m : stdModules())
-    if (module.name == m.name)
-      return module.name;
-  namespace fs = std::filesystem;
-  fs::path base = fs::path(rootPath).parent_path();
-  if (base.empty())
-    return fs::path(module.name).lexically_normal().generic_string();
-  fs::path relative = fs::path(module.name).lexically_relative(base);
-  return (relative.empty() ? fs::path(module.name) : relative).generic_string();
 }
 
 } // namespace
@@ -121,25 +106,16 @@ int hashCommand(const std::vector<std::string> &args) {
     return SpecErrors;
   }
 
-  Sha256 whole;
-  std::string header = "brine-hash 1\nversion " + std::string(BRINE_VERSION) + "\n";
-  whole.update(header);
-  nlohmann::json modules = nlohmann::json::array();
-  for (const auto &module : program.modules) {
-    DiagnosticEngine formatDiags;
-    std::optional<std::string> bare = bareSpec(*module->file, formatDiags);
-    if (!bare) {
-      for (const Diagnostic &d : formatDiags.all())
-        std::fputs(renderText(d, colour).c_str(), stderr);
-      return SpecErrors;
-    }
-    std::string name = hashedName(*module, program, root->path());
-    // Length-prefixed, so no two different module lists digest the same bytes.
-    whole.update("module " + std::to_string(name.size()) + " " + name + " " + std::to_string(bare->size()) + "\n");
-    whole.update(*bare);
-    modules.push_back({{"name", name}, {"hash", "sha256:" + sha256Hex(*bare)}});
+  std::optional<ModelHash> hashed = hashProgram(program, root->path(), diags);
+  if (!hashed) {
+    for (const Diagnostic &d : diags.all())
+      std::fputs(renderText(d, colour).c_str(), stderr);
+    return SpecErrors;
   }
-  std::string hash = "sha256:" + toHex(whole.digest());
+  std::string hash = hashed->hash;
+  nlohmann::json modules = nlohmann::json::array();
+  for (auto &[name, moduleHash] : hashed->modules)
+    modules.push_back({{"name", name}, {"hash", moduleHash}});
   if (format == "json") {
     nlohmann::json out{{"file", files[0]}, {"hash", hash}, {"version", BRINE_VERSION}, {"modules", modules}};
     std::printf("%s\n", out.dump(2).c_str());

@@ -4,6 +4,7 @@
 // then rendered for the chosen format, so both formats say the same thing. Everything the
 // model does not order (channels, pumps, functions, constants) is sorted by name; numbers
 // are either as written in the spec or printed with %.6g.
+#include "ModelHash.h"
 #include "Methods.h"
 
 #include "Analyze.h"
@@ -1058,7 +1059,8 @@ private:
     d_.heading(2, "Software");
     d_.para("The model was specified in the brine modelling language and checked (units, charge and physical "
             "plausibility) by brine " + std::string(BRINE_VERSION) + ".");
-    d_.para("Model hash: see " + Code("brine hash FILE") + ".");
+    d_.para("The exact model, this file and every module it uses, has the hash " + Code(modelHash(c_.program)) +
+            " (SHA-256 over their canonical forms and the tool version; " + Code("brine hash FILE") + ").");
     std::vector<std::string> refs;
     for (const std::string &method : methodsUsed_)
       if (std::string r = methodInfo(method).reference; !r.empty())

@@ -2,6 +2,7 @@
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
 
+#include "ModelHash.h"
 #include "Run.h"
 #include "Lower.h"
 #include "Measures.h"
@@ -121,10 +122,11 @@ std::string csv(const Trace &trace) {
   return out;
 }
 
-std::string json(const Trace &trace, const ir::Model &model) {
+std::string json(const Trace &trace, const ir::Model &model, const std::string &hash) {
   nlohmann::ordered_json doc;
   doc["tool"] = "brine";
   doc["version"] = BRINE_VERSION;
+  doc["model_hash"] = hash;
   doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
   doc["model"] = model.name;
   doc["protocol"] = model.protocol.name;
@@ -288,7 +290,7 @@ int runCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "note: no output was written\n");
     return SpecErrors;
   }
-  std::string text = o.output.size() > 5 && o.output.substr(o.output.size() - 5) == ".json" ? json(trace, model)
+  std::string text = o.output.size() > 5 && o.output.substr(o.output.size() - 5) == ".json" ? json(trace, model, modelHash(c.program))
                                                                                               : csv(trace);
   if (o.output.empty()) {
     std::fputs(text.c_str(), stdout);

@@ -1,6 +1,7 @@
 // Show.cpp - renders the analysed model: concentrations, reversal potentials, GHK rest.
 #include "Show.h"
 
+#include "ModelHash.h"
 #include "Physics.h"
 #include "Pipeline.h"
 
@@ -111,6 +112,7 @@ std::string showJson(const Compilation &c) {
   json doc;
   doc["tool"] = "brine";
   doc["version"] = BRINE_VERSION;
+  doc["model_hash"] = modelHash(c.program);
   doc["caution"] = caution;
   doc["model"] = m.header ? json(m.header->name) : json(nullptr);
   doc["title"] = m.header && !m.header->title.empty() ? json(m.header->title) : json(nullptr);
@@ -200,6 +202,7 @@ std::string showText(const Compilation &c) {
            (values.chargeKnown ? num("%+.0f", double(values.netOutwardCharge)) : "?"));
   }
   line("");
+  line("brine " + std::string(BRINE_VERSION) + ", model " + modelHash(c.program));
   line(std::string("note: ") + caution);
   return out;
 }

@@ -4,6 +4,7 @@
 
 #include "Lower.h"
 #include "Pipeline.h"
+#include "ModelHash.h"
 #include "Run.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
@@ -109,6 +110,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
     std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n", ir::methodName(model.protocol.method),
                   model.protocol.step * 1e3, model.protocol.duration * 1e3);
     text += buf;
+    text += "# model " + modelHash(c.program) + "\n";
     text += "# research modelling output; not for clinical or diagnostic decisions\n";
     text += "time (ms)";
     for (size_t col = 0; col < t.columns(); ++col)

@@ -3,6 +3,7 @@
 #include "Commands.h"
 
 #include "Expect.h"
+#include "ModelHash.h"
 #include "Pipeline.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
@@ -57,7 +58,7 @@ struct FileResult {
   bool specErrors = false;
   std::vector<ExpectResult> results;
   std::unique_ptr<Compilation> compilation; // keeps results' declarations alive
-  std::string hashNote;
+  std::string hash; // the model hash of the file, for reports
 };
 
 std::vector<std::string> discover(const std::vector<std::string> &paths, std::string &error) {
@@ -93,6 +94,7 @@ void runFile(FileResult &f, bool jit) {
   }
   if (expectations(c.program).empty())
     return;
+  f.hash = modelHash(c.program);
   KernelCompiler compile;
 #ifdef BRINE_HAVE_JIT
   std::shared_ptr<JIT> engine;
@@ -193,7 +195,7 @@ int testCommand(const std::vector<std::string> &args) {
     }
     if (f.results.empty())
       continue;
-    out += f.path + "\n";
+    out += f.path + "  (" + f.hash + ")\n";
     for (const ExpectResult &r : f.results) {
       (r.passed ? passed : failed)++;
       out += std::string("  ") + (r.passed ? "PASS" : "FAIL") + "  line " + std::to_string(r.decl->range.begin.line) +
@@ -221,6 +223,9 @@ int testCommand(const std::vector<std::string> &args) {
         fails += !r.passed;
       xml += "  <testsuite name=\"" + xmlEscape(f.path) + "\" tests=\"" + std::to_string(f.results.size()) +
              "\" failures=\"" + std::to_string(fails) + "\" errors=\"" + (f.specErrors ? "1" : "0") + "\">\n";
+      if (!f.hash.empty())
+        xml += "    <properties>\n      <property name=\"model_hash\" value=\"" + xmlEscape(f.hash) +
+               "\"/>\n      <property name=\"brine_version\" value=\"" BRINE_VERSION "\"/>\n    </properties>\n";
       if (f.specErrors)
         xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"check\">\n      <error message=\"the spec has errors\">" +
                xmlEscape(f.diagnostics) + "</error>\n    </testcase>\n";
@@ -255,6 +260,7 @@ int testCommand(const std::vector<std::string> &args) {
     for (const FileResult &f : results)
       for (const ExpectResult &r : f.results)
         list.push_back({{"file", f.path},
+                        {"model_hash", f.hash},
                         {"line", r.decl->range.begin.line},
                         {"expectation", r.decl->text},
                         {"passed", r.passed},

@@ -36,7 +36,7 @@ expect_rc md 0 methods "$TMP/clean.brine"
 expect_grep md out "^# Methods: CliCell"
 expect_grep md out "^\| Ion \| \\\$z\\\$ \|"
 expect_grep md out "inside minus outside"
-expect_grep md out "^Model hash: see \`brine hash FILE\`"
+expect_grep md out 'has the hash `sha256:[0-9a-f]{64}`'
 expect_grep md out "not for clinical or diagnostic decisions"
 expect_rc md2 0 methods --format markdown "$TMP/clean.brine"
 cmp -s "$TMP/md.out" "$TMP/md2.out" || fail "md2: --format markdown differs from the default"
