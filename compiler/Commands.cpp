@@ -1,10 +1,14 @@
 // Commands.cpp - `brine check` and `brine show`: options, output and exit codes.
 #include "Commands.h"
 
+#include "Fuse.h"
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Show.h"
 #include "parse/Parse.h"
+#ifdef BRINE_HAVE_JIT
+#include "JIT.h"
+#endif
 
 #include <cstdio>
 #include <filesystem>
@@ -30,8 +34,9 @@ options:
   --format text|json      diagnostics as text on stderr (default) or one JSON document on stdout
   --warnings-as-errors    fail (exit 65) when there are warnings
   --color auto|always|never  colour text diagnostics (default: auto, when stderr is a terminal)
-  --emit tokens|ast|ir    print the token stream, the syntax tree, or the lowered IR (states,
-                          parameters, kernel) of FILE's first protocol instead of checking
+  --emit tokens|ast|ir|llvm  print the token stream, the syntax tree, the lowered IR (states,
+                          parameters, kernel) of FILE's first protocol, or its kernel's optimised
+                          LLVM IR as the JIT compiles it, instead of checking
   --version               print the version
   --help                  show this help
 
@@ -92,8 +97,8 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
       if (o.color != "auto" && o.color != "always" && o.color != "never")
         return usageError("--color must be 'auto', 'always' or 'never'", help);
     } else if (allowCheckOptions && value("--emit", o.emit)) {
-      if (o.emit != "tokens" && o.emit != "ast" && o.emit != "ir")
-        return usageError("--emit must be 'tokens', 'ast' or 'ir', not '" + o.emit + "'", help);
+      if (o.emit != "tokens" && o.emit != "ast" && o.emit != "ir" && o.emit != "llvm")
+        return usageError("--emit must be 'tokens', 'ast', 'ir' or 'llvm', not '" + o.emit + "'", help);
     } else if (!allowCheckOptions && value("-o", o.output)) {
     } else if (a == "--") {
       o.files.insert(o.files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
@@ -189,7 +194,7 @@ int checkCommand(const std::vector<std::string> &args) {
       std::fputs(dumpTokens(*file).c_str(), stdout);
       return Ok;
     }
-    if (o.emit == "ir") {
+    if (o.emit == "ir" || o.emit == "llvm") {
       Compilation full;
       compileFile(o.files[0], full);
       ir::Model model;
@@ -202,8 +207,26 @@ int checkCommand(const std::vector<std::string> &args) {
       printDiagnostics(full.diags, useColour(o.color));
       if (!ok)
         return SpecErrors;
-      std::fputs(ir::dump(model).c_str(), stdout);
+      if (o.emit == "ir") {
+        std::fputs(ir::dump(model).c_str(), stdout);
+        return Ok;
+      }
+#ifdef BRINE_HAVE_JIT
+      std::string jitError;
+      auto jit = JIT::create(jitError);
+      std::optional<ir::Kernel> fused;
+      if (model.protocol.method == ir::Method::ExponentialEuler)
+        fused = fuseExponentialEuler(model, model.protocol.step);
+      if (!jit || !jit->compile(fused ? *fused : model.kernel, jitError)) {
+        std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", jitError.c_str());
+        return Internal;
+      }
+      std::fputs(jit->lastIR().c_str(), stdout);
       return Ok;
+#else
+      std::fprintf(stderr, "brine: this build has no JIT\n");
+      return Internal;
+#endif
     }
     auto module = parse(*file, c.diags);
     printDiagnostics(c.diags, useColour(o.color));

@@ -170,6 +170,7 @@ TEST_CASE("every shipped spec checks without diagnostics", "[specs]") {
 // Set BRINE_UPDATE_GOLDEN=1 to rewrite the expected files.
 TEST_CASE("golden AST dumps", "[golden]") {
   auto files = brineFiles(fs::path(BRINE_TESTS_DIR) / "golden");
+  REQUIRE(!files.empty());
   for (const fs::path &p : files) {
     DYNAMIC_SECTION(p.filename().string()) {
       SourceManager sources;
