@@ -8,7 +8,7 @@ namespace brine {
 using ir::NodeId;
 using ir::Op;
 
-std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
+std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bool withOutputs) {
   for (const ir::Compartment &c : m.compartments)
     if (c.clampedOutput >= 0)
       return std::nullopt;
@@ -35,7 +35,14 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
   // Gates: x + (inf - x)(1 - e^(-dt/tau)), the Rush-Larsen update.
   for (const ir::Gate &g : m.gates) {
     NodeId inf = output(g.infOutput), tau = output(g.tauOutput), x = k.state(g.state);
-    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.constant(dt), tau)));
+    // A gate given by rates has tau = 1 / (alpha + beta): use e^(-dt (alpha + beta)) and skip
+    // two divisions on the hot path.
+    const ir::Node &tauNode = k.nodes()[tau];
+    NodeId decay;
+    if (tauNode.op == Op::Div && k.nodes()[tauNode.a].op == Op::Const && k.nodes()[tauNode.a].constant == 1)
+      decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Mul, k.constant(dt), tauNode.b)));
+    else
+      decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.constant(dt), tau)));
     next[g.state] = k.binary(Op::Add, inf, k.binary(Op::Mul, k.binary(Op::Sub, x, inf), decay));
   }
   // V: the exact exponential relaxation of C V' = GE - G V - Iother with the gates frozen.
@@ -43,9 +50,10 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
     NodeId g = output(c.gOutput), ge = output(c.geOutput), other = output(c.iOtherOutput);
     NodeId v = k.state(c.voltageState), cap = k.param(c.capacitanceParam);
     NodeId vInf = k.binary(Op::Div, k.binary(Op::Sub, ge, other), g);
-    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.binary(Op::Mul, k.constant(dt), g), cap)));
+    NodeId dtOverC = k.binary(Op::Div, k.constant(dt), cap); // one division, shared
+    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Mul, dtOverC, g)));
     NodeId relaxed = k.binary(Op::Add, vInf, k.binary(Op::Mul, k.binary(Op::Sub, v, vInf), decay));
-    NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Div, k.binary(Op::Mul, k.constant(dt), other), cap));
+    NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Mul, dtOverC, other));
     next[c.voltageState] = k.select(k.binary(Op::Gt, g, k.constant(0)), relaxed, explicitStep);
   }
   // Dynamic concentrations: a forward Euler step of their currents.
@@ -54,8 +62,9 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt) {
                                 k.binary(Op::Mul, k.constant(dt), output(pool.derivativeOutput)));
   for (NodeId n : next)
     k.addOutput(n);
-  for (size_t i = 0; i < m.kernel.outputs.size(); ++i)
-    k.addOutput(output(static_cast<int>(i)));
+  if (withOutputs)
+    for (size_t i = 0; i < m.kernel.outputs.size(); ++i)
+      k.addOutput(output(static_cast<int>(i)));
   return k;
 }
 

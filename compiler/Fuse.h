@@ -13,6 +13,8 @@ namespace brine {
 
 /// The fused step kernel, or nullopt when the model needs the general stepper (a voltage
 /// clamp, whose command replaces V, is handled there).
-std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt);
+/// With `withOutputs` false the kernel computes the next state only (out[0..states)), which
+/// lets the optimiser drop everything that is only recorded; steps between recordings use it.
+std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt, bool withOutputs = true);
 
 } // namespace brine

@@ -13,21 +13,35 @@ RunOutcome runModel(const ir::Model &model, const std::vector<double> &params, c
   RunOutcome out;
   using Clock = std::chrono::steady_clock;
   auto started = Clock::now();
-  std::optional<ir::Kernel> fused;
-  if (model.protocol.method == ir::Method::ExponentialEuler)
+  std::optional<ir::Kernel> fused, stateOnly;
+  if (model.protocol.method == ir::Method::ExponentialEuler) {
     fused = fuseExponentialEuler(model, model.protocol.step);
+    // Steps that record nothing need only the next state; with dynamic concentrations every
+    // step's injected current enters the charge balance, so they keep the full kernel.
+    if (fused && model.pools.empty() && model.protocol.every > model.protocol.step * 1.5)
+      stateOnly = fuseExponentialEuler(model, model.protocol.step, false);
+  }
   Interpreter plain(model.kernel);
-  std::optional<Interpreter> fusedInterpreter;
+  std::optional<Interpreter> fusedInterpreter, stateOnlyInterpreter;
   KernelRef kernel{nullptr, &plain};
   FusedStep step;
   if (fused) {
     fusedInterpreter.emplace(*fused);
-    step = {KernelRef{nullptr, &*fusedInterpreter}, true};
+    step.kernel = KernelRef{nullptr, &*fusedInterpreter};
+    step.available = true;
+  }
+  if (stateOnly) {
+    stateOnlyInterpreter.emplace(*stateOnly);
+    step.stateOnly = KernelRef{nullptr, &*stateOnlyInterpreter};
+    step.hasStateOnly = true;
   }
   if (compile) {
     KernelFn native = compile(fused ? *fused : model.kernel, out.compileError);
-    if (native) {
+    KernelFn nativeStateOnly = native && stateOnly ? compile(*stateOnly, out.compileError) : nullptr;
+    if (native && (!stateOnly || nativeStateOnly)) {
       (fused ? step.kernel : kernel).native = native;
+      if (stateOnly)
+        step.stateOnly.native = nativeStateOnly;
       out.native = true;
     }
   }

@@ -225,16 +225,21 @@ private:
     std::vector<double> buffer(n + out_.size());
     for (long i = 0; i <= steps; ++i) {
       double t = i * dt;
-      fused_.kernel(y_.data(), p_.data(), t, buffer.data());
+      bool recording = i % every == 0 || i == steps;
+      if (recording || !fused_.hasStateOnly)
+        fused_.kernel(y_.data(), p_.data(), t, buffer.data());
+      else
+        fused_.stateOnly(y_.data(), p_.data(), t, buffer.data());
       ++stats_.kernelCalls;
-      if (i % every == 0 || i == steps) {
+      if (recording) {
         std::copy(buffer.begin() + static_cast<long>(n), buffer.end(), out_.begin());
         record(t);
       }
       if (i == steps)
         break;
       std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
-      accumulateInjection(buffer.data() + n, dt);
+      if (!fused_.hasStateOnly) // only needed for a charge balance, which has no state-only kernel
+        accumulateInjection(buffer.data() + n, dt);
       ++stats_.steps;
       if (!healthy(y_, t + dt))
         return;

@@ -50,8 +50,10 @@ struct SimulationStats {
 /// A fused exponential Euler step (Fuse.h): out[0..states) is the next state, then the
 /// model kernel's outputs at the current state.
 struct FusedStep {
-  KernelRef kernel;
+  KernelRef kernel;        // next state and every output (recording steps)
+  KernelRef stateOnly;     // next state only (the other steps); may be unset
   bool available = false;
+  bool hasStateOnly = false;
 };
 
 /// Runs the model's protocol with parameters `params` (same layout as model.params). With

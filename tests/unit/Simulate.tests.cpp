@@ -41,7 +41,7 @@ Run simulateSpec(const std::string &text, bool fuse = true) {
   FusedStep step;
   if (fused) {
     fusedInterpreter.emplace(*fused);
-    step = {KernelRef{nullptr, &*fusedInterpreter}, true};
+    step = {KernelRef{nullptr, &*fusedInterpreter}, KernelRef{}, true, false};
   }
   r.trace = simulate(r.model, r.model.params, kernel, r.failure, &r.stats, step);
   return r;
