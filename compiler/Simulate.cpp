@@ -272,6 +272,40 @@ private:
     }
   }
 
+  enum class Verdict { Accepted, Rejected, Stop };
+
+  // The step control shared by the adaptive methods. `ynew` is the solution at t + step and
+  // `scratch` its kernel outputs. Accepts it (recording when it lands on a recording time)
+  // or rejects it, and picks the next step from the error norm `err` of a method of `order`.
+  Verdict acceptOrReject(double err, int order, double step, double target, bool hitsTarget, double &t, double &h,
+                         long &recordIndex, std::vector<double> &ynew, std::vector<double> &scratch) {
+    double factor = err == 0 ? 5 : std::clamp(0.9 * std::pow(err, -1.0 / order), 0.2, 5.0);
+    Verdict verdict = err <= 1 ? Verdict::Accepted : Verdict::Rejected;
+    if (verdict == Verdict::Accepted) {
+      accumulateTrapezoid(out_.data(), scratch.data(), step);
+      t = hitsTarget ? target : t + step;
+      y_.swap(ynew);
+      out_.swap(scratch);
+      applyClamps(t);
+      if (!healthy(y_, t))
+        return Verdict::Stop;
+      if (hitsTarget) {
+        record(t);
+        ++recordIndex;
+      }
+      // A step cut short to land on a recording time says little about the next one.
+      h = hitsTarget ? std::max(h, step * factor) : step * factor;
+    } else {
+      ++stats_.rejected;
+      h = step * std::max(factor, 0.2);
+    }
+    if (h < 1e-15) {
+      fail(t, 0, "the step size fell below 1e-15 s");
+      return Verdict::Stop;
+    }
+    return verdict;
+  }
+
   // Solves a x = b in place by Gaussian elimination with partial pivoting (n is small).
   static bool solve(std::vector<double> &a, std::vector<double> &b, size_t n) {
     for (size_t col = 0; col < n; ++col) {
@@ -373,29 +407,9 @@ private:
         fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
         return;
       }
-      double factor = err == 0 ? 5 : std::clamp(0.9 / std::sqrt(err), 0.2, 5.0); // order 2: err^(-1/2)
-      if (err <= 1) {
-        evaluate(ynew.data(), t + step, scratch.data());
-        accumulateTrapezoid(out_.data(), scratch.data(), step);
-        t = hitsTarget ? target : t + step;
-        y_.swap(ynew);
-        out_.swap(scratch);
-        applyClamps(t);
-        if (!healthy(y_, t))
-          return;
-        if (hitsTarget) {
-          record(t);
-          ++recordIndex;
-        }
-        h = hitsTarget ? std::max(h, step * factor) : step * factor;
-      } else {
-        ++stats_.rejected;
-        h = step * std::max(factor, 0.2);
-      }
-      if (h < 1e-15) {
-        fail(t, 0, "the step size fell below 1e-15 s");
+      evaluate(ynew.data(), t + step, scratch.data());
+      if (acceptOrReject(err, 2, step, target, hitsTarget, t, h, recordIndex, ynew, scratch) == Verdict::Stop)
         return;
-      }
     }
   }
 
@@ -463,30 +477,11 @@ private:
         fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
         return;
       }
-      double factor = err == 0 ? 5 : std::clamp(0.9 * std::pow(err, -0.2), 0.2, 5.0);
-      if (err <= 1) {
-        accumulateTrapezoid(out_.data(), scratch.data(), step);
-        t = hitsTarget ? target : t + step;
-        y_.swap(ynew);
-        k1.swap(k7); // first same as last
-        out_.swap(scratch);
-        applyClamps(t);
-        if (!healthy(y_, t))
-          return;
-        if (hitsTarget) {
-          record(t);
-          ++recordIndex;
-        }
-        // A step cut short to land on a recording time says little about the next one.
-        h = hitsTarget ? std::max(h, step * factor) : step * factor;
-      } else {
-        ++stats_.rejected;
-        h = step * std::max(factor, 0.2);
-      }
-      if (h < 1e-15) {
-        fail(t, 0, "the step size fell below 1e-15 s");
+      Verdict verdict = acceptOrReject(err, 5, step, target, hitsTarget, t, h, recordIndex, ynew, scratch);
+      if (verdict == Verdict::Stop)
         return;
-      }
+      if (verdict == Verdict::Accepted)
+        k1.swap(k7); // first same as last
     }
   }
 };
