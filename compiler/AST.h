@@ -371,7 +371,8 @@ struct ProtocolDecl : Decl {
   static bool classof(const Decl *d) { return d->kind == DeclKind::Protocol; }
 };
 
-enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual };
+// Measured: a sweep's measure, recorded but not judged.
+enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual, Measured };
 
 /// An argument of a measure: a dotted name (soma.V, K, soma) or a value (0 mV).
 struct ExpectArg {
@@ -397,6 +398,31 @@ struct ExpectDecl : Decl {
   std::string text; // the expectation as written, for reports
   const ProtocolDecl *target = nullptr; // set by Resolve
   static bool classof(const Decl *d) { return d->kind == DeclKind::Expect; }
+};
+
+/// One swept parameter: a range (with a point count for grids) or a list of values.
+struct SweepAxis {
+  std::string parameter; // a lowered parameter name: axon.SquidSodium1952.density
+  SourceRange range;      // the whole `vary` item
+  SourceRange parameterRange;
+  ExprPtr from, to;        // a range
+  double points = 0;       // grid points along the range; 0 when not given
+  SourceRange pointsRange;
+  bool logarithmic = false;
+  std::vector<ExprPtr> values; // a list
+};
+
+enum class SampleDesign { Grid, LatinHypercube, Uniform };
+
+/// sweep NAME { vary ...; sample ...; measure ... }: many runs of the model, one per point.
+struct SweepDecl : Decl {
+  SweepDecl(SourceRange r) : Decl(DeclKind::Sweep, r) {}
+  std::vector<SweepAxis> axes;
+  SampleDesign design = SampleDesign::Grid;
+  double samples = 0, seed = 0; // latin_hypercube / uniform
+  SourceRange sampleRange;
+  std::vector<std::unique_ptr<ExpectDecl>> measures; // check == CheckKind::Measured
+  static bool classof(const Decl *d) { return d->kind == DeclKind::Sweep; }
 };
 
 /// One parsed file.

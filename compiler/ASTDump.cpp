@@ -49,6 +49,7 @@ const char *describe(DeclKind k) {
   case DeclKind::Pump: return "pump";
   case DeclKind::Protocol: return "protocol";
   case DeclKind::Expect: return "expectation";
+  case DeclKind::Sweep: return "sweep";
   }
   return "declaration";
 }
@@ -212,6 +213,30 @@ public:
       expr(1, "activity", p.activity.get());
       break;
     }
+    case DeclKind::Sweep: {
+      auto &sw = static_cast<const SweepDecl &>(d);
+      for (auto &a : sw.axes) {
+        line(1, "vary " + a.parameter + (a.logarithmic ? " logarithmic" : "") +
+                    (a.points > 0 ? " points " + num(a.points) : ""));
+        expr(2, "from", a.from.get());
+        expr(2, "to", a.to.get());
+        for (auto &v : a.values)
+          expr(2, "value", v.get());
+      }
+      if (sw.design != SampleDesign::Grid)
+        line(1, std::string("sample ") + num(sw.samples) +
+                    (sw.design == SampleDesign::LatinHypercube ? " latin_hypercube" : " uniform") + " seed " +
+                    num(sw.seed));
+      for (auto &m : sw.measures) {
+        line(1, "measure " + (m->protocol.empty() ? "" : m->protocol + ": ") + m->measure);
+        for (auto &a : m->args) {
+          if (!a.path.empty())
+            line(2, "arg " + a.path);
+          expr(2, "arg", a.value.get());
+        }
+      }
+      break;
+    }
     case DeclKind::Expect: {
       auto &e = static_cast<const ExpectDecl &>(d);
       line(1, "measure " + (e.protocol.empty() ? "" : e.protocol + ": ") + e.measure);
@@ -220,7 +245,7 @@ public:
           line(2, "arg " + a.path);
         expr(2, "arg", a.value.get());
       }
-      static const char *checks[] = {"==", "in", "<", "<=", ">", ">="};
+      static const char *checks[] = {"==", "in", "<", "<=", ">", ">=", "measured"};
       line(1, std::string("check ") + checks[static_cast<int>(e.check)] + (e.relative ? " relative" : ""));
       expr(2, "value", e.value.get());
       expr(2, "tolerance", e.tolerance.get());

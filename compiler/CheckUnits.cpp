@@ -65,6 +65,22 @@ private:
     case DeclKind::Protocol:
       protocol(static_cast<ProtocolDecl &>(d));
       return;
+    case DeclKind::Sweep: {
+      // Axis values are inferred here; the sweep check compares them with each parameter.
+      auto &sw = static_cast<SweepDecl &>(d);
+      for (SweepAxis &a : sw.axes) {
+        for (Expr *x : {a.from.get(), a.to.get()})
+          if (x)
+            infer(*x);
+        for (ExprPtr &v : a.values)
+          infer(*v);
+      }
+      for (auto &m : sw.measures)
+        for (ExpectArg &a : m->args)
+          if (a.value)
+            infer(*a.value);
+      return;
+    }
     case DeclKind::Expect: {
       // Arguments and values are only inferred here; Expect.cpp knows what each measure wants.
       auto &e = static_cast<ExpectDecl &>(d);

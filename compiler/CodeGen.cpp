@@ -16,9 +16,10 @@ namespace {
 
 class KernelEmitter {
 public:
-  KernelEmitter(const ir::Kernel &kernel, llvm::Module &module)
+  KernelEmitter(const ir::Kernel &kernel, llvm::Module &module, int lanes)
       : kernel_(kernel), module_(module), builder_(module.getContext()),
-        double_(llvm::Type::getDoubleTy(module.getContext())) {}
+        double_(llvm::Type::getDoubleTy(module.getContext())), lanes_(lanes),
+        value_(lanes > 1 ? static_cast<llvm::Type *>(llvm::FixedVectorType::get(double_, lanes)) : double_) {}
 
   bool emit(const std::string &name);
 
@@ -26,13 +27,18 @@ private:
   llvm::Value *emitNode(const ir::Node &n);
   llvm::Value *load(llvm::Value *base, int index, const char *name);
   llvm::Value *truth(llvm::Value *v); // v != 0 (unordered, so NaN is true)
-  llvm::Value *toDouble(llvm::Value *flag) { return builder_.CreateUIToFP(flag, double_); }
+  llvm::Value *toDouble(llvm::Value *flag) { return builder_.CreateUIToFP(flag, value_); }
   llvm::Value *libmCall(const char *name, llvm::Value *arg);
+  // A math function of one or two operands: the scalar libm call, or in lane mode glibc's
+  // libmvec variant of the same width (each lane computed on its own, as libmvec promises).
+  llvm::Value *mathCall(const char *name, llvm::Value *a, llvm::Value *b = nullptr);
 
   const ir::Kernel &kernel_;
   llvm::Module &module_;
   llvm::IRBuilder<> builder_;
   llvm::Type *double_;
+  int lanes_;
+  llvm::Type *value_; // double, or <lanes x double>
   llvm::Value *y_ = nullptr, *p_ = nullptr, *t_ = nullptr;
   std::vector<llvm::Value *> values_;
 };
@@ -57,6 +63,8 @@ bool KernelEmitter::emit(const std::string &name) {
   llvm::LLVMContext &ctx = module_.getContext();
   llvm::Type *ptr = llvm::PointerType::getUnqual(ctx);
   auto *type = llvm::FunctionType::get(llvm::Type::getVoidTy(ctx), {ptr, ptr, double_, ptr}, false);
+  // In lane mode y, p and out hold `lanes_` values per slot side by side (slot s of lane l
+  // at s * lanes + l), so each slot is one vector load or store.
   auto *fn = llvm::Function::Create(type, llvm::Function::ExternalLinkage, name, module_);
   fn->setCallingConv(llvm::CallingConv::C);
   fn->setDoesNotThrow();
@@ -70,13 +78,13 @@ bool KernelEmitter::emit(const std::string &name) {
   fn->addParamAttr(3, llvm::Attribute::WriteOnly);
   y_ = fn->getArg(0);
   p_ = fn->getArg(1);
-  t_ = fn->getArg(2);
   fn->getArg(3)->setName("out");
   y_->setName("y");
   p_->setName("p");
-  t_->setName("t");
+  fn->getArg(2)->setName("t");
 
   builder_.SetInsertPoint(llvm::BasicBlock::Create(ctx, "entry", fn));
+  t_ = lanes_ > 1 ? builder_.CreateVectorSplat(lanes_, fn->getArg(2), "ts") : fn->getArg(2);
   // Strict IEEE arithmetic, no FMA contraction: native code then computes exactly what the
   // reference interpreter computes, bit for bit, and the two can be compared to 1e-12.
   builder_.clearFastMathFlags();
@@ -85,20 +93,20 @@ bool KernelEmitter::emit(const std::string &name) {
   for (const ir::Node &n : nodes)
     values_.push_back(emitNode(n));
   for (size_t i = 0; i < kernel_.outputs.size(); ++i) {
-    llvm::Value *slot = builder_.CreateConstInBoundsGEP1_64(double_, fn->getArg(3), i);
-    builder_.CreateStore(values_[kernel_.outputs[i]], slot);
+    llvm::Value *slot = builder_.CreateConstInBoundsGEP1_64(double_, fn->getArg(3), i * lanes_);
+    builder_.CreateAlignedStore(values_[kernel_.outputs[i]], slot, llvm::Align(8));
   }
   builder_.CreateRetVoid();
   return true;
 }
 
 llvm::Value *KernelEmitter::load(llvm::Value *base, int index, const char *name) {
-  llvm::Value *slot = builder_.CreateConstInBoundsGEP1_64(double_, base, static_cast<uint64_t>(index));
-  return builder_.CreateLoad(double_, slot, name + std::to_string(index));
+  llvm::Value *slot = builder_.CreateConstInBoundsGEP1_64(double_, base, static_cast<uint64_t>(index) * lanes_);
+  return builder_.CreateAlignedLoad(value_, slot, llvm::Align(8), name + std::to_string(index));
 }
 
 llvm::Value *KernelEmitter::truth(llvm::Value *v) {
-  return builder_.CreateFCmpUNE(v, llvm::ConstantFP::get(double_, 0.0));
+  return builder_.CreateFCmpUNE(v, llvm::ConstantFP::get(value_, 0.0));
 }
 
 llvm::Value *KernelEmitter::libmCall(const char *name, llvm::Value *arg) {
@@ -115,12 +123,32 @@ llvm::Value *KernelEmitter::libmCall(const char *name, llvm::Value *arg) {
   return call;
 }
 
+llvm::Value *KernelEmitter::mathCall(const char *name, llvm::Value *a, llvm::Value *b) {
+  std::string symbol = name;
+  if (lanes_ > 1) {
+    // The vector function ABI's names: b = SSE (2 lanes), d = AVX2 (4), e = AVX-512 (8).
+    const char *isa = lanes_ == 2 ? "_ZGVbN2" : lanes_ == 4 ? "_ZGVdN4" : "_ZGVeN8";
+    symbol = std::string(isa) + (b ? "vv_" : "v_") + name;
+  }
+  std::vector<llvm::Type *> params(b ? 2 : 1, value_);
+  llvm::FunctionCallee callee = module_.getOrInsertFunction(symbol, llvm::FunctionType::get(value_, params, false));
+  if (auto *f = llvm::dyn_cast<llvm::Function>(callee.getCallee())) {
+    f->setDoesNotAccessMemory();
+    f->setDoesNotThrow();
+    f->setWillReturn();
+  }
+  llvm::CallInst *call = b ? builder_.CreateCall(callee, {a, b}) : builder_.CreateCall(callee, {a});
+  call->setDoesNotThrow();
+  call->setDoesNotAccessMemory();
+  return call;
+}
+
 llvm::Value *KernelEmitter::emitNode(const ir::Node &n) {
   using ir::Op;
   auto a = [&] { return values_[n.a]; };
   auto b = [&] { return values_[n.b]; };
   switch (n.op) {
-  case Op::Const: return llvm::ConstantFP::get(double_, n.constant);
+  case Op::Const: return llvm::ConstantFP::get(value_, n.constant);
   case Op::State: return load(y_, n.index, "y");
   case Op::Param: return load(p_, n.index, "p");
   case Op::Time: return t_;
@@ -129,17 +157,19 @@ llvm::Value *KernelEmitter::emitNode(const ir::Node &n) {
   case Op::Mul: return builder_.CreateFMul(a(), b());
   case Op::Div: return builder_.CreateFDiv(a(), b());
   case Op::Neg: return builder_.CreateFNeg(a());
-  case Op::Pow: return builder_.CreateBinaryIntrinsic(llvm::Intrinsic::pow, a(), b());
-  case Op::Exp: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::exp, a());
-  case Op::Expm1: return libmCall("expm1", a());
-  case Op::Log: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log, a());
-  case Op::Log10: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log10, a());
+  case Op::Pow:
+    return lanes_ > 1 ? mathCall("pow", a(), b()) : builder_.CreateBinaryIntrinsic(llvm::Intrinsic::pow, a(), b());
+  case Op::Exp: return lanes_ > 1 ? mathCall("exp", a()) : builder_.CreateUnaryIntrinsic(llvm::Intrinsic::exp, a());
+  case Op::Expm1: return lanes_ > 1 ? mathCall("expm1", a()) : libmCall("expm1", a());
+  case Op::Log: return lanes_ > 1 ? mathCall("log", a()) : builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log, a());
+  case Op::Log10:
+    return lanes_ > 1 ? mathCall("log10", a()) : builder_.CreateUnaryIntrinsic(llvm::Intrinsic::log10, a());
   case Op::Sqrt: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::sqrt, a());
   case Op::Abs: return builder_.CreateUnaryIntrinsic(llvm::Intrinsic::fabs, a());
   // minnum/maxnum are fmin/fmax: a NaN operand yields the other operand.
   case Op::Min: return builder_.CreateBinaryIntrinsic(llvm::Intrinsic::minnum, a(), b());
   case Op::Max: return builder_.CreateBinaryIntrinsic(llvm::Intrinsic::maxnum, a(), b());
-  case Op::Tanh: return libmCall("tanh", a());
+  case Op::Tanh: return lanes_ > 1 ? mathCall("tanh", a()) : libmCall("tanh", a());
   // Ordered compares are false on NaN, like C++ <, <=, >, >=, ==; != is unordered (true on NaN).
   case Op::Lt: return toDouble(builder_.CreateFCmpOLT(a(), b()));
   case Op::Le: return toDouble(builder_.CreateFCmpOLE(a(), b()));
@@ -159,9 +189,11 @@ llvm::Value *KernelEmitter::emitNode(const ir::Node &n) {
 } // namespace
 
 std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
-                                      const std::string &functionName) {
+                                      const std::string &functionName, int lanes) {
   auto module = std::make_unique<llvm::Module>(functionName, ctx);
-  if (!KernelEmitter(kernel, *module).emit(functionName))
+  if (lanes != 1 && lanes != 2 && lanes != 4 && lanes != 8)
+    return nullptr;
+  if (!KernelEmitter(kernel, *module, lanes).emit(functionName))
     return nullptr;
   return module;
 }

@@ -30,6 +30,26 @@ std::vector<const ExpectDecl *> expectations(const Program &program) {
   return out;
 }
 
+DisplayUnit displayUnit(const Dimension &d) {
+  if (d == dims::voltage())
+    return {"mV", 1e3};
+  if (d == dims::time())
+    return {"ms", 1e3};
+  if (d == dims::rate())
+    return {"Hz", 1};
+  if (d == dims::area())
+    return {"um2", 1e12};
+  if (d == dims::voltage() / dims::current())
+    return {"Mohm", 1e-6};
+  if (d == dims::currentDensity())
+    return {"uA/cm2", 100};
+  if (d == dims::conductanceDensity())
+    return {"mS/cm2", 0.1};
+  if (d == dims::concentration())
+    return {"mM", 1};
+  return {"", 1};
+}
+
 namespace {
 
 enum class Arg { Ion, Compartment, Pump, Trace, Threshold, Time, File };
@@ -104,26 +124,11 @@ Dimension namedDimension(const std::string &name) {
 
 // A value in the unit modellers read for its dimension.
 std::string display(double si, const Dimension &d) {
+  DisplayUnit u = displayUnit(d);
+  bool wide = d == dims::voltage() || d == dims::time() || d == dims::rate();
   char buf[64];
-  if (d == dims::voltage())
-    std::snprintf(buf, sizeof buf, "%.8g mV", si * 1e3);
-  else if (d == dims::time())
-    std::snprintf(buf, sizeof buf, "%.8g ms", si * 1e3);
-  else if (d == dims::rate())
-    std::snprintf(buf, sizeof buf, "%.8g Hz", si);
-  else if (d == dims::area())
-    std::snprintf(buf, sizeof buf, "%.6g um2", si * 1e12);
-  else if (d == dims::voltage() / dims::current())
-    std::snprintf(buf, sizeof buf, "%.6g Mohm", si * 1e-6);
-  else if (d == dims::currentDensity())
-    std::snprintf(buf, sizeof buf, "%.6g uA/cm2", si * 100);
-  else if (d == dims::conductanceDensity())
-    std::snprintf(buf, sizeof buf, "%.6g mS/cm2", si * 0.1);
-  else if (d == dims::concentration())
-    std::snprintf(buf, sizeof buf, "%.6g mM", si);
-  else
-    std::snprintf(buf, sizeof buf, "%.6g", si);
-  return buf;
+  std::snprintf(buf, sizeof buf, wide ? "%.8g" : "%.6g", si * u.scale);
+  return u.name.empty() ? buf : std::string(buf) + " " + u.name;
 }
 
 const CompartmentValues *compartmentNamed(const Model &m, const std::string &name) {
@@ -341,6 +346,7 @@ private:
     case CheckKind::LessEqual: return "<= " + display(v, d);
     case CheckKind::Greater: return "> " + display(v, d);
     case CheckKind::GreaterEqual: return ">= " + display(v, d);
+    case CheckKind::Measured: return "";
     }
     return "";
   }
@@ -359,6 +365,7 @@ private:
     case CheckKind::LessEqual: return m <= v;
     case CheckKind::Greater: return m > v;
     case CheckKind::GreaterEqual: return m >= v;
+    case CheckKind::Measured: return true;
     }
     return false;
   }
@@ -411,24 +418,10 @@ private:
         }
       }
     }
-    for (const rest::CompartmentRest &cr : *rest_) {
-      if (cr.name != compartment)
-        continue;
-      std::vector<const rest::SteadyState *> stable;
-      for (const rest::SteadyState &s : cr.steadyStates)
-        if (s.stable)
-          stable.push_back(&s);
-      if (stable.size() != 1) {
-        why = "has " + std::to_string(stable.size()) + " stable steady states from -150 to +100 mV, not one";
-        return std::nullopt;
-      }
-      if (!resistance)
-        return stable[0]->v;
-      if (!stable[0]->inputResistance)
-        why = "the compartment has no area";
-      return stable[0]->inputResistance;
-    }
-    why = restError_.empty() ? "no steady-state analysis of '" + compartment + "'" : restError_;
+    if (auto v = restMeasure(*rest_, compartment, resistance, why))
+      return v;
+    if (!restError_.empty())
+      why = restError_;
     return std::nullopt;
   }
 
@@ -525,65 +518,125 @@ private:
       why = r.error;
       return std::nullopt;
     }
-    const Trace &t = r.trace;
-    size_t column = 0;
-    while (column < t.columns() && t.names[column] != e.args[0].path)
-      ++column;
-    if (column == t.columns()) {
-      why = "'" + e.args[0].path + "' was not recorded";
-      return std::nullopt;
-    }
-    const ir::Model *m = loweredFor(c_, e.target);
-    double scale = m->recordables[m->findRecordable(e.args[0].path)].scale;
-    std::vector<double> values(t.time.size());
-    for (size_t i = 0; i < t.time.size(); ++i)
-      values[i] = t.at(i, column) / scale; // back to SI
-    double threshold = e.args.size() > 1 && e.args[1].value ? eval(*e.args[1].value) : 0.0;
-    if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
-      auto spikes = measures::spikeTimes(t.time, values, threshold);
-      if (name == "spike_count")
-        return static_cast<double>(spikes.size());
-      if (name == "first_spike") {
-        if (spikes.empty())
-          why = "no spike";
-        return spikes.empty() ? std::nullopt : std::optional<double>(spikes.front());
-      }
-      if (spikes.size() < 2) {
-        why = std::to_string(spikes.size()) + " spike" + (spikes.size() == 1 ? "" : "s") + ", fewer than two";
+    MeasureArgs args;
+    if (e.args.size() > 1 && e.args[1].value)
+      args.value = eval(*e.args[1].value);
+    if (name == "snapshot_max_error" || name == "snapshot_rms_error") {
+      size_t column = 0;
+      while (column < r.trace.columns() && r.trace.names[column] != e.args[0].path)
+        ++column;
+      if (column == r.trace.columns()) {
+        why = "'" + e.args[0].path + "' was not recorded";
         return std::nullopt;
       }
-      if (name == "last_interval")
-        return spikes.back() - spikes[spikes.size() - 2];
-      return measures::firingRate(spikes);
+      const ir::Model *m = loweredFor(c_, e.target);
+      double scale = m->recordables[m->findRecordable(e.args[0].path)].scale;
+      return snapshotError(e, e.args[1].text, r.trace, column, scale, name == "snapshot_rms_error", why);
     }
-    if (name == "peak")
-      return measures::peak(values);
-    if (name == "minimum")
-      return measures::minimum(values);
-    if (name == "mean")
-      return measures::mean(t.time, values);
-    if (name == "final")
-      return values.back();
-    if (name == "snapshot_max_error" || name == "snapshot_rms_error")
-      return snapshotError(e, e.args[1].text, t, column, scale, name == "snapshot_rms_error", why);
-    if (name == "value") {
-      double at = eval(*e.args[1].value);
-      for (size_t i = 1; i < t.time.size(); ++i)
-        if (t.time[i] >= at) {
-          double f = (at - t.time[i - 1]) / (t.time[i] - t.time[i - 1]);
-          return values[i - 1] + f * (values[i] - values[i - 1]);
-        }
-      if (!t.time.empty() && at == t.time.back())
-        return values.back();
-      why = "the run ends before that time";
-      return std::nullopt;
-    }
-    why = "unknown measure";
-    return std::nullopt;
+    return traceMeasure(e, args, *loweredFor(c_, e.target), r.trace, why);
   }
 };
 
 } // namespace
+
+std::optional<double> restMeasure(const std::vector<rest::CompartmentRest> &analysis, const std::string &compartment,
+                                  bool resistance, std::string &why) {
+  for (const rest::CompartmentRest &cr : analysis) {
+    if (cr.name != compartment)
+      continue;
+    std::vector<const rest::SteadyState *> stable;
+    for (const rest::SteadyState &s : cr.steadyStates)
+      if (s.stable)
+        stable.push_back(&s);
+    if (stable.size() != 1) {
+      why = "has " + std::to_string(stable.size()) + " stable steady states from -150 to +100 mV, not one";
+      return std::nullopt;
+    }
+    if (!resistance)
+      return stable[0]->v;
+    if (!stable[0]->inputResistance)
+      why = "the compartment has no area";
+    return stable[0]->inputResistance;
+  }
+  why = "no steady-state analysis of '" + compartment + "'";
+  return std::nullopt;
+}
+
+std::optional<double> traceMeasure(const ExpectDecl &e, const MeasureArgs &args, const ir::Model &model,
+                                   const Trace &t, std::string &why) {
+  const std::string &name = e.measure;
+  size_t column = 0;
+  while (column < t.columns() && t.names[column] != e.args[0].path)
+    ++column;
+  if (column == t.columns()) {
+    why = "'" + e.args[0].path + "' was not recorded";
+    return std::nullopt;
+  }
+  if (t.time.empty()) {
+    why = "nothing was recorded";
+    return std::nullopt;
+  }
+  double scale = model.recordables[model.findRecordable(e.args[0].path)].scale;
+  std::vector<double> values(t.time.size());
+  for (size_t i = 0; i < t.time.size(); ++i)
+    values[i] = t.at(i, column) / scale; // back to SI
+  double threshold = std::isnan(args.value) ? 0.0 : args.value;
+  if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
+    auto spikes = measures::spikeTimes(t.time, values, threshold);
+    if (name == "spike_count")
+      return static_cast<double>(spikes.size());
+    if (name == "first_spike") {
+      if (spikes.empty())
+        why = "no spike";
+      return spikes.empty() ? std::nullopt : std::optional<double>(spikes.front());
+    }
+    if (spikes.size() < 2) {
+      why = std::to_string(spikes.size()) + " spike" + (spikes.size() == 1 ? "" : "s") + ", fewer than two";
+      return std::nullopt;
+    }
+    if (name == "last_interval")
+      return spikes.back() - spikes[spikes.size() - 2];
+    return measures::firingRate(spikes);
+  }
+  if (name == "peak")
+    return measures::peak(values);
+  if (name == "minimum")
+    return measures::minimum(values);
+  if (name == "mean")
+    return measures::mean(t.time, values);
+  if (name == "final")
+    return values.back();
+  if (name == "value") {
+    double at = args.value;
+    for (size_t i = 1; i < t.time.size(); ++i)
+      if (t.time[i] >= at) {
+        double f = (at - t.time[i - 1]) / (t.time[i] - t.time[i - 1]);
+        return values[i - 1] + f * (values[i] - values[i - 1]);
+      }
+    if (at == t.time.back())
+      return values.back();
+    why = "the run ends before that time";
+    return std::nullopt;
+  }
+  why = "unknown measure";
+  return std::nullopt;
+}
+
+std::optional<Dimension> measuredDimension(const Compilation &c, const ExpectDecl &e) {
+  const MeasureSpec *spec = findMeasure(e.measure);
+  return spec ? measureDimension(c, e, *spec) : std::nullopt;
+}
+
+bool measuredOnRun(const ExpectDecl &e) {
+  const MeasureSpec *spec = findMeasure(e.measure);
+  return spec && spec->protocol;
+}
+
+bool checkMeasure(Compilation &c, const ExpectDecl &e, DiagnosticEngine &diags) {
+  size_t before = diags.errorCount();
+  Validator(c, diags).check(e);
+  return diags.errorCount() == before;
+}
 
 bool checkExpectations(Compilation &c, DiagnosticEngine &diags) {
   size_t before = diags.errorCount();

@@ -4,7 +4,11 @@
 // protocols and steady-state searches as needed, and compares.
 #pragma once
 #include "AST.h"
+#include "Rest.h"
 #include "Run.h"
+#include "Units.h"
+
+#include <cmath>
 
 #include <functional>
 #include <optional>
@@ -29,6 +33,33 @@ struct ExpectResult {
 /// Measures and judges every expectation of the program, in declaration order. Protocols
 /// run once each; `compile` (may be empty) makes their kernels native.
 std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &compile);
+
+/// The unit a value of some dimension is shown in, and the factor from SI to it.
+struct DisplayUnit {
+  std::string name; // "mV", "ms", "Hz", ... ("" for plain numbers)
+  double scale = 1;
+};
+DisplayUnit displayUnit(const Dimension &d);
+
+/// Validates one measure (of an expectation or a sweep) as checkExpectations does.
+bool checkMeasure(Compilation &c, const ast::ExpectDecl &e, DiagnosticEngine &diags);
+/// The dimension of a valid measure's value.
+std::optional<Dimension> measuredDimension(const Compilation &c, const ast::ExpectDecl &e);
+/// Whether the measure is taken on a protocol's run (spike_count, peak, ...).
+bool measuredOnRun(const ast::ExpectDecl &e);
+
+/// A measure's value arguments, evaluated once (SI): the threshold or the time.
+struct MeasureArgs {
+  double value = NAN;
+};
+/// A run measure (not a snapshot comparison) of trace `t` recorded from `model`. Pure: safe
+/// to call from several threads.
+std::optional<double> traceMeasure(const ast::ExpectDecl &e, const MeasureArgs &args, const ir::Model &model,
+                                   const Trace &t, std::string &why);
+/// `rest` (or with `resistance`, `input_resistance`) of a compartment from a steady-state
+/// analysis: the one stable steady state.
+std::optional<double> restMeasure(const std::vector<rest::CompartmentRest> &analysis, const std::string &compartment,
+                                  bool resistance, std::string &why);
 
 /// Every expectation of the program, in declaration order.
 std::vector<const ast::ExpectDecl *> expectations(const ast::Program &program);

@@ -135,11 +135,26 @@ std::unique_ptr<JIT> JIT::create(std::string &error) {
   return std::unique_ptr<JIT>(new JIT(std::move(impl)));
 }
 
-KernelFn JIT::compile(const ir::Kernel &kernel, std::string &error) {
+KernelFn JIT::compile(const ir::Kernel &kernel, std::string &error) { return compileLanes(kernel, 1, error); }
+
+int JIT::nativeLanes() const {
+  std::string features = impl_->machine->getTargetFeatureString().str() + ",";
+  if (features.find("+avx512f,") != std::string::npos)
+    return 8;
+  if (features.find("+avx2,") != std::string::npos)
+    return 4;
+  return 2;
+}
+
+KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &error) {
   Impl &impl = *impl_;
+  if (lanes > nativeLanes()) {
+    error = "this CPU's vectors hold at most " + std::to_string(nativeLanes()) + " lanes, not " + std::to_string(lanes);
+    return nullptr;
+  }
   std::string name = "brine_kernel_" + std::to_string(impl.counter++);
   auto context = std::make_unique<llvm::LLVMContext>();
-  std::unique_ptr<llvm::Module> module = codegen(kernel, *context, name);
+  std::unique_ptr<llvm::Module> module = codegen(kernel, *context, name, lanes);
   if (!module) {
     error = "malformed kernel: an operand or output names no earlier node";
     return nullptr;
@@ -156,6 +171,13 @@ KernelFn JIT::compile(const ir::Kernel &kernel, std::string &error) {
   if (llvm::Function *fn = module->getFunction(name)) {
     fn->addFnAttr("target-cpu", impl.machine->getTargetCPU());
     fn->addFnAttr("target-features", impl.machine->getTargetFeatureString());
+    // Keep whole vectors in registers, as libmvec's _ZGVdN4v_exp (ymm) and _ZGVeN8v_exp (zmm)
+    // expect them; without this a CPU that prefers 256-bit vectors splits <8 x double>.
+    if (lanes > 1) {
+      std::string bits = std::to_string(64 * lanes);
+      fn->addFnAttr("min-legal-vector-width", bits);
+      fn->addFnAttr("prefer-vector-width", bits);
+    }
   }
   optimize(*module, *impl.machine, impl.triple);
 

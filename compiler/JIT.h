@@ -17,6 +17,11 @@ public:
   /// Compiles `kernel` (codegen, verifyModule, O3 for the host CPU) and returns its address,
   /// valid while this JIT lives; returns nullptr with `error` set on failure.
   KernelFn compile(const ir::Kernel &kernel, std::string &error);
+  /// The same for `lanes` parameter sets in lockstep (CodeGen.h's lane layout).
+  KernelFn compileLanes(const ir::Kernel &kernel, int lanes, std::string &error);
+  /// The widest lane count this CPU's vector registers hold: 8 with AVX-512, 4 with AVX2,
+  /// otherwise 2 (SSE2, every x86-64).
+  int nativeLanes() const;
   /// The optimised LLVM IR of the last compiled kernel (for `--emit llvm`); the Nth compile
   /// (from 0) defines `brine_kernel_N`.
   const std::string &lastIR() const;

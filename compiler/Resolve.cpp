@@ -229,6 +229,19 @@ private:
       expr(c.q10Reference.get(), {"a Q10 reference temperature"});
       return;
     }
+    case DeclKind::Sweep: {
+      auto &sw = static_cast<SweepDecl &>(d);
+      Context plain{"a sweep"};
+      for (SweepAxis &a : sw.axes) {
+        expr(a.from.get(), plain);
+        expr(a.to.get(), plain);
+        for (ExprPtr &v : a.values)
+          expr(v.get(), plain);
+      }
+      for (auto &m : sw.measures)
+        bindDecl(*m);
+      return;
+    }
     case DeclKind::Expect: {
       auto &e = static_cast<ExpectDecl &>(d);
       Context plain{"an expectation"};

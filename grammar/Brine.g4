@@ -17,6 +17,7 @@ item
   | pumpDecl
   | protocolDecl
   | expectDecl
+  | sweepDecl
   | ';'
   ;
 
@@ -31,7 +32,8 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | CHANNEL | CARRIES | REVERSAL | GATE | POWER | OPENING | CLOSING | STEADY | TAU | Q10 | AT | PUMP
      | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
-     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL | EXPECT | WITHIN | RELATIVE | SOURCE ;
+     | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL | EXPECT | WITHIN | RELATIVE | SOURCE
+     | SWEEP | VARY | POINTS | LOGARITHMIC | VALUES | SAMPLE | LATIN_HYPERCUBE | UNIFORM | SEED | MEASURE ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -96,6 +98,16 @@ expectCheck
   | op=('<' | '<=' | '>' | '>=') expr             # boundCheck
   ;
 
+// sweep NAME { vary PARAM from A to B [points N] [logarithmic] | vary PARAM values A, B, ...;
+//              sample N latin_hypercube|uniform seed S; measure [PROTOCOL:] MEASURE(ARGS) }
+sweepDecl : SWEEP IDENT '{' sweepItem* '}' ;
+sweepItem
+  : VARY recordTarget FROM expr TO expr (POINTS NUMBER)? LOGARITHMIC?   # rangeVary
+  | VARY recordTarget VALUES expr (',' expr)*                          # listVary
+  | SAMPLE NUMBER design=(LATIN_HYPERCUBE | UNIFORM) SEED NUMBER        # sampleItem
+  | MEASURE (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')'     # measureItem
+  | ';'                                                                 # emptySweepItem
+  ;
 // protocol NAME { method ... step ...; duration ...; inject ...; record ... every ... }
 protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
 protocolItem
@@ -215,6 +227,16 @@ EXPECT : 'expect' ;
 WITHIN : 'within' ;
 RELATIVE : 'relative' ;
 SOURCE : 'source' ;
+SWEEP : 'sweep' ;
+VARY : 'vary' ;
+POINTS : 'points' ;
+LOGARITHMIC : 'logarithmic' ;
+VALUES : 'values' ;
+SAMPLE : 'sample' ;
+LATIN_HYPERCUBE : 'latin_hypercube' ;
+UNIFORM : 'uniform' ;
+SEED : 'seed' ;
+MEASURE : 'measure' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

@@ -16,9 +16,29 @@ void KernelRef::operator()(const double *y, const double *p, double t, double *o
 }
 
 namespace {
-
 // A potential beyond this means the integration has gone wrong, not the membrane.
 constexpr double maxPotential = 2.0; // volts
+} // namespace
+
+bool healthyState(const ir::Model &m, const double *y, size_t stride, double t, SimulationFailure &failure) {
+  auto fail = [&](size_t state, const char *reason) {
+    failure.failed = true;
+    failure.time = t;
+    failure.variable = m.stateNames[state];
+    failure.reason = reason;
+    return false;
+  };
+  for (size_t i = 0; i < m.stateNames.size(); ++i)
+    if (!std::isfinite(y[i * stride]))
+      return fail(i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
+  for (const ir::Compartment &c : m.compartments)
+    if (std::fabs(y[static_cast<size_t>(c.voltageState) * stride]) > maxPotential)
+      return fail(static_cast<size_t>(c.voltageState),
+                  "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
+  return true;
+}
+
+namespace {
 
 class Stepper {
 public:
@@ -138,17 +158,7 @@ private:
     }
   }
 
-  bool healthy(const std::vector<double> &y, double t) {
-    for (size_t i = 0; i < y.size(); ++i)
-      if (!std::isfinite(y[i])) {
-        return fail(t, i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
-      }
-    for (const ir::Compartment &c : m_.compartments)
-      if (std::fabs(y[c.voltageState]) > maxPotential)
-        return fail(t, static_cast<size_t>(c.voltageState),
-                    "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
-    return true;
-  }
+  bool healthy(const std::vector<double> &y, double t) { return healthyState(m_, y.data(), 1, t, failure_); }
 
   bool fail(double t, size_t state, const std::string &reason) {
     failure_.failed = true;

@@ -56,6 +56,11 @@ struct FusedStep {
   bool hasStateOnly = false;
 };
 
+/// Checks a state vector whose values are `stride` apart (1 for one run, the lane count for
+/// lockstep runs): every value finite, every potential within +-2 V. On a problem fills
+/// `failure` (time t, the state's name, the cause) and returns false.
+bool healthyState(const ir::Model &model, const double *y, size_t stride, double t, SimulationFailure &failure);
+
 /// Runs the model's protocol with parameters `params` (same layout as model.params). With
 /// exponential Euler and a fused step available, each step is one call of `fused`.
 Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel,

@@ -126,6 +126,8 @@ private:
       return build(c);
     if (auto *c = item->expectDecl())
       return build(c);
+    if (auto *c = item->sweepDecl())
+      return build(c);
     return nullptr; // a stray ';'
   }
 
@@ -609,18 +611,18 @@ private:
     return d;
   }
 
-  // expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
-  DeclPtr build(P::ExpectDeclContext *ctx) {
-    auto d = std::make_unique<ExpectDecl>(range(ctx));
-    if (ctx->IDENT()) {
-      d->protocol = ctx->IDENT()->getText();
-      d->protocolRange = range(ctx->IDENT());
+  // The measure of an expectation or a sweep: [PROTOCOL:] MEASURE(ARGS).
+  void buildMeasure(ExpectDecl &d, antlr4::tree::TerminalNode *protocol, P::WordContext *measure,
+                    const std::vector<P::ExpectArgContext *> &args) {
+    if (protocol) {
+      d.protocol = protocol->getText();
+      d.protocolRange = range(protocol);
     }
-    d->measure = ctx->word()->getText();
-    d->measureRange = range(ctx->word());
-    d->name = "";
-    d->nameRange = d->measureRange;
-    for (P::ExpectArgContext *a : ctx->expectArg()) {
+    d.measure = measure->getText();
+    d.measureRange = range(measure);
+    d.name = "";
+    d.nameRange = d.measureRange;
+    for (P::ExpectArgContext *a : args) {
       // expectArg : STRING | recordTarget | expr ;
       ExpectArg arg;
       arg.range = range(a);
@@ -631,8 +633,21 @@ private:
         arg.path = a->recordTarget()->getText();
       else
         arg.value = build(a->expr());
-      d->args.push_back(std::move(arg));
+      d.args.push_back(std::move(arg));
     }
+  }
+
+  // The text of a rule as written, from `from`'s first token to `to`'s last.
+  std::string written(antlr4::ParserRuleContext *from, antlr4::ParserRuleContext *to) {
+    size_t a = file_.locAtCodePoint(from->getStart()->getStartIndex()).offset;
+    size_t b = file_.locAtCodePoint(to->getStop()->getStopIndex()).offset;
+    return file_.text().substr(a, b - a + 1);
+  }
+
+  // expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
+  DeclPtr build(P::ExpectDeclContext *ctx) {
+    auto d = std::make_unique<ExpectDecl>(range(ctx));
+    buildMeasure(*d, ctx->IDENT(), ctx->word(), ctx->expectArg());
     P::ExpectCheckContext *check = ctx->expectCheck();
     if (auto *eq = dynamic_cast<P::EqualCheckContext *>(check)) {
       // '==' expr (WITHIN expr RELATIVE?)?
@@ -656,11 +671,65 @@ private:
     if (ctx->STRING())
       d->source = unquote(ctx->STRING()->getText());
     // The expectation as written, without its source, for reports.
-    size_t from = ctx->getStart()->getStartIndex();
-    size_t to = check->getStop()->getStopIndex();
-    std::string text = file_.text().substr(file_.locAtCodePoint(from).offset,
-                                           file_.locAtCodePoint(to).offset - file_.locAtCodePoint(from).offset + 1);
+    std::string text = written(ctx, check);
     d->text = text.substr(text.find_first_not_of(" ", 6)); // drop "expect"
+    return d;
+  }
+
+  // sweepDecl : SWEEP IDENT '{' sweepItem* '}' ;
+  DeclPtr build(P::SweepDeclContext *ctx) {
+    auto d = named<SweepDecl>(ctx, ctx->IDENT());
+    std::string owner = "sweep '" + d->name + "'";
+    for (P::SweepItemContext *item : ctx->sweepItem()) {
+      if (auto *c = dynamic_cast<P::RangeVaryContext *>(item)) {
+        // VARY recordTarget FROM expr TO expr (POINTS NUMBER)? LOGARITHMIC?
+        SweepAxis axis;
+        axis.range = range(c);
+        axis.parameter = c->recordTarget()->getText();
+        axis.parameterRange = range(c->recordTarget());
+        axis.from = build(c->expr(0));
+        axis.to = build(c->expr(1));
+        if (c->NUMBER()) {
+          axis.points = parseNumber(c->NUMBER());
+          axis.pointsRange = range(c->NUMBER());
+        }
+        axis.logarithmic = c->LOGARITHMIC() != nullptr;
+        d->axes.push_back(std::move(axis));
+      continue;
+      }
+      if (auto *c = dynamic_cast<P::ListVaryContext *>(item)) {
+        // VARY recordTarget VALUES expr (',' expr)*
+        SweepAxis axis;
+        axis.range = range(c);
+        axis.parameter = c->recordTarget()->getText();
+        axis.parameterRange = range(c->recordTarget());
+        for (P::ExprContext *e : c->expr())
+          axis.values.push_back(build(e));
+        d->axes.push_back(std::move(axis));
+      continue;
+      }
+      if (auto *c = dynamic_cast<P::SampleItemContext *>(item)) {
+        // SAMPLE NUMBER design=(LATIN_HYPERCUBE | UNIFORM) SEED NUMBER
+        if (d->sampleRange.valid()) {
+          duplicate(range(c), d->sampleRange, "the sample design", owner);
+          continue;
+        }
+        d->sampleRange = range(c);
+        d->samples = parseNumber(c->NUMBER(0));
+        d->seed = parseNumber(c->NUMBER(1));
+        d->design = c->LATIN_HYPERCUBE() ? SampleDesign::LatinHypercube : SampleDesign::Uniform;
+      continue;
+      }
+      if (auto *c = dynamic_cast<P::MeasureItemContext *>(item)) {
+        // MEASURE (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')'
+        auto m = std::make_unique<ExpectDecl>(range(c));
+        buildMeasure(*m, c->IDENT(), c->word(), c->expectArg());
+        m->check = CheckKind::Measured;
+        std::string text = written(c, c);
+        m->text = text.substr(text.find_first_not_of(" ", 7)); // drop "measure"
+        d->measures.push_back(std::move(m));
+      }
+    }
     return d;
   }
 
