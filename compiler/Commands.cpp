@@ -5,6 +5,7 @@
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Show.h"
+#include "TraceOutput.h"
 #include "parse/Parse.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
@@ -150,30 +151,9 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
   return false;
 }
 
+// The implementation lives in the runtime, which the standalone executables link too.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
-  std::string temporary = path + ".tmp-" + std::to_string(getpid());
-  {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    if (!out) {
-      error = "cannot create '" + temporary + "'";
-      return false;
-    }
-    out << text;
-    out.flush();
-    if (!out) {
-      error = "cannot write '" + temporary + "'";
-      std::remove(temporary.c_str());
-      return false;
-    }
-  }
-  std::error_code ec;
-  std::filesystem::rename(temporary, path, ec);
-  if (ec) {
-    error = "cannot rename '" + temporary + "' to '" + path + "': " + ec.message();
-    std::remove(temporary.c_str());
-    return false;
-  }
-  return true;
+  return brine::writeFileAtomically(path, text, error);
 }
 
 int checkCommand(const std::vector<std::string> &args) {

@@ -2,13 +2,15 @@
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
 
-#include "ModelHash.h"
-#include "Run.h"
 #include "Lower.h"
 #include "Measures.h"
+#include "ModelHash.h"
 #include "Pipeline.h"
 #include "Plot.h"
+#include "Run.h"
+#include "RunSettings.h"
 #include "Simulate.h"
+#include "TraceOutput.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
 #endif
@@ -16,7 +18,6 @@
 #include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <nlohmann/json.hpp>
 
 #ifndef BRINE_VERSION
 #define BRINE_VERSION "unknown"
@@ -52,45 +53,6 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors or the simulation f
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-// "100 mS/cm2", "50ms", "-20 mV" -> SI value and dimension.
-std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &text) {
-  const char *begin = text.c_str();
-  char *end = nullptr;
-  double number = std::strtod(begin, &end);
-  if (end == begin || !std::isfinite(number))
-    return std::nullopt;
-  std::string unit(end);
-  unit.erase(0, unit.find_first_not_of(' '));
-  while (!unit.empty() && unit.back() == ' ')
-    unit.pop_back();
-  Unit total;
-  bool divide = false;
-  size_t i = 0;
-  if (!unit.empty() && unit[0] == '/') {
-    divide = true;
-    i = 1;
-  }
-  while (i < unit.size()) {
-    size_t j = unit.find_first_of("*/", i);
-    std::string factor = unit.substr(i, j == std::string::npos ? std::string::npos : j - i);
-    int power = 1;
-    if (size_t caret = factor.find('^'); caret != std::string::npos) {
-      power = std::atoi(factor.c_str() + caret + 1);
-      factor = factor.substr(0, caret);
-    }
-    auto found = lookupUnitSymbol(factor);
-    if (!found || found->celsius || power == 0)
-      return std::nullopt;
-    Unit u = found->unit.pow(power);
-    total = divide ? total / u : total * u;
-    if (j == std::string::npos)
-      break;
-    divide = unit[j] == '/';
-    i = j + 1;
-  }
-  return std::make_pair(number * total.scale, total.dim);
-}
-
 struct RunOptions {
   std::string file, protocol, output, engine = "jit";
   std::string plot;
@@ -102,52 +64,6 @@ struct RunOptions {
 int usage(const std::string &message) {
   std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), runHelp);
   return Usage;
-}
-
-std::string csv(const Trace &trace) {
-  std::string out = "time (ms)";
-  for (size_t c = 0; c < trace.columns(); ++c)
-    out += "," + trace.names[c] + " (" + trace.units[c] + ")";
-  out += "\n";
-  char buf[40];
-  for (size_t r = 0; r < trace.time.size(); ++r) {
-    std::snprintf(buf, sizeof buf, "%.10g", trace.time[r] * 1e3);
-    out += buf;
-    for (size_t c = 0; c < trace.columns(); ++c) {
-      std::snprintf(buf, sizeof buf, ",%.12g", trace.at(r, c));
-      out += buf;
-    }
-    out += "\n";
-  }
-  return out;
-}
-
-std::string json(const Trace &trace, const ir::Model &model, const std::string &hash) {
-  nlohmann::ordered_json doc;
-  doc["tool"] = "brine";
-  doc["version"] = BRINE_VERSION;
-  doc["model_hash"] = hash;
-  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
-  doc["model"] = model.name;
-  doc["protocol"] = model.protocol.name;
-  doc["method"] = ir::methodName(model.protocol.method);
-  doc["step_ms"] = model.protocol.step * 1e3;
-  doc["conventions"] = {{"membrane_potential", "inside minus outside"},
-                        {"membrane_current", "positive outward"},
-                        {"injected_current", "positive into the cell"}};
-  std::vector<double> ms;
-  for (double t : trace.time)
-    ms.push_back(t * 1e3);
-  doc["time_ms"] = ms;
-  nlohmann::ordered_json columns = nlohmann::ordered_json::array();
-  for (size_t c = 0; c < trace.columns(); ++c) {
-    std::vector<double> values;
-    for (size_t r = 0; r < trace.time.size(); ++r)
-      values.push_back(trace.at(r, c));
-    columns.push_back({{"name", trace.names[c]}, {"unit", trace.units[c]}, {"values", values}});
-  }
-  doc["columns"] = columns;
-  return doc.dump(1) + "\n";
 }
 
 } // namespace
@@ -224,41 +140,12 @@ int runCommand(const std::vector<std::string> &args) {
     return SpecErrors;
   }
   std::vector<double> params = model.params;
-  for (const std::string &s : o.sets) {
-    size_t eq = s.find('=');
-    if (eq == std::string::npos)
-      return usage("--set needs NAME=VALUE, not '" + s + "'");
-    std::string name = s.substr(0, eq);
-    int index = model.findParam(name);
-    if (index < 0)
-      return usage("there is no parameter '" + name + "'; `brine check --emit ir " + o.file + "` lists them");
-    auto q = parseQuantity(s.substr(eq + 1));
-    if (!q)
-      return usage("cannot read the value in '" + s + "'; write a number and a unit, e.g. 100 mS/cm2");
-    if (q->second != model.paramDims[index])
-      return usage("'" + name + "' must be " + describeDimension(model.paramDims[index]) + ", got " +
-                   describeDimension(q->second));
-    params[index] = q->first;
-  }
-  auto override = [&](const std::string &text, double &into, const char *what) -> bool {
-    if (text.empty())
-      return true;
-    auto q = parseQuantity(text);
-    if (!q || q->second != dims::time() || q->first <= 0) {
-      usage(std::string(what) + " needs a positive time, e.g. 50ms");
-      return false;
-    }
-    into = q->first;
-    return true;
-  };
-  if (!override(o.duration, model.protocol.duration, "--duration") ||
-      !override(o.every, model.protocol.every, "--every"))
-    return Usage;
-  if (model.protocol.method != ir::Method::DormandPrince && model.protocol.method != ir::Method::Rosenbrock) {
-    double ratio = model.protocol.every / model.protocol.step;
-    if (std::fabs(ratio - std::round(ratio)) > 1e-9 * ratio || ratio < 0.5)
-      return usage("the recording interval must be a whole number of steps");
-  }
+  std::string settingError;
+  for (const std::string &s : o.sets)
+    if (!applyParameterSetting(model, s, params, "`brine check --emit ir " + o.file + "` lists them", settingError))
+      return usage(settingError);
+  if (!applyTiming(model.protocol, o.duration, o.every, settingError))
+    return usage(settingError);
 
   KernelCompiler compile;
 #ifdef BRINE_HAVE_JIT
@@ -290,8 +177,8 @@ int runCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "note: no output was written\n");
     return SpecErrors;
   }
-  std::string text = o.output.size() > 5 && o.output.substr(o.output.size() - 5) == ".json" ? json(trace, model, modelHash(c.program))
-                                                                                              : csv(trace);
+  std::string text =
+      isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), BRINE_VERSION) : traceCsv(trace);
   if (o.output.empty()) {
     std::fputs(text.c_str(), stdout);
   } else {

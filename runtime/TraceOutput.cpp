@@ -1,0 +1,87 @@
+// TraceOutput.cpp - CSV and JSON of recorded traces; atomic writes.
+#include "TraceOutput.h"
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <unistd.h>
+
+namespace brine {
+
+std::string traceCsv(const Trace &trace) {
+  std::string out = "time (ms)";
+  for (size_t c = 0; c < trace.columns(); ++c)
+    out += "," + trace.names[c] + " (" + trace.units[c] + ")";
+  out += "\n";
+  char buf[40];
+  for (size_t r = 0; r < trace.time.size(); ++r) {
+    std::snprintf(buf, sizeof buf, "%.10g", trace.time[r] * 1e3);
+    out += buf;
+    for (size_t c = 0; c < trace.columns(); ++c) {
+      std::snprintf(buf, sizeof buf, ",%.12g", trace.at(r, c));
+      out += buf;
+    }
+    out += "\n";
+  }
+  return out;
+}
+
+std::string traceJson(const Trace &trace, const ir::Model &model, const std::string &modelHash,
+                      const std::string &version) {
+  nlohmann::ordered_json doc;
+  doc["tool"] = "brine";
+  doc["version"] = version;
+  doc["model_hash"] = modelHash;
+  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+  doc["model"] = model.name;
+  doc["protocol"] = model.protocol.name;
+  doc["method"] = ir::methodName(model.protocol.method);
+  doc["step_ms"] = model.protocol.step * 1e3;
+  doc["conventions"] = {{"membrane_potential", "inside minus outside"},
+                        {"membrane_current", "positive outward"},
+                        {"injected_current", "positive into the cell"}};
+  std::vector<double> ms;
+  for (double t : trace.time)
+    ms.push_back(t * 1e3);
+  doc["time_ms"] = ms;
+  nlohmann::ordered_json columns = nlohmann::ordered_json::array();
+  for (size_t c = 0; c < trace.columns(); ++c) {
+    std::vector<double> values;
+    for (size_t r = 0; r < trace.time.size(); ++r)
+      values.push_back(trace.at(r, c));
+    columns.push_back({{"name", trace.names[c]}, {"unit", trace.units[c]}, {"values", values}});
+  }
+  doc["columns"] = columns;
+  return doc.dump(1) + "\n";
+}
+
+bool isJsonPath(const std::string &path) { return path.size() > 5 && path.substr(path.size() - 5) == ".json"; }
+
+bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
+  std::string temporary = path + ".tmp-" + std::to_string(getpid());
+  {
+    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
+    if (!out) {
+      error = "cannot create '" + temporary + "'";
+      return false;
+    }
+    out << text;
+    out.flush();
+    if (!out) {
+      error = "cannot write '" + temporary + "'";
+      std::remove(temporary.c_str());
+      return false;
+    }
+  }
+  std::error_code ec;
+  std::filesystem::rename(temporary, path, ec);
+  if (ec) {
+    error = "cannot rename '" + temporary + "' to '" + path + "': " + ec.message();
+    std::remove(temporary.c_str());
+    return false;
+  }
+  return true;
+}
+
+} // namespace brine
