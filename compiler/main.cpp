@@ -26,6 +26,7 @@ commands:
   methods FILE    write a methods-section description (Markdown or LaTeX) of the model
   fmt FILE...     rewrite specs in the canonical layout (--check: only list those that differ)
   hash FILE       print the SHA-256 of the model: its modules in canonical form, no comments
+  build FILE      compile the model into an executable (or, with --shared, a C library)
   help [COMMAND]  show this help, or a command's help
 
 options:
@@ -84,6 +85,8 @@ int main(int argc, char **argv) {
       return brine::cli::hashCommand(rest);
     if (command == "methods")
       return brine::cli::methodsCommand(rest);
+    if (command == "build")
+      return brine::cli::buildCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
     return brine::cli::Usage;
   } catch (const std::exception &e) {

@@ -1,0 +1,356 @@
+// BuildCommand.cpp - `brine build`: a checked spec as a standalone executable or a shared
+// library: every protocol lowered, its kernels emitted as one object (EmitObject.h) and linked
+// with `c++` against the runtime archives, which hold no LLVM and no ANTLR.
+#include "Commands.h"
+
+#include "EmitObject.h"
+#include "Fuse.h"
+#include "Lower.h"
+#include "ModelFile.h"
+#include "ModelHash.h"
+#include "Pipeline.h"
+#include "TraceOutput.h"
+
+#include <cerrno>
+#include <cstdio>
+#include <cstdlib>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+#include <set>
+#include <spawn.h>
+#include <sstream>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+// The build tree's archives and header (configure time); see compiler/CMakeLists.txt.
+#ifndef BRINE_LINK_DRIVER
+#define BRINE_LINK_DRIVER "c++"
+#endif
+#ifndef BRINE_LINK_FLAGS
+#define BRINE_LINK_FLAGS ""
+#endif
+
+extern char **environ;
+
+namespace brine::cli {
+
+namespace fs = std::filesystem;
+
+namespace {
+
+const char *buildHelp = R"(usage: brine build [options] FILE
+
+Checks FILE, lowers every protocol, compiles the model to native code for this machine's CPU
+(the code `brine run` would run) and links it with `c++` into a program that needs neither
+LLVM nor brine when it runs.
+
+Without --shared the program runs the model's protocols and takes the options of `brine run`
+(--protocol, --set, --duration, --every, -o); its CSV and JSON outputs are byte for byte those
+of `brine run`. `PROGRAM --help` lists its protocols and parameters.
+
+With --shared it is a shared library with the C interface in brine_model.h, which is copied
+next to it (see docs/embedding.md).
+
+The result runs only on CPUs with the features of the one that built it.
+
+options:
+  -o FILE        the output (default: FILE's name without .brine, or libNAME.so with --shared);
+                 written atomically
+  --shared       build a shared library instead of an executable
+  --version      print the version
+  --help         show this help
+
+exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault (also when
+             the runtime archives or the C++ compiler driver cannot be found, or linking fails),
+             73 the output could not be written
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine build: error: %s\n\n%s", message.c_str(), buildHelp);
+  return Usage;
+}
+
+int fault(const std::string &message) {
+  std::fprintf(stderr, "brine build: error: %s\n", message.c_str());
+  return Internal;
+}
+
+// Where a moved or installed brine keeps its runtime: PREFIX/bin/brine, PREFIX/lib/brine/.
+fs::path besideBrine(const std::string &file) {
+  std::error_code ec;
+  fs::path self = fs::read_symlink("/proc/self/exe", ec);
+  return ec ? fs::path() : self.parent_path() / ".." / "lib" / "brine" / file;
+}
+
+// The installed copy first, so a moved brine uses its own runtime; then the build tree's.
+std::optional<std::string> findRuntimeFile(const std::string &file, const char *builtAt, std::string &searched) {
+  for (fs::path candidate : {besideBrine(file), fs::path(builtAt)}) {
+    if (candidate.empty())
+      continue;
+    std::error_code ec;
+    if (fs::is_regular_file(candidate, ec))
+      return fs::weakly_canonical(candidate, ec).string();
+    searched += "\n  " + candidate.lexically_normal().string();
+  }
+  return std::nullopt;
+}
+
+std::optional<std::string> findOnPath(const std::string &program) {
+  if (program.find('/') != std::string::npos)
+    return access(program.c_str(), X_OK) == 0 ? std::optional(program) : std::nullopt;
+  const char *path = std::getenv("PATH");
+  std::stringstream dirs(path ? path : "");
+  for (std::string dir; std::getline(dirs, dir, ':');) {
+    std::string candidate = (dir.empty() ? "." : dir) + "/" + program;
+    if (access(candidate.c_str(), X_OK) == 0)
+      return candidate;
+  }
+  return std::nullopt;
+}
+
+// Runs argv[0] with no shell in between (paths with spaces need no quoting); the child's
+// output goes to brine's standard error.
+bool runProgram(const std::vector<std::string> &argv, std::string &error) {
+  std::vector<char *> raw;
+  for (const std::string &a : argv)
+    raw.push_back(const_cast<char *>(a.c_str()));
+  raw.push_back(nullptr);
+  posix_spawn_file_actions_t actions;
+  posix_spawn_file_actions_init(&actions);
+  posix_spawn_file_actions_adddup2(&actions, STDERR_FILENO, STDOUT_FILENO);
+  pid_t pid;
+  int spawned = posix_spawn(&pid, argv[0].c_str(), &actions, nullptr, raw.data(), environ);
+  posix_spawn_file_actions_destroy(&actions);
+  if (spawned != 0) {
+    error = "cannot start '" + argv[0] + "': " + std::strerror(spawned);
+    return false;
+  }
+  int status = 0;
+  while (waitpid(pid, &status, 0) < 0)
+    if (errno != EINTR) {
+      error = "cannot wait for '" + argv[0] + "'";
+      return false;
+    }
+  if (!WIFEXITED(status) || WEXITSTATUS(status) != 0) {
+    std::string command;
+    for (const std::string &a : argv)
+      command += (command.empty() ? "" : " ") + a;
+    error = "linking failed: " + command;
+    return false;
+  }
+  return true;
+}
+
+std::optional<std::string> readBinary(const std::string &path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in)
+    return std::nullopt;
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+// A private directory for the object and the link, removed however the build ends.
+struct ScratchDirectory {
+  fs::path path;
+  ScratchDirectory() {
+    std::string pattern = (fs::temp_directory_path() / "brine-build-XXXXXX").string();
+    if (mkdtemp(pattern.data()))
+      path = pattern;
+  }
+  ~ScratchDirectory() {
+    std::error_code ec;
+    if (!path.empty())
+      fs::remove_all(path, ec);
+  }
+};
+
+struct Kernels {
+  std::vector<ir::Kernel> owned; // fused kernels made here
+  std::vector<const ir::Kernel *> all;
+  std::set<uint64_t> seen;
+  void add(const ir::Kernel &k) {
+    if (seen.insert(kernelFingerprint(k)).second)
+      all.push_back(&k);
+  }
+};
+
+// Every kernel runModel (Run.cpp) can ask for under any --every: the fused exponential Euler
+// step (and its state-only form when there are no dynamic concentrations), else the plain one.
+void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kernels) {
+  std::vector<const ir::Kernel *> plain;
+  for (const ir::Model *m : models) {
+    std::optional<ir::Kernel> fused;
+    if (m->protocol.method == ir::Method::ExponentialEuler)
+      fused = fuseExponentialEuler(*m, m->protocol.step);
+    if (!fused) {
+      plain.push_back(&m->kernel);
+      continue;
+    }
+    kernels.owned.push_back(std::move(*fused));
+    if (m->pools.empty())
+      if (auto stateOnly = fuseExponentialEuler(*m, m->protocol.step, false))
+        kernels.owned.push_back(std::move(*stateOnly));
+  }
+  for (const ir::Kernel *k : plain)
+    kernels.add(*k);
+  // `owned` no longer grows, so pointers into it stay valid.
+  for (const ir::Kernel &k : kernels.owned)
+    kernels.add(k);
+}
+
+struct BuildOptions {
+  std::string file, output;
+  bool shared = false;
+};
+
+} // namespace
+
+int buildCommand(const std::vector<std::string> &args) {
+  BuildOptions o;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    if (a == "--help" || a == "-h") {
+      std::fputs(buildHelp, stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if (a == "--shared") {
+      o.shared = true;
+    } else if (optionValue(args, i, "-o", o.output)) {
+    } else if (a == "-o") {
+      return usage("-o needs a file name");
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usage("unknown option '" + a + "'");
+    } else if (o.file.empty()) {
+      o.file = a;
+    } else {
+      return usage("build takes one spec file");
+    }
+  }
+  if (o.file.empty())
+    return usage("no spec file given");
+  std::string stem = fs::path(o.file).stem().string();
+  if (o.output.empty())
+    o.output = o.shared ? "lib" + stem + ".so" : stem;
+
+  Compilation c;
+  compileFile(o.file, c);
+  for (const Diagnostic &d : c.diags.all())
+    std::fputs(renderText(d).c_str(), stderr);
+  if (c.diags.errorCount() > 0 || !c.checked)
+    return SpecErrors;
+  ModelBundle bundle;
+  bundle.toolVersion = BRINE_VERSION;
+  bundle.modelHash = modelHash(c.program);
+  bundle.source = fs::path(o.file).filename().string();
+  for (const ast::ProtocolDecl *p : protocols(c.program)) {
+    auto lowered = c.lowered.find(p);
+    if (lowered == c.lowered.end())
+      return fault("protocol '" + p->name + "' was not lowered");
+    bundle.protocols.push_back(lowered->second);
+  }
+  if (bundle.protocols.empty()) {
+    std::fprintf(stderr, "brine build: error: '%s' has no protocol to build\n", o.file.c_str());
+    return Usage;
+  }
+
+  // Find everything the link needs before the slow part.
+  struct Needed {
+    const char *file, *builtAt;
+  };
+  std::vector<Needed> needed = {
+      {o.shared ? "libbrine_capi.a" : "libbrine_standalone_main.a",
+       o.shared ? BRINE_CAPI_ARCHIVE : BRINE_STANDALONE_MAIN_ARCHIVE},
+      {"libbrine_standalone.a", BRINE_STANDALONE_ARCHIVE},
+      {"libbrine_runtime.a", BRINE_RUNTIME_ARCHIVE},
+      {"libbrine_support.a", BRINE_SUPPORT_ARCHIVE},
+  };
+  if (o.shared)
+    needed.push_back({"brine_model.h", BRINE_MODEL_HEADER});
+  std::vector<std::string> found;
+  for (const Needed &n : needed) {
+    std::string searched;
+    auto path = findRuntimeFile(n.file, n.builtAt, searched);
+    if (!path)
+      return fault(std::string("cannot find the runtime file '") + n.file + "'; looked in:" + searched);
+    found.push_back(*path);
+  }
+  auto driver = findOnPath(BRINE_LINK_DRIVER);
+  if (!driver)
+    return fault(std::string("cannot find the C++ compiler driver '") + BRINE_LINK_DRIVER +
+                 "' on PATH; it links the model (on Debian: apt-get install g++)");
+
+  ScratchDirectory scratch;
+  if (scratch.path.empty())
+    return fault("cannot create a temporary directory in " + fs::temp_directory_path().string());
+  Kernels kernels;
+  std::vector<const ir::Model *> models;
+  for (const ir::Model &m : bundle.protocols)
+    models.push_back(&m);
+  collectKernels(models, kernels);
+  std::string object = (scratch.path / "model.o").string(), linked = (scratch.path / "linked").string();
+  std::string error;
+  if (!emitModelObject(kernels.all, writeModelBundle(bundle), object, error))
+    return fault(error);
+
+  std::vector<std::string> link = {*driver};
+  if (o.shared) {
+    // Only the C interface is exported; the runtime's C++ symbols stay inside the library.
+    std::string exports = (scratch.path / "exports.map").string();
+    if (!writeFileAtomically(exports, "{\n  global: brine_model_*;\n  local: *;\n};\n", error))
+      return fault(error);
+    link.insert(link.end(), {"-shared", "-Wl,--version-script=" + exports,
+                             "-Wl,-soname," + fs::path(o.output).filename().string()});
+  }
+  link.insert(link.end(), {"-o", linked, object});
+  if (o.shared)
+    link.insert(link.end(), {"-Wl,--whole-archive", found[0], "-Wl,--no-whole-archive"});
+  else
+    link.push_back(found[0]);
+  link.insert(link.end(), {found[1], found[2], found[3], "-lm", "-lpthread"});
+  std::stringstream extra(BRINE_LINK_FLAGS); // the sanitizers the archives were built with
+  for (std::string flag; extra >> flag;)
+    link.push_back(flag);
+  if (!runProgram(link, error))
+    return fault(error);
+
+  auto bytes = readBinary(linked);
+  if (!bytes)
+    return fault("cannot read the linked file '" + linked + "'");
+  if (!writeFileAtomically(o.output, *bytes, error)) {
+    std::fprintf(stderr, "brine build: error: %s\n", error.c_str());
+    return CannotWrite;
+  }
+  std::error_code ec;
+  fs::permissions(o.output,
+                  fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec | fs::perms::others_read |
+                      fs::perms::others_exec,
+                  ec);
+  std::string header;
+  if (o.shared) {
+    header = (fs::path(o.output).parent_path() / "brine_model.h").string();
+    auto text = readBinary(found[4]);
+    if (!text)
+      return fault("cannot read '" + found[4] + "'");
+    if (!writeFileAtomically(header, *text, error)) {
+      std::fprintf(stderr, "brine build: error: %s\n", error.c_str());
+      return CannotWrite;
+    }
+  }
+  std::fprintf(stderr, "built %s: %s '%s', %zu protocol%s, %zu kernel%s%s%s\n", o.output.c_str(),
+               o.shared ? "shared library of" : "executable of", bundle.protocols.front().name.c_str(),
+               bundle.protocols.size(), bundle.protocols.size() == 1 ? "" : "s", kernels.all.size(),
+               kernels.all.size() == 1 ? "" : "s", header.empty() ? "" : "; header ", header.c_str());
+  return Ok;
+}
+
+} // namespace brine::cli

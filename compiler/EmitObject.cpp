@@ -1,0 +1,161 @@
+// EmitObject.cpp - kernels and the model bundle as one relocatable object file (`brine build`).
+//
+// Why an object file with data in it, rather than generated C: the runtime archives and this
+// one object are all the link needs, so `brine build` runs no C++ compiler of its own and the
+// kernels are the very machine code the JIT would run (same passes, same target machine).
+#include "EmitObject.h"
+
+#include "CodeGen.h"
+#include "ModelFile.h"
+#include "StandaloneModel.h"
+
+#include <llvm/Analysis/TargetLibraryInfo.h>
+#include <llvm/ExecutionEngine/Orc/JITTargetMachineBuilder.h>
+#include <llvm/IR/Constants.h>
+#include <llvm/IR/LLVMContext.h>
+#include <llvm/IR/LegacyPassManager.h>
+#include <llvm/IR/Module.h>
+#include <llvm/IR/Verifier.h>
+#include <llvm/Linker/Linker.h>
+#include <llvm/Passes/PassBuilder.h>
+#include <llvm/Support/FileSystem.h>
+#include <llvm/Support/TargetSelect.h>
+#include <llvm/Support/raw_ostream.h>
+#include <llvm/Target/TargetMachine.h>
+
+#include <mutex>
+
+namespace brine {
+namespace {
+
+std::string describe(llvm::Error e) { return llvm::toString(std::move(e)); }
+
+// The same pipeline as JIT.cpp's optimize() (O3, scalar libm only), so a built model computes
+// bit for bit what `brine run` computes.
+void optimize(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
+  llvm::LoopAnalysisManager lam;
+  llvm::FunctionAnalysisManager fam;
+  llvm::CGSCCAnalysisManager cgam;
+  llvm::ModuleAnalysisManager mam;
+  llvm::PassBuilder builder(&machine);
+  llvm::TargetLibraryInfoImpl tlii(triple);
+  fam.registerPass([&] { return llvm::TargetLibraryAnalysis(tlii); });
+  builder.registerModuleAnalyses(mam);
+  builder.registerCGSCCAnalyses(cgam);
+  builder.registerFunctionAnalyses(fam);
+  builder.registerLoopAnalyses(lam);
+  builder.crossRegisterProxies(lam, fam, cgam, mam);
+  builder.buildPerModuleDefaultPipeline(llvm::OptimizationLevel::O3).run(module, mam);
+}
+
+// The target machine the JIT would create: host CPU and features, aggressive codegen, PIC and
+// the small code model (JITTargetMachineBuilder would default to the large one).
+std::unique_ptr<llvm::TargetMachine> hostMachine(llvm::Triple &triple, std::string &error) {
+  static std::once_flag once;
+  std::call_once(once, [] {
+    llvm::InitializeNativeTarget();
+    llvm::InitializeNativeTargetAsmPrinter();
+  });
+  auto builder = llvm::orc::JITTargetMachineBuilder::detectHost();
+  if (!builder) {
+    error = "cannot target this machine: " + describe(builder.takeError());
+    return nullptr;
+  }
+  builder->setCodeGenOptLevel(llvm::CodeGenOptLevel::Aggressive);
+  builder->setCodeModel(llvm::CodeModel::Small);
+  builder->setRelocationModel(llvm::Reloc::PIC_);
+  triple = builder->getTargetTriple();
+  auto machine = builder->createTargetMachine();
+  if (!machine) {
+    error = "cannot create a target machine: " + describe(machine.takeError());
+    return nullptr;
+  }
+  return std::move(*machine);
+}
+
+llvm::GlobalVariable *hiddenConstant(llvm::Module &module, llvm::Constant *value, const char *name) {
+  auto *global =
+      new llvm::GlobalVariable(module, value->getType(), true, llvm::GlobalValue::ExternalLinkage, value, name);
+  global->setVisibility(llvm::GlobalValue::HiddenVisibility);
+  return global;
+}
+
+} // namespace
+
+bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::string &bundleText,
+                     const std::string &path, std::string &error) {
+  llvm::Triple triple;
+  std::unique_ptr<llvm::TargetMachine> machine = hostMachine(triple, error);
+  if (!machine)
+    return false;
+  llvm::LLVMContext ctx;
+  auto module = std::make_unique<llvm::Module>("brine_model", ctx);
+  module->setTargetTriple(triple.str());
+  module->setDataLayout(machine->createDataLayout());
+
+  std::vector<std::pair<uint64_t, std::string>> table;
+  for (size_t i = 0; i < kernels.size(); ++i) {
+    std::string name = "brine_model_kernel_" + std::to_string(i);
+    std::unique_ptr<llvm::Module> kernelModule = codegen(*kernels[i], ctx, name);
+    if (!kernelModule) {
+      error = "malformed kernel: an operand or output names no earlier node";
+      return false;
+    }
+    kernelModule->setTargetTriple(triple.str());
+    kernelModule->setDataLayout(module->getDataLayout());
+    std::string problems;
+    llvm::raw_string_ostream problemStream(problems);
+    if (llvm::verifyModule(*kernelModule, &problemStream)) {
+      error = "codegen produced invalid LLVM IR: " + problemStream.str();
+      return false;
+    }
+    if (llvm::Function *fn = kernelModule->getFunction(name)) {
+      fn->addFnAttr("target-cpu", machine->getTargetCPU());
+      fn->addFnAttr("target-features", machine->getTargetFeatureString());
+    }
+    // Each kernel is optimised alone, as the JIT does, before it joins the others.
+    optimize(*kernelModule, *machine, triple);
+    if (llvm::Linker::linkModules(*module, std::move(kernelModule))) {
+      error = "cannot link kernel " + std::to_string(i) + " into the object";
+      return false;
+    }
+    table.emplace_back(kernelFingerprint(*kernels[i]), name);
+  }
+
+  llvm::Type *i64 = llvm::Type::getInt64Ty(ctx);
+  llvm::Type *ptr = llvm::PointerType::getUnqual(ctx);
+  auto *rowType = llvm::StructType::get(ctx, {i64, ptr});
+  std::vector<llvm::Constant *> rows;
+  for (const auto &[fingerprint, name] : table) {
+    llvm::Function *fn = module->getFunction(name);
+    fn->setVisibility(llvm::GlobalValue::HiddenVisibility);
+    rows.push_back(llvm::ConstantStruct::get(rowType, {llvm::ConstantInt::get(i64, fingerprint), fn}));
+  }
+  hiddenConstant(*module, llvm::ConstantArray::get(llvm::ArrayType::get(rowType, rows.size()), rows),
+                 embeddedKernelsSymbol);
+  hiddenConstant(*module, llvm::ConstantInt::get(i64, rows.size()), embeddedKernelCountSymbol);
+  hiddenConstant(*module, llvm::ConstantDataArray::getString(ctx, bundleText, true), embeddedModelSymbol);
+  hiddenConstant(*module, llvm::ConstantInt::get(i64, bundleText.size()), embeddedModelSizeSymbol);
+
+  std::error_code ec;
+  llvm::raw_fd_ostream out(path, ec, llvm::sys::fs::OF_None);
+  if (ec) {
+    error = "cannot create '" + path + "': " + ec.message();
+    return false;
+  }
+  llvm::legacy::PassManager passes;
+  if (machine->addPassesToEmitFile(passes, out, nullptr, llvm::CodeGenFileType::ObjectFile)) {
+    error = "this target cannot emit object files";
+    return false;
+  }
+  passes.run(*module);
+  out.flush();
+  if (out.has_error()) {
+    error = "cannot write '" + path + "'";
+    out.clear_error();
+    return false;
+  }
+  return true;
+}
+
+} // namespace brine

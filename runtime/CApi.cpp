@@ -1,0 +1,407 @@
+// CApi.cpp - brine_model.h: a built model stepped from C, one fixed step at a time.
+//
+// Exponential Euler runs the fused step kernel (Fuse.h) exactly as `brine run` does, so the
+// states agree with its output bit for bit; RK4, and exponential Euler under a voltage clamp,
+// follow Simulate.cpp's fixed-step loop (evaluate, hold clamps, step).
+#include "brine_model.h"
+
+#include "Fuse.h"
+#include "StandaloneModel.h"
+
+#include <cmath>
+#include <cstring>
+#include <exception>
+#include <optional>
+
+namespace {
+
+using namespace brine;
+
+constexpr double maxPotential = 2.0; // volts, as in Simulate.cpp
+
+thread_local std::string createError;
+
+const ModelBundle *bundle() {
+  static std::string loadError;
+  static std::optional<ModelBundle> loaded = [] {
+    ModelBundle b;
+    return loadEmbeddedBundle(b, loadError) ? std::optional<ModelBundle>(std::move(b)) : std::nullopt;
+  }();
+  if (!loaded)
+    createError = loadError;
+  return loaded ? &*loaded : nullptr;
+}
+
+} // namespace
+
+struct brine_model {
+  ir::Model model;
+  std::vector<double> params, y, out, buffer;
+  std::vector<double> k1, k2, k3, k4, tmp, scratch;
+  KernelFn fused = nullptr; // exponential Euler: next state, then every output
+  KernelFn plain = nullptr; // the model kernel: every output
+  long steps = 0;
+  bool failed = false;
+  std::string failure; // why the simulation stopped, kept until reset
+  std::string error;
+
+  double time() const { return static_cast<double>(steps) * model.protocol.step; }
+
+  void evaluate(const double *state, double t, double *outputs) { plain(state, params.data(), t, outputs); }
+
+  // Holds clamped potentials at their command, as Simulate.cpp's applyClamps does.
+  void applyClamps(double t) {
+    bool moved = false;
+    for (const ir::Compartment &c : model.compartments)
+      if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0 && y[c.voltageState] != out[c.commandOutput]) {
+        y[c.voltageState] = out[c.commandOutput];
+        moved = true;
+      }
+    if (moved)
+      evaluate(y.data(), t, out.data());
+  }
+
+  // A state as `brine run` records it at the current time: clamps already applied.
+  void settle() {
+    if (!fused) {
+      evaluate(y.data(), time(), out.data());
+      applyClamps(time());
+    }
+  }
+
+  bool healthy() {
+    for (size_t i = 0; i < y.size(); ++i)
+      if (!std::isfinite(y[i]))
+        return fail(i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
+    for (const ir::Compartment &c : model.compartments)
+      if (std::fabs(y[c.voltageState]) > maxPotential)
+        return fail(static_cast<size_t>(c.voltageState),
+                    "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
+    return true;
+  }
+
+  bool fail(size_t state, const std::string &reason) {
+    failed = true;
+    char when[64];
+    std::snprintf(when, sizeof when, "at t = %.6g ms: ", time() * 1e3);
+    failure = std::string("the simulation failed ") + when + "'" + model.stateNames[state] + "' " + reason;
+    error = failure;
+    return false;
+  }
+
+  void derivative(const double *state, const double *outputs, double *dydt) {
+    for (const ir::Gate &g : model.gates)
+      dydt[g.state] = (outputs[g.infOutput] - state[g.state]) / outputs[g.tauOutput];
+    for (const ir::Pool &pool : model.pools)
+      dydt[pool.state] = outputs[pool.derivativeOutput];
+    for (const ir::Compartment &c : model.compartments) {
+      double v = state[c.voltageState];
+      double current = outputs[c.gOutput] * v - outputs[c.geOutput] + outputs[c.iOtherOutput];
+      bool clamped = c.clampedOutput >= 0 && outputs[c.clampedOutput] != 0;
+      dydt[c.voltageState] = clamped ? 0 : -current / params[c.capacitanceParam];
+    }
+  }
+
+  void rk4Step(double t, double dt) {
+    size_t n = y.size();
+    derivative(y.data(), out.data(), k1.data());
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y[i] + 0.5 * dt * k1[i];
+    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k2.data());
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y[i] + 0.5 * dt * k2[i];
+    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k3.data());
+    for (size_t i = 0; i < n; ++i)
+      tmp[i] = y[i] + dt * k3[i];
+    evaluate(tmp.data(), t + dt, scratch.data());
+    derivative(tmp.data(), scratch.data(), k4.data());
+    for (size_t i = 0; i < n; ++i)
+      y[i] += dt / 6 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
+  }
+
+  void exponentialEulerStep(double dt) {
+    for (const ir::Pool &pool : model.pools)
+      y[pool.state] += dt * out[pool.derivativeOutput];
+    for (const ir::Gate &g : model.gates) {
+      double inf = out[g.infOutput], tau = out[g.tauOutput];
+      y[g.state] = inf + (y[g.state] - inf) * std::exp(-dt / tau);
+    }
+    for (const ir::Compartment &c : model.compartments) {
+      if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0)
+        continue;
+      double g = out[c.gOutput], ge = out[c.geOutput], other = out[c.iOtherOutput];
+      double cap = params[c.capacitanceParam];
+      double &v = y[c.voltageState];
+      if (g > 0) {
+        double vInf = (ge - other) / g;
+        v = vInf + (v - vInf) * std::exp(-dt * g / cap);
+      } else {
+        v -= dt * other / cap;
+      }
+    }
+  }
+
+  bool step() {
+    double dt = model.protocol.step, t = time();
+    if (fused) {
+      fused(y.data(), params.data(), t, buffer.data());
+      std::copy(buffer.begin(), buffer.begin() + static_cast<long>(y.size()), y.begin());
+    } else {
+      // out already holds the outputs at (y, t): settle() ran after the last step.
+      if (model.protocol.method == ir::Method::RungeKutta4)
+        rk4Step(t, dt);
+      else
+        exponentialEulerStep(dt);
+    }
+    ++steps;
+    if (!healthy())
+      return false;
+    settle();
+    return true;
+  }
+};
+
+namespace {
+
+// Every entry point catches: no C++ exception may cross into C.
+template <class F> auto guarded(brine_model *m, F body, decltype(body()) onFailure) {
+  try {
+    return body();
+  } catch (const std::exception &e) {
+    (m ? m->error : createError) = std::string("internal error: ") + e.what();
+  } catch (...) {
+    (m ? m->error : createError) = "internal error";
+  }
+  return onFailure;
+}
+
+int parameterIndex(const brine_model *m, const char *name) { return name ? m->model.findParam(name) : -1; }
+
+int stateIndex(const brine_model *m, const char *name) {
+  if (!name)
+    return -1;
+  for (size_t i = 0; i < m->model.stateNames.size(); ++i)
+    if (m->model.stateNames[i] == name)
+      return static_cast<int>(i);
+  return -1;
+}
+
+int refuse(const brine_model *m, std::string message) {
+  const_cast<brine_model *>(m)->error = std::move(message); // the message is not model state
+  return -1;
+}
+
+} // namespace
+
+extern "C" {
+
+const char *brine_model_name(void) {
+  const ModelBundle *b = bundle();
+  return b && !b->protocols.empty() ? b->protocols.front().name.c_str() : nullptr;
+}
+
+const char *brine_model_hash(void) {
+  const ModelBundle *b = bundle();
+  return b ? b->modelHash.c_str() : nullptr;
+}
+
+const char *brine_model_tool_version(void) {
+  const ModelBundle *b = bundle();
+  return b ? b->toolVersion.c_str() : nullptr;
+}
+
+int brine_model_protocol_count(void) {
+  const ModelBundle *b = bundle();
+  return b ? static_cast<int>(b->protocols.size()) : -1;
+}
+
+const char *brine_model_protocol_name(int index) {
+  const ModelBundle *b = bundle();
+  if (!b || index < 0 || static_cast<size_t>(index) >= b->protocols.size())
+    return nullptr;
+  return b->protocols[index].protocol.name.c_str();
+}
+
+brine_model *brine_model_create(const char *protocol) {
+  createError.clear();
+  return guarded(
+      nullptr,
+      [&]() -> brine_model * {
+        const ModelBundle *b = bundle();
+        if (!b)
+          return nullptr;
+        const ir::Model *chosen = nullptr;
+        if (protocol) {
+          for (const ir::Model &m : b->protocols)
+            if (m.protocol.name == protocol)
+              chosen = &m;
+          if (!chosen) {
+            createError = std::string("there is no protocol '") + protocol + "' in this model";
+            return nullptr;
+          }
+        } else if (b->protocols.size() == 1) {
+          chosen = &b->protocols.front();
+        } else {
+          createError = "the model has " + std::to_string(b->protocols.size()) + " protocols; name one";
+          return nullptr;
+        }
+        ir::Method method = chosen->protocol.method;
+        if (method != ir::Method::ExponentialEuler && method != ir::Method::RungeKutta4) {
+          createError = "protocol '" + chosen->protocol.name + "' uses " + ir::methodName(method) +
+                        "; the C interface steps fixed-step methods only (exponential_euler, rk4)";
+          return nullptr;
+        }
+        auto m = std::make_unique<brine_model>();
+        m->model = *chosen;
+        std::string error;
+        // The same kernel `brine run` picks: the fused step when there is one.
+        std::optional<ir::Kernel> fusedKernel;
+        if (method == ir::Method::ExponentialEuler)
+          fusedKernel = fuseExponentialEuler(m->model, m->model.protocol.step);
+        if (fusedKernel)
+          m->fused = embeddedKernel(*fusedKernel, error);
+        else
+          m->plain = embeddedKernel(m->model.kernel, error);
+        if (!m->fused && !m->plain) {
+          createError = "internal error: " + error;
+          return nullptr;
+        }
+        size_t n = m->model.stateNames.size(), outputs = m->model.kernel.outputs.size();
+        m->params = m->model.params;
+        m->y = m->model.initialState;
+        m->out.assign(outputs, 0);
+        m->buffer.assign(n + outputs, 0);
+        for (auto *v : {&m->k1, &m->k2, &m->k3, &m->k4, &m->tmp})
+          v->assign(n, 0);
+        m->scratch.assign(outputs, 0);
+        m->settle();
+        return m.release();
+      },
+      nullptr);
+}
+
+void brine_model_destroy(brine_model *model) { delete model; }
+
+const char *brine_model_last_error(const brine_model *model) {
+  return model ? model->error.c_str() : createError.c_str();
+}
+
+int brine_model_reset(brine_model *model) {
+  if (!model)
+    return -1;
+  return guarded(
+      model,
+      [&] {
+        model->y = model->model.initialState;
+        model->steps = 0;
+        model->failed = false;
+        model->failure.clear();
+        model->error.clear();
+        model->settle();
+        return 0;
+      },
+      -1);
+}
+
+int brine_model_parameter_count(const brine_model *model) {
+  return model ? static_cast<int>(model->params.size()) : -1;
+}
+
+const char *brine_model_parameter_name(const brine_model *model, int index) {
+  if (!model || index < 0 || static_cast<size_t>(index) >= model->params.size())
+    return nullptr;
+  return model->model.paramNames[index].c_str();
+}
+
+int brine_model_parameter_index(const brine_model *model, const char *name) {
+  return model ? parameterIndex(model, name) : -1;
+}
+
+int brine_model_get_parameter(const brine_model *model, const char *name, double *si_value) {
+  if (!model || !si_value)
+    return -1;
+  int i = parameterIndex(model, name);
+  if (i < 0)
+    return refuse(model, std::string("there is no parameter '") + (name ? name : "") + "'");
+  *si_value = model->params[i];
+  return 0;
+}
+
+int brine_model_set_parameter(brine_model *model, const char *name, double si_value) {
+  if (!model)
+    return -1;
+  int i = parameterIndex(model, name);
+  if (i < 0)
+    return refuse(model, std::string("there is no parameter '") + (name ? name : "") + "'");
+  if (!std::isfinite(si_value))
+    return refuse(model, std::string("the value of '") + name + "' must be finite");
+  model->params[i] = si_value;
+  return guarded(
+      model,
+      [&] {
+        model->settle(); // a clamp command may depend on it
+        return 0;
+      },
+      -1);
+}
+
+int brine_model_state_count(const brine_model *model) { return model ? static_cast<int>(model->y.size()) : -1; }
+
+const char *brine_model_state_name(const brine_model *model, int index) {
+  if (!model || index < 0 || static_cast<size_t>(index) >= model->y.size())
+    return nullptr;
+  return model->model.stateNames[index].c_str();
+}
+
+int brine_model_state_index(const brine_model *model, const char *name) { return model ? stateIndex(model, name) : -1; }
+
+double brine_model_state(const brine_model *model, int index) {
+  if (!model || index < 0 || static_cast<size_t>(index) >= model->y.size())
+    return NAN;
+  return model->y[index];
+}
+
+int brine_model_get_state(const brine_model *model, const char *name, double *si_value) {
+  if (!model || !si_value)
+    return -1;
+  int i = stateIndex(model, name);
+  if (i < 0)
+    return refuse(model, std::string("there is no state '") + (name ? name : "") + "'");
+  *si_value = model->y[i];
+  return 0;
+}
+
+double brine_model_time(const brine_model *model) { return model ? model->time() : NAN; }
+
+double brine_model_step_size(const brine_model *model) { return model ? model->model.protocol.step : NAN; }
+
+int brine_model_step(brine_model *model, long count) {
+  if (!model)
+    return -1;
+  if (count < 0)
+    return refuse(model, "the number of steps must not be negative");
+  if (model->failed)
+    return refuse(model, model->failure + "; reset the model to start again");
+  return guarded(
+      model,
+      [&] {
+        for (long i = 0; i < count; ++i)
+          if (!model->step())
+            return -1;
+        return 0;
+      },
+      -1);
+}
+
+int brine_model_advance(brine_model *model, double seconds) {
+  if (!model)
+    return -1;
+  double ratio = seconds / model->model.protocol.step;
+  if (!std::isfinite(ratio) || ratio < 0 || std::fabs(ratio - std::round(ratio)) > 1e-9 * std::max(ratio, 1.0))
+    return refuse(model, "advance needs a time that is a whole, non-negative number of steps");
+  return brine_model_step(model, std::lround(ratio));
+}
+
+} // extern "C"

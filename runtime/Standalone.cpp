@@ -1,0 +1,178 @@
+// Standalone.cpp - main() of the executables `brine build` writes: runs one of the compiled-in
+// protocols with the options of `brine run` and writes the same CSV or JSON bytes.
+#include "Run.h"
+#include "RunSettings.h"
+#include "StandaloneModel.h"
+#include "TraceOutput.h"
+
+#include <cmath>
+#include <cstdio>
+#include <exception>
+#include <string>
+#include <vector>
+
+namespace {
+
+using namespace brine;
+
+enum ExitCode { Ok = 0, Usage = 64, Failed = 65, Internal = 70, CannotWrite = 73 };
+
+std::string program = "model"; // argv[0] without its directory, for messages
+
+std::string helpText(const ModelBundle &b) {
+  const ir::Model &first = b.protocols.front();
+  std::string text = "usage: " + program + " [options]\n\n";
+  text += "Runs the model '" + first.name + "' from " + b.source + "\n(" + b.modelHash + "),\ncompiled by brine " +
+          b.toolVersion +
+          " to native code for the CPU it was built on, and writes the recorded\n"
+          "quantities: time first, units in the header. The options are those of `brine run`, and the\n"
+          "output is byte for byte what `brine run` writes for the same options.\n"
+          "Conventions: V is inside minus outside; membrane current is positive outward; injected\n"
+          "current is positive into the cell.\n\n"
+          "options:\n"
+          "  --protocol NAME      the protocol to run (default: the only one; needed when there are several)\n"
+          "  --set NAME=VALUE     override a parameter with a unit, e.g. --set NAME=\"100 mS/cm2\" (repeatable)\n"
+          "  --duration T         override the protocol's duration, e.g. 50ms or \"50 ms\"\n"
+          "  --every T            override the recording interval\n"
+          "  -o FILE              write FILE (.csv or .json) atomically instead of CSV on standard output\n"
+          "  --version            print the version\n"
+          "  --help               show this help\n\n"
+          "protocols:\n";
+  char line[256];
+  for (const ir::Model &m : b.protocols) {
+    std::snprintf(line, sizeof line, "  %-20s %s, step %g ms, %g ms, recorded every %g ms\n", m.protocol.name.c_str(),
+                  ir::methodName(m.protocol.method), m.protocol.step * 1e3, m.protocol.duration * 1e3,
+                  m.protocol.every * 1e3);
+    text += line;
+  }
+  text += "\nparameters (value in SI units; --set takes any unit of the same dimension):\n";
+  for (size_t i = 0; i < first.paramNames.size(); ++i) {
+    std::snprintf(line, sizeof line, "  %-44s %-12.6g %s\n", first.paramNames[i].c_str(), first.params[i],
+                  describeDimension(first.paramDims[i]).c_str());
+    text += line;
+  }
+  text += "\nexit status: 0 success, 64 bad usage, 65 the simulation failed, 70 internal fault,\n"
+          "             73 the output file could not be written\n\n"
+          "brine is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
+  return text;
+}
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "%s: error: %s\nrun '%s --help' for the options, protocols and parameters\n", program.c_str(),
+               message.c_str(), program.c_str());
+  return Usage;
+}
+
+struct Options {
+  std::string protocol, output, duration, every;
+  std::vector<std::string> sets;
+};
+
+int run(const std::vector<std::string> &args) {
+  ModelBundle bundle;
+  std::string error;
+  if (!loadEmbeddedBundle(bundle, error) || bundle.protocols.empty()) {
+    std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), error.empty() ? "no protocol" : error.c_str());
+    return Internal;
+  }
+  Options o;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    // "--name=VALUE" or "--name VALUE", as brine's own options.
+    auto value = [&](const std::string &name, std::string &into) {
+      if (a.rfind(name + "=", 0) == 0) {
+        into = a.substr(name.size() + 1);
+        return true;
+      }
+      if (a == name && i + 1 < args.size()) {
+        into = args[++i];
+        return true;
+      }
+      return false;
+    };
+    std::string v;
+    if (a == "--help" || a == "-h") {
+      std::fputs(helpText(bundle).c_str(), stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("%s: model %s (%s), built by brine %s\n", program.c_str(), bundle.protocols.front().name.c_str(),
+                  bundle.modelHash.c_str(), bundle.toolVersion.c_str());
+      return Ok;
+    } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--duration", o.duration) ||
+               value("--every", o.every)) {
+    } else if (value("--set", v)) {
+      o.sets.push_back(v);
+    } else if (a == "--protocol" || a == "-o" || a == "--duration" || a == "--every" || a == "--set") {
+      return usage(a + " needs a value");
+    } else {
+      return usage("unknown option '" + a + "'");
+    }
+  }
+
+  const ir::Model *chosen = nullptr;
+  if (!o.protocol.empty()) {
+    std::string names;
+    for (const ir::Model &m : bundle.protocols) {
+      names += (names.empty() ? "" : ", ") + m.protocol.name;
+      if (m.protocol.name == o.protocol)
+        chosen = &m;
+    }
+    if (!chosen)
+      return usage("there is no protocol '" + o.protocol + "'; the model has " + names);
+  } else if (bundle.protocols.size() == 1) {
+    chosen = &bundle.protocols.front();
+  } else {
+    return usage("the model has " + std::to_string(bundle.protocols.size()) + " protocols; choose one with --protocol");
+  }
+  ir::Model model = *chosen;
+  std::vector<double> params = model.params;
+  for (const std::string &s : o.sets)
+    if (!applyParameterSetting(model, s, params, "`" + program + " --help` lists them", error))
+      return usage(error);
+  if (!applyTiming(model.protocol, o.duration, o.every, error))
+    return usage(error);
+
+  // runModel fuses and picks kernels exactly as for `brine run`; each one it asks for is
+  // found among the compiled-in kernels by fingerprint.
+  KernelCompiler compile = [](const ir::Kernel &k, std::string &e) { return embeddedKernel(k, e); };
+  RunOutcome outcome = runModel(model, params, compile);
+  if (!outcome.native) {
+    std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), outcome.compileError.c_str());
+    return Internal;
+  }
+  if (outcome.failure.failed) {
+    std::fprintf(stderr, "%s: error: the simulation failed at t = %.6g ms: '%s' %s\nnote: no output was written\n",
+                 program.c_str(), outcome.failure.time * 1e3, outcome.failure.variable.c_str(),
+                 outcome.failure.reason.c_str());
+    return Failed;
+  }
+  std::string text = isJsonPath(o.output) ? traceJson(outcome.trace, model, bundle.modelHash, bundle.toolVersion)
+                                          : traceCsv(outcome.trace);
+  if (o.output.empty()) {
+    std::fputs(text.c_str(), stdout);
+  } else if (!writeFileAtomically(o.output, text, error)) {
+    std::fprintf(stderr, "%s: error: %s\n", program.c_str(), error.c_str());
+    return CannotWrite;
+  }
+  std::fprintf(stderr, "ran %s: %s, step %g ms, %g ms simulated, %ld steps; simulate %.1f ms\n",
+               model.protocol.name.c_str(), ir::methodName(model.protocol.method), model.protocol.step * 1e3,
+               model.protocol.duration * 1e3, outcome.stats.steps, outcome.simulateMs);
+  return Ok;
+}
+
+} // namespace
+
+int main(int argc, char **argv) {
+  if (argc > 0 && argv[0]) {
+    program = argv[0];
+    program = program.substr(program.find_last_of('/') + 1);
+  }
+  try {
+    return run(std::vector<std::string>(argv + 1, argv + argc));
+  } catch (const std::exception &e) {
+    std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), e.what());
+  } catch (...) {
+    std::fprintf(stderr, "%s: internal error\n", program.c_str());
+  }
+  return Internal;
+}

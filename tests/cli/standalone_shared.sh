@@ -1,0 +1,102 @@
+#!/usr/bin/env bash
+# standalone_shared.sh - `brine build --shared`: a library exporting only the C interface,
+# with brine_model.h copied beside it; a C program (standalone_c_api.c) that sets a
+# parameter and steps agrees with `brine run` to 1e-9 relative at the same times.
+source "$(dirname "$0")/lib/common.bash"
+
+SQUID=$SRC/specs/reference/squid_axon_1952.brine
+TIDE=$SRC/specs/demo/tidewater_cell.brine
+command -v cc >/dev/null || { echo "FAIL: no C compiler 'cc'" >&2; exit 1; }
+
+mkdir "$TMP/lib"
+expect_rc build_squid 0 build "$SQUID" --shared -o "$TMP/lib/libsquid.so"
+expect_rc build_tide 0 build "$TIDE" --shared -o "$TMP/lib/libtide.so"
+cmp -s "$TMP/lib/brine_model.h" "$SRC/runtime/brine_model.h" || fail "brine_model.h was not copied beside the library"
+
+# Only the C interface is exported: no runtime, libstdc++ or LLVM symbols leak out.
+others=$(nm -D --defined-only "$TMP/lib/libsquid.so" | awk '{print $3}' | grep -v '^brine_model_' || true)
+[ -z "$others" ] || fail "the library exports more than brine_model_*: $(echo "$others" | head -5 | tr '\n' ' ')"
+nm -D --defined-only "$TMP/lib/libsquid.so" | grep -q ' T brine_model_create$' || fail "brine_model_create is not exported"
+if ldd "$TMP/lib/libsquid.so" | grep -Eiq 'llvm|antlr|brine'; then
+  fail "the library depends on LLVM, ANTLR or brine at run time"
+fi
+
+# A library from a sanitizer build of brine needs the sanitizer runtime in the program too.
+sanitize=()
+if ldd "$TMP/lib/libsquid.so" | grep -q libasan; then
+  sanitize=(-fsanitize=address,undefined)
+fi
+for lib in squid tide; do
+  cc -std=c11 -Wall -Wextra -Werror "${sanitize[@]}" -I"$TMP/lib" "$SRC/tests/cli/standalone_c_api.c" \
+    -o "$TMP/c_$lib" "$TMP/lib/lib$lib.so" -Wl,-rpath,"$TMP/lib" -lm 2>"$TMP/cc_$lib.err" ||
+    fail "the C test does not compile against lib$lib.so: $(head -5 "$TMP/cc_$lib.err")"
+done
+
+# compare NAME SPEC STATE COLUMN SCALE: the C program's "LABEL K VALUE" lines against row K of
+# the matching `brine run` CSV (recorded every step), in the display unit (VALUE * SCALE).
+compare() {
+  local name=$1 column=$2 scale=$3
+  $PY - "$TMP/$name.c.out" "$TMP/$name.set.out" "$TMP/$name.default.out" "$column" "$scale" <<'PY' ||
+import csv, sys
+got, with_set, default, column, scale = sys.argv[1:]
+tables = {}
+for label, path in (("set", with_set), ("default", default)):
+    rows = list(csv.reader(open(path)))
+    index = rows[0].index(column)
+    tables[label] = [float(r[index]) for r in rows[1:]]
+lines = [l.split() for l in open(got)]
+if len(lines) < 6:
+    sys.exit(f"only {len(lines)} values from the C program")
+bad = 0
+for label, k, value in lines:
+    want = tables[label][int(k)]
+    have = float(value) * float(scale)
+    if abs(have - want) > 1e-9 * abs(want):
+        print(f"{label} step {k}: C interface {have!r}, brine run {want!r}")
+        bad += 1
+sys.exit(bad)
+PY
+    fail "$name: the C interface disagrees with brine run"
+}
+
+# Squid axon (RK4): sodium density 100 mS/cm2 = 1000 S/m^2; V every step (10 us).
+steps="1 100 1234 5000 20000"
+if [ -x "$TMP/c_squid" ]; then
+  timeout 20 "$TMP/c_squid" - axon.SquidSodium1952.density 1000 axon.V $steps >"$TMP/squid.c.out" \
+    2>"$TMP/squid.c.err" || fail "the C program failed on the squid axon: $(head -5 "$TMP/squid.c.err")"
+  run squid.set run "$SQUID" --set 'axon.SquidSodium1952.density=100 mS/cm2' --every 0.01ms
+  run squid.default run "$SQUID" --every 0.01ms
+  compare squid "axon.V (mV)" 1000
+fi
+
+# Tidewater cell (fused exponential Euler, dynamic calcium): delayed K at 20 mS/cm2.
+steps="1 999 2500 12000 30000"
+if [ -x "$TMP/c_tide" ]; then
+  timeout 20 "$TMP/c_tide" stimulation soma.TidewaterDelayedK.density 200 soma.V $steps >"$TMP/tide.c.out" \
+    2>"$TMP/tide.c.err" || fail "the C program failed on the tidewater cell: $(head -5 "$TMP/tide.c.err")"
+  run tide.set run "$TIDE" --set 'soma.TidewaterDelayedK.density=20 mS/cm2' --every 0.01ms
+  run tide.default run "$TIDE" --every 0.01ms
+  compare tide "soma.V (mV)" 1000
+fi
+
+# A protocol with an adaptive method cannot be stepped from C: a clear refusal.
+EXPERIMENTS=$SRC/specs/reference/squid_axon_1952_experiments.brine
+expect_rc build_dp 0 build "$EXPERIMENTS" --shared -o "$TMP/lib/libdp.so"
+cat >"$TMP/dp.c" <<'C'
+#include "brine_model.h"
+#include <stdio.h>
+#include <string.h>
+int main(void) {
+  brine_model *m = brine_model_create(brine_model_protocol_name(0));
+  const char *why = brine_model_last_error(NULL);
+  printf("%s\n", why);
+  return m == NULL && strstr(why, "fixed-step methods only") ? 0 : 1;
+}
+C
+if cc "${sanitize[@]}" -I"$TMP/lib" "$TMP/dp.c" -o "$TMP/dp" "$TMP/lib/libdp.so" -Wl,-rpath,"$TMP/lib" 2>"$TMP/dp.err"; then
+  timeout 20 "$TMP/dp" >"$TMP/dp.out" 2>&1 || fail "an adaptive protocol was not refused: $(cat "$TMP/dp.out")"
+else
+  fail "dp.c does not compile: $(head -3 "$TMP/dp.err")"
+fi
+
+finish
