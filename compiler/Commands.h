@@ -17,6 +17,8 @@ int restCommand(const std::vector<std::string> &args);
 int methodsCommand(const std::vector<std::string> &args);
 int fmtCommand(const std::vector<std::string> &args);
 int hashCommand(const std::vector<std::string> &args);
+int sweepCommand(const std::vector<std::string> &args);
+int mergeCommand(const std::vector<std::string> &args);
 int buildCommand(const std::vector<std::string> &args);
 
 /// If args[i] is "NAME=VALUE", or "NAME" followed by a value, stores the value (moving i

@@ -47,7 +47,14 @@ DisplayUnit displayUnit(const Dimension &d) {
     return {"mS/cm2", 0.1};
   if (d == dims::concentration())
     return {"mM", 1};
-  return {"", 1};
+  if (d == dims::specificCapacitance())
+    return {"uF/cm2", 100};
+  if (d == dims::permeability())
+    return {"cm/s", 100};
+  if (d == Dimension::none())
+    return {"", 1};
+  return {formatDimension(d), 1}; // coherent SI
+
 }
 
 namespace {

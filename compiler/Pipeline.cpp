@@ -7,6 +7,7 @@
 #include "Expect.h"
 #include "Lower.h"
 #include "Modules.h"
+#include "Sweep.h"
 
 #include <filesystem>
 
@@ -39,7 +40,8 @@ void run(const SourceFile &root, Compilation &c) {
       lowered = false;
   }
   bool expectations = lowered && checkExpectations(c, c.diags);
-  c.checked = lowered && expectations && c.diags.errorCount() == 0;
+  bool sweeps = expectations && checkSweeps(c, c.diags);
+  c.checked = lowered && expectations && sweeps && c.diags.errorCount() == 0;
 }
 
 } // namespace

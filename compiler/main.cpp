@@ -23,6 +23,8 @@ commands:
   test PATH...    measure every expectation of the specs under PATH; N passed, M failed
   snapshot FILE   record the protocols' traces as reference files for expectations
   rest FILE       find every steady state with no injected current, and its stability
+  sweep FILE      run the model at every point of a parameter grid or sample; one row per point
+  merge FILE...   join the JSON results of a sweep's shards into the file one run would write
   methods FILE    write a methods-section description (Markdown or LaTeX) of the model
   fmt FILE...     rewrite specs in the canonical layout (--check: only list those that differ)
   hash FILE       print the SHA-256 of the model: its modules in canonical form, no comments
@@ -85,6 +87,10 @@ int main(int argc, char **argv) {
       return brine::cli::hashCommand(rest);
     if (command == "methods")
       return brine::cli::methodsCommand(rest);
+    if (command == "sweep")
+      return brine::cli::sweepCommand(rest);
+    if (command == "merge")
+      return brine::cli::mergeCommand(rest);
     if (command == "build")
       return brine::cli::buildCommand(rest);
     std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);

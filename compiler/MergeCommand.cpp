@@ -1,0 +1,131 @@
+// MergeCommand.cpp - `brine merge`: the JSON results of a sweep's shards, joined into the
+// file (CSV or JSON) that one unsharded run of the sweep writes.
+#include "Commands.h"
+
+#include "SweepTable.h"
+#include "TraceOutput.h"
+
+#include <algorithm>
+#include <cstdio>
+#include <fstream>
+#include <sstream>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *mergeHelp = R"(usage: brine merge -o FILE [-o FILE...] SHARD.json...
+
+Joins the JSON results that `brine sweep --shard I/N -o SHARD.json` wrote for every shard of one
+sweep into FILE (.csv or .json), byte for byte the file one unsharded run would have written.
+Every shard from 0 to N-1 must be given once, and all must come from the same sweep of the same
+spec with the same brine version and engine (their sweep_hash fields agree).
+
+options:
+  -o FILE     the merged output (.csv or .json; repeatable)
+  --version   print the version
+  --help      show this help
+
+exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine merge: error: %s\n\n%s", message.c_str(), mergeHelp);
+  return Usage;
+}
+
+int refuse(const std::string &message) {
+  std::fprintf(stderr, "brine merge: error: %s\n", message.c_str());
+  return SpecErrors;
+}
+
+} // namespace
+
+int mergeCommand(const std::vector<std::string> &args) {
+  std::vector<std::string> outputs, inputs;
+  for (size_t i = 0; i < args.size(); ++i) {
+    std::string v;
+    if (args[i] == "--help" || args[i] == "-h") {
+      std::fputs(mergeHelp, stdout);
+      return Ok;
+    } else if (args[i] == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if (optionValue(args, i, "-o", v)) {
+      if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
+        return usage("-o takes a .csv or .json file, not '" + v + "'");
+      outputs.push_back(v);
+    } else if (args[i].size() > 1 && args[i][0] == '-') {
+      return usage("unknown option '" + args[i] + "'");
+    } else {
+      inputs.push_back(args[i]);
+    }
+  }
+  if (outputs.empty())
+    return usage("no output given (-o FILE)");
+  if (inputs.empty())
+    return usage("no shard files given");
+
+  std::vector<sweep::Table> shards(inputs.size());
+  for (size_t i = 0; i < inputs.size(); ++i) {
+    std::ifstream in(inputs[i], std::ios::binary);
+    if (!in)
+      return refuse("cannot read '" + inputs[i] + "'");
+    std::stringstream text;
+    text << in.rdbuf();
+    std::string error;
+    if (!sweep::fromJson(text.str(), shards[i], error))
+      return refuse("'" + inputs[i] + "': " + error);
+  }
+  const sweep::Table &first = shards.front();
+  std::vector<int> holder(static_cast<size_t>(first.shardCount), -1);
+  for (size_t i = 0; i < shards.size(); ++i) {
+    const sweep::Table &s = shards[i];
+    if (s.sweepHash != first.sweepHash || s.shardCount != first.shardCount)
+      return refuse("'" + inputs[i] + "' comes from a different sweep than '" + inputs[0] +
+                    "' (another spec, sweep, brine version, engine or shard count)");
+    int &slot = holder[static_cast<size_t>(s.shardIndex)];
+    if (slot >= 0)
+      return refuse("shard " + std::to_string(s.shardIndex) + " is given twice: '" + inputs[static_cast<size_t>(slot)] +
+                    "' and '" + inputs[i] + "'");
+    slot = static_cast<int>(i);
+  }
+  for (size_t k = 0; k < holder.size(); ++k)
+    if (holder[k] < 0)
+      return refuse("shard " + std::to_string(k) + " of " + std::to_string(first.shardCount) + " is missing");
+
+  sweep::Table merged = first;
+  merged.shardIndex = 0;
+  merged.shardCount = 1;
+  merged.first = 0;
+  merged.parameterValues.clear();
+  merged.results.clear();
+  for (int index : holder) {
+    const sweep::Table &s = shards[static_cast<size_t>(index)];
+    if (s.first != merged.results.size())
+      return refuse("'" + inputs[static_cast<size_t>(index)] + "' does not start where the shard before it ends");
+    merged.parameterValues.insert(merged.parameterValues.end(), s.parameterValues.begin(), s.parameterValues.end());
+    merged.results.insert(merged.results.end(), s.results.begin(), s.results.end());
+  }
+  if (merged.results.size() != merged.totalPoints)
+    return refuse("the shards hold " + std::to_string(merged.results.size()) + " points, the sweep " +
+                  std::to_string(merged.totalPoints));
+  for (const std::string &out : outputs) {
+    std::string error;
+    if (!writeFileAtomically(out, isJsonPath(out) ? sweep::toJson(merged) : sweep::toCsv(merged), error)) {
+      std::fprintf(stderr, "brine merge: %s\n", error.c_str());
+      return CannotWrite;
+    }
+  }
+  std::fprintf(stderr, "merged %zu shards of %s: %zu points\n", shards.size(), merged.sweep.c_str(),
+               merged.results.size());
+  return Ok;
+}
+
+} // namespace brine::cli

@@ -1,0 +1,449 @@
+// Sweep.cpp - Stage 12: validating sweeps, planning their points, computing them.
+#include "Sweep.h"
+
+#include "Diagnostics.h"
+#include "Fuse.h"
+#include "Interpret.h"
+#include "LaneSimulate.h"
+#include "Lower.h"
+#include "Pipeline.h"
+#include "Rest.h"
+#include "Simulate.h"
+
+#include <cmath>
+#include <map>
+#include <optional>
+#include <set>
+
+namespace brine {
+
+using namespace ast;
+
+namespace {
+
+constexpr uint64_t maxPoints = 100000000; // 1e8: beyond this a sweep is a typo, not a plan
+
+// The lowered model whose parameters a sweep's axes name: its first measured protocol's,
+// or the stimulus-free lowering for steady-state measures.
+const ir::Model *parameterModel(Compilation &c, const SweepDecl &s, ir::Model &scratch) {
+  for (auto &m : s.measures)
+    if (m->target) {
+      auto it = c.lowered.find(m->target);
+      if (it != c.lowered.end())
+        return &it->second;
+    }
+  DiagnosticEngine quiet;
+  if (!lowerModel(c.program, c.model, c.evaluator, nullptr, quiet, scratch))
+    return nullptr;
+  return &scratch;
+}
+
+bool isWholeNumber(double v, double low, double high) { return v == std::floor(v) && v >= low && v <= high; }
+
+class SweepChecker {
+public:
+  SweepChecker(Compilation &c, DiagnosticEngine &diags) : c_(c), diags_(diags) {}
+
+  void check(const SweepDecl &s) {
+    if (s.axes.empty())
+      diags_.error(s.nameRange, "sweep '" + s.name + "' varies nothing; add 'vary PARAMETER from A to B points N'");
+    if (s.measures.empty())
+      diags_.error(s.nameRange, "sweep '" + s.name + "' measures nothing; add 'measure PROTOCOL: MEASURE(...)'");
+    for (auto &m : s.measures)
+      measure(*m);
+    ir::Model scratch;
+    const ir::Model *model = parameterModel(c_, s, scratch);
+    if (!model)
+      return;
+    bool sampled = s.design != SampleDesign::Grid;
+    if (sampled) {
+      if (!isWholeNumber(s.samples, 1, static_cast<double>(maxPoints)))
+        diags_.error(s.sampleRange, "the sample size must be a whole number from 1 to 100000000");
+      if (!isWholeNumber(s.seed, 0, 9007199254740992.0))
+        diags_.error(s.sampleRange, "the seed must be a whole number from 0 to 2^53");
+    }
+    std::map<std::string, SourceRange> seen;
+    for (const SweepAxis &a : s.axes) {
+      auto [it, fresh] = seen.emplace(a.parameter, a.parameterRange);
+      if (!fresh) {
+        auto &d = diags_.error(a.parameterRange, "'" + a.parameter + "' is varied twice");
+        DiagnosticEngine::note(d, it->second, "first varied here");
+        continue;
+      }
+      axis(s, a, *model, sampled);
+    }
+    if (!sampled && diags_.errorCount() == 0) {
+      std::vector<sweep::Axis> axes = planAxes(s);
+      if (sweep::gridSize(axes, maxPoints) == 0)
+        diags_.error(s.nameRange, "sweep '" + s.name + "' has more than 100000000 points");
+    }
+  }
+
+  std::vector<sweep::Axis> planAxes(const SweepDecl &s) {
+    std::vector<sweep::Axis> axes;
+    for (const SweepAxis &a : s.axes) {
+      sweep::Axis x;
+      if (a.values.empty()) {
+        x.from = value(a.from.get());
+        x.to = value(a.to.get());
+        x.points = static_cast<long>(a.points);
+        x.logarithmic = a.logarithmic;
+      } else
+        for (auto &v : a.values)
+          x.values.push_back(value(v.get()));
+      axes.push_back(std::move(x));
+    }
+    return axes;
+  }
+
+private:
+  Compilation &c_;
+  DiagnosticEngine &diags_;
+
+  double value(const Expr *e) { return e ? c_.evaluator.evaluate(*e, {}).value_or(NAN) : NAN; }
+
+  void measure(const ExpectDecl &m) {
+    if (!checkMeasure(c_, m, diags_))
+      return;
+    bool steady = m.measure == "rest" || m.measure == "input_resistance";
+    if (!measuredOnRun(m) && !steady) {
+      auto &d = diags_.error(m.measureRange, "'" + m.measure + "' does not change from point to point of a sweep");
+      DiagnosticEngine::note(d, {}, "a sweep measures protocol runs, rest and input_resistance; test fixed "
+                                    "properties with 'expect'");
+    } else if (m.measure.rfind("snapshot_", 0) == 0)
+      diags_.error(m.measureRange, "'" + m.measure + "' compares with one snapshot and cannot be swept");
+  }
+
+  void axis(const SweepDecl &s, const SweepAxis &a, const ir::Model &model, bool sampled) {
+    int p = model.findParam(a.parameter);
+    if (p < 0) {
+      auto &d = diags_.error(a.parameterRange, "there is no parameter '" + a.parameter + "' to vary");
+      std::string names;
+      for (const std::string &n : model.paramNames)
+        names += (names.empty() ? "" : ", ") + n;
+      DiagnosticEngine::note(d, {}, "the parameters are " + names);
+      return;
+    }
+    const Dimension &dim = model.paramDims[static_cast<size_t>(p)];
+    auto same = [&](const Expr *e) {
+      if (e && e->type.known && e->type.dim != dim) {
+        diags_.error(e->range, "values of '" + a.parameter + "' must be " + describeDimension(dim) + ", got " +
+                                   describeDimension(e->type.dim));
+        return false;
+      }
+      return e != nullptr;
+    };
+    if (!a.values.empty()) {
+      if (sampled)
+        diags_.error(a.range, "a sampled sweep draws from ranges; give '" + a.parameter + "' a range, not values");
+      for (auto &v : a.values)
+        same(v.get());
+      return;
+    }
+    bool ok = same(a.from.get()) & same(a.to.get());
+    if (sampled && a.points > 0)
+      diags_.error(a.pointsRange, "a sampled sweep takes its point count from 'sample'; drop 'points'");
+    if (!sampled && a.points <= 0) {
+      diags_.error(a.range, "a grid needs the number of points along '" + a.parameter + "': add 'points N'");
+      return;
+    }
+    if (!sampled && !isWholeNumber(a.points, 1, static_cast<double>(maxPoints))) {
+      diags_.error(a.pointsRange, "the number of points must be a whole number from 1 to 100000000");
+      return;
+    }
+    if (!ok)
+      return;
+    double from = value(a.from.get()), to = value(a.to.get());
+    if (!sampled && a.points == 1 && from != to)
+      diags_.error(a.pointsRange, "one point cannot span a range; use 'points 2' or more, or 'values'");
+    if (a.logarithmic && !(from * to > 0))
+      diags_.error(a.range, "a logarithmic range needs two ends of the same sign, neither zero");
+    (void)s;
+  }
+};
+
+} // namespace
+
+std::vector<const SweepDecl *> rootSweeps(const Program &program) {
+  std::vector<const SweepDecl *> out;
+  for (auto &d : program.root->decls)
+    if (auto *s = dyn_cast<SweepDecl>(d.get()))
+      out.push_back(s);
+  return out;
+}
+
+bool checkSweeps(Compilation &c, DiagnosticEngine &diags) {
+  size_t before = diags.errorCount();
+  SweepChecker checker(c, diags);
+  for (auto &m : c.program.modules)
+    for (auto &d : m->decls)
+      if (auto *s = dyn_cast<SweepDecl>(d.get()))
+        checker.check(*s);
+  return diags.errorCount() == before;
+}
+
+SweepPlan planSweep(Compilation &c, const SweepDecl &s) {
+  SweepPlan plan;
+  plan.decl = &s;
+  DiagnosticEngine quiet;
+  SweepChecker checker(c, quiet);
+  std::vector<sweep::Axis> axes = checker.planAxes(s);
+  ir::Model scratch;
+  const ir::Model *model = parameterModel(c, s, scratch);
+  for (const SweepAxis &a : s.axes) {
+    plan.parameters.push_back(a.parameter);
+    int p = model->findParam(a.parameter);
+    plan.parameterUnits.push_back(displayUnit(model->paramDims[static_cast<size_t>(p)]));
+  }
+  switch (s.design) {
+  case SampleDesign::Grid:
+    plan.design = "grid";
+    plan.points = sweep::grid(axes);
+    break;
+  case SampleDesign::LatinHypercube:
+    plan.design = "latin_hypercube";
+    plan.points = sweep::latinHypercube(axes, static_cast<uint64_t>(s.samples), static_cast<uint64_t>(s.seed));
+    break;
+  case SampleDesign::Uniform:
+    plan.design = "uniform";
+    plan.points = sweep::uniform(axes, static_cast<uint64_t>(s.samples), static_cast<uint64_t>(s.seed));
+    break;
+  }
+  for (auto &m : s.measures) {
+    SweepMeasure sm;
+    sm.decl = m.get();
+    sm.unit = displayUnit(measuredDimension(c, *m).value_or(Dimension::none()));
+    if (m->args.size() > 1 && m->args[1].value)
+      sm.args.value = c.evaluator.evaluate(*m->args[1].value, {}).value_or(NAN);
+    if (m->target) {
+      auto it = std::find(plan.protocols.begin(), plan.protocols.end(), m->target);
+      sm.protocol = static_cast<int>(it - plan.protocols.begin());
+      if (it == plan.protocols.end())
+        plan.protocols.push_back(m->target);
+    } else
+      plan.needsRest = true;
+    plan.measures.push_back(std::move(sm));
+  }
+  return plan;
+}
+
+// ---- computing points ----
+
+struct SweepEvaluator::Impl {
+  struct ProtocolRun {
+    ir::Model model;
+    std::vector<int> axisParam; // parameter index of each axis
+    bool lanes = false;
+    LaneKernels laneKernels;
+    FusedStep fused;            // native scalar kernels (engine scalar, or not fusable)
+    KernelFn plain = nullptr;
+    std::optional<ir::Kernel> fusedKernel, stateOnlyKernel;
+    std::vector<std::unique_ptr<Interpreter>> plainInterp, fusedInterp, stateOnlyInterp; // per worker
+  };
+  Compilation &c;
+  const SweepPlan &plan;
+  SweepEngine engine;
+  int lanes = 1;
+  std::vector<ProtocolRun> runs;
+  ir::Model restModel;
+  std::vector<int> restParam;
+  std::string error, description;
+
+  Impl(Compilation &comp, const SweepPlan &p, SweepEngine e) : c(comp), plan(p), engine(e) {}
+
+  std::vector<double> paramsFor(const ir::Model &m, const std::vector<int> &axisParam, size_t point) const {
+    std::vector<double> params = m.params;
+    for (size_t a = 0; a < axisParam.size(); ++a)
+      params[static_cast<size_t>(axisParam[a])] = plan.points[point][a];
+    return params;
+  }
+
+  static std::string failureText(const ast::ProtocolDecl *p, const SimulationFailure &f) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.6g ms", f.time * 1e3);
+    return p->name + ": the run failed at " + buf + ": " + f.variable + " " + f.reason;
+  }
+
+  void measureRun(size_t protocol, const Trace &trace, sweep::PointResult &r) {
+    const ProtocolRun &run = runs[protocol];
+    for (size_t k = 0; k < plan.measures.size(); ++k) {
+      const SweepMeasure &m = plan.measures[k];
+      if (m.protocol != static_cast<int>(protocol))
+        continue;
+      std::string why;
+      auto v = traceMeasure(*m.decl, m.args, run.model, trace, why);
+      r.measures[k] = v ? *v * m.unit.scale : NAN;
+    }
+  }
+
+  void addFailure(sweep::PointResult &r, const std::string &text) {
+    r.failure += (r.failure.empty() ? "" : "; ") + text;
+  }
+
+  void evaluateRest(size_t point, sweep::PointResult &r) {
+    ir::Model m = restModel;
+    m.params = paramsFor(restModel, restParam, point);
+    std::vector<rest::CompartmentRest> analysis;
+    try {
+      analysis = rest::findSteadyStates(m, &c.model);
+    } catch (const std::exception &e) {
+      addFailure(r, std::string("steady states: ") + e.what());
+      return;
+    }
+    for (size_t k = 0; k < plan.measures.size(); ++k) {
+      const SweepMeasure &sm = plan.measures[k];
+      if (sm.protocol >= 0)
+        continue;
+      std::string why;
+      auto v = restMeasure(analysis, sm.decl->args[0].path, sm.decl->measure == "input_resistance", why);
+      r.measures[k] = v ? *v * sm.unit.scale : NAN;
+    }
+  }
+
+  void evaluateScalar(size_t protocol, size_t point, sweep::PointResult &r, int worker) {
+    ProtocolRun &run = runs[protocol];
+    std::vector<double> params = paramsFor(run.model, run.axisParam, point);
+    KernelRef kernel{run.plain, run.plainInterp.empty() ? nullptr : run.plainInterp[static_cast<size_t>(worker)].get()};
+    FusedStep fused = run.fused;
+    if (engine == SweepEngine::Interpreter && run.fusedKernel) {
+      fused.available = true;
+      fused.kernel = KernelRef{nullptr, run.fusedInterp[static_cast<size_t>(worker)].get()};
+      fused.hasStateOnly = run.stateOnlyKernel.has_value();
+      if (fused.hasStateOnly)
+        fused.stateOnly = KernelRef{nullptr, run.stateOnlyInterp[static_cast<size_t>(worker)].get()};
+    }
+    SimulationFailure failure;
+    SimulationStats stats;
+    Trace trace = simulate(run.model, params, kernel, failure, &stats, fused);
+    if (failure.failed)
+      addFailure(r, failureText(plan.protocols[protocol], failure));
+    else
+      measureRun(protocol, trace, r);
+  }
+
+  void evaluateLanes(size_t protocol, const std::vector<size_t> &points, std::vector<sweep::PointResult> &out) {
+    ProtocolRun &run = runs[protocol];
+    std::vector<std::vector<double>> params;
+    for (size_t l = 0; l < static_cast<size_t>(lanes); ++l) // a short batch repeats its last point
+      params.push_back(paramsFor(run.model, run.axisParam, points[std::min(l, points.size() - 1)]));
+    LaneRun result = simulateLanes(run.model, params, run.laneKernels);
+    for (size_t k = 0; k < points.size(); ++k) {
+      if (result.failures[k].failed)
+        addFailure(out[k], failureText(plan.protocols[protocol], result.failures[k]));
+      else
+        measureRun(protocol, result.traces[k], out[k]);
+    }
+  }
+};
+
+SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngine engine, const LaneCompiler &compile,
+                               int lanes, int threads)
+    : impl_(std::make_unique<Impl>(c, plan, compile ? engine : SweepEngine::Interpreter)) {
+  Impl &im = *impl_;
+  if (im.engine == SweepEngine::Batched)
+    im.lanes = lanes;
+  size_t workers = static_cast<size_t>(std::max(1, threads));
+  bool anyLanes = false, anyScalar = false;
+  for (const ProtocolDecl *p : plan.protocols) {
+    Impl::ProtocolRun run;
+    run.model = c.lowered.at(p);
+    // Record only what the measures read: fewer columns, and often the state-only kernel.
+    run.model.protocol.record.clear();
+    for (const SweepMeasure &m : plan.measures)
+      if (m.decl->target == p) {
+        int r = run.model.findRecordable(m.decl->args[0].path);
+        if (std::find(run.model.protocol.record.begin(), run.model.protocol.record.end(), r) ==
+            run.model.protocol.record.end())
+          run.model.protocol.record.push_back(r);
+      }
+    for (const std::string &name : plan.parameters)
+      run.axisParam.push_back(run.model.findParam(name));
+    double dt = run.model.protocol.step;
+    bool euler = run.model.protocol.method == ir::Method::ExponentialEuler;
+    if (euler) {
+      run.fusedKernel = fuseExponentialEuler(run.model, dt, true);
+      if (run.fusedKernel && run.model.pools.empty() && run.model.protocol.every > dt * 1.5)
+        run.stateOnlyKernel = fuseExponentialEuler(run.model, dt, false);
+    }
+    std::string err;
+    if (im.engine == SweepEngine::Batched && run.fusedKernel) {
+      auto stateOnly = fuseExponentialEuler(run.model, dt, false);
+      run.laneKernels.lanes = im.lanes;
+      run.laneKernels.full = compile(*run.fusedKernel, im.lanes, err);
+      run.laneKernels.stateOnly = run.laneKernels.full ? compile(*stateOnly, im.lanes, err) : nullptr;
+      if (!run.laneKernels.stateOnly && im.error.empty())
+        im.error = "cannot compile the lane kernel of protocol '" + p->name + "': " + err;
+      run.lanes = true;
+      anyLanes = true;
+    } else if (im.engine != SweepEngine::Interpreter) {
+      anyScalar = true;
+      if (run.fusedKernel) {
+        run.fused.available = true;
+        run.fused.kernel.native = compile(*run.fusedKernel, 1, err);
+        if (run.stateOnlyKernel) {
+          run.fused.hasStateOnly = true;
+          run.fused.stateOnly.native = compile(*run.stateOnlyKernel, 1, err);
+        }
+      }
+      run.plain = compile(run.model.kernel, 1, err);
+      if ((!run.plain || (run.fusedKernel && !run.fused.kernel.native)) && im.error.empty())
+        im.error = "cannot compile protocol '" + p->name + "': " + err;
+    }
+    im.runs.push_back(std::move(run));
+  }
+  // Interpreters hold scratch values, so each worker has its own (made after the moves above,
+  // which would otherwise leave them pointing at moved-from kernels).
+  for (Impl::ProtocolRun &run : im.runs) {
+    if (run.lanes || run.plain)
+      continue;
+    for (size_t w = 0; w < workers; ++w) {
+      run.plainInterp.push_back(std::make_unique<Interpreter>(run.model.kernel));
+      if (run.fusedKernel)
+        run.fusedInterp.push_back(std::make_unique<Interpreter>(*run.fusedKernel));
+      if (run.stateOnlyKernel)
+        run.stateOnlyInterp.push_back(std::make_unique<Interpreter>(*run.stateOnlyKernel));
+    }
+  }
+  if (plan.needsRest) {
+    DiagnosticEngine quiet;
+    lowerModel(c.program, c.model, c.evaluator, nullptr, quiet, im.restModel);
+    for (const std::string &name : plan.parameters)
+      im.restParam.push_back(im.restModel.findParam(name));
+  }
+  if (im.engine == SweepEngine::Interpreter)
+    im.description = "interpreter";
+  else if (anyLanes)
+    im.description = "batched, " + std::to_string(im.lanes) + " lanes" + (anyScalar ? " (scalar where not exponential Euler)" : "");
+  else
+    im.description = "scalar";
+}
+
+SweepEvaluator::~SweepEvaluator() = default;
+
+bool SweepEvaluator::ready(std::string &error) const {
+  error = impl_->error;
+  return error.empty();
+}
+
+const std::string &SweepEvaluator::description() const { return impl_->description; }
+
+size_t SweepEvaluator::batch() const { return static_cast<size_t>(std::max(1, impl_->lanes)); }
+
+void SweepEvaluator::evaluate(const std::vector<size_t> &indices, std::vector<sweep::PointResult> &out, int worker) {
+  Impl &im = *impl_;
+  for (sweep::PointResult &r : out)
+    r.measures.assign(im.plan.measures.size(), NAN);
+  for (size_t p = 0; p < im.runs.size(); ++p) {
+    if (im.runs[p].lanes) {
+      im.evaluateLanes(p, indices, out);
+      continue;
+    }
+    for (size_t k = 0; k < indices.size(); ++k)
+      im.evaluateScalar(p, indices[k], out[k], worker);
+  }
+  if (im.plan.needsRest)
+    for (size_t k = 0; k < indices.size(); ++k)
+      im.evaluateRest(indices[k], out[k]);
+}
+
+} // namespace brine

@@ -1,0 +1,368 @@
+// SweepCommand.cpp - `brine sweep`: many runs of one model, one per point of a grid or a
+// sample, on every core, in SIMD lanes, checkpointed; `--shard` splits it across machines.
+#include "Commands.h"
+
+#include "Diagnostics.h"
+#include "ModelHash.h"
+#include "Pipeline.h"
+#include "Sha256.h"
+#include "Shard.h"
+#include "Sweep.h"
+#include "SweepRun.h"
+#include "TraceOutput.h"
+#ifdef BRINE_HAVE_JIT
+#include "JIT.h"
+#endif
+
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <thread>
+
+#ifndef BRINE_VERSION
+#define BRINE_VERSION "unknown"
+#endif
+
+namespace brine::cli {
+
+namespace {
+
+const char *sweepHelp = R"(usage: brine sweep [options] FILE
+
+Runs a sweep: the model once per point, each point a set of parameter values, and writes one
+row per point (the point's index, its parameters, then its measures, each with its unit, and
+why the point's run failed if it did). The sweep is a `sweep NAME { ... }` declaration in FILE,
+or is written on the command line with --vary, --values, --sample and --measure.
+
+Points run on every core; with exponential Euler the model is compiled to advance several
+points in lockstep in the CPU's SIMD lanes (8 with AVX-512, 4 with AVX2). Each lane computes
+only its own point, so a point's numbers do not depend on the thread count, the lanes beside it
+or the shard. With -o, finished points are checkpointed to FILE.journal: run the same command
+again after a crash or a kill and only unfinished points are computed; the final file is the
+same as an uninterrupted run's.
+
+options:
+  --sweep NAME            the sweep to run (default: the only one in FILE)
+  --vary NAME=A:B:N       vary a parameter over N points from A to B, e.g.
+                          --vary axon.SquidSodium1952.density=60mS/cm2:180mS/cm2:16
+  --vary-log NAME=A:B:N   the same, spaced evenly in logarithm
+  --values NAME=A,B,...   a list of values
+  --sample N              draw N points from the --vary ranges (no grid; N is not needed in them)
+  --design D              latin_hypercube (default) or uniform, with --sample
+  --seed S                the sample's seed (default 1)
+  --measure TEXT          a measure, e.g. 'step10: spike_count(axon.V)' or 'rest(axon)' (repeatable)
+  -o FILE                 write FILE (.csv or .json; repeatable) when the sweep is complete
+  --shard I/N             compute only shard I (0 to N-1) of N; `brine merge` joins the JSON files
+  --shard env[/N]         take I (and N) from a batch scheduler's array-task variables
+  --threads N             worker threads (default: every core)
+  --engine E              batched (default), scalar (one point at a time, as `brine run`) or interpreter
+  --lanes N               points per lockstep batch: 2, 4 or 8 (default: the CPU's widest)
+  --checkpoint N          points per journal entry (default 256; an entry is also written each second)
+  --restart               discard an existing journal and start again
+  --progress P            auto (default: a bar on a terminal, else a line every 10 s), bar, log or none
+  --version               print the version
+  --help                  show this help
+
+exit status: 0 success (failed points are reported in the output), 64 bad usage, 65 the spec has
+             errors, 70 internal fault, 73 an output could not be written
+
+brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+)";
+
+struct SweepOptions {
+  std::string file, sweep;
+  std::vector<std::string> axes, measures, outputs; // axes: spec text of `vary` items
+  std::string sample, design = "latin_hypercube", seed = "1";
+  std::string shard, engine = "batched", progress = "auto";
+  int threads = 0, lanes = 0;
+  size_t checkpoint = 256;
+  bool restart = false;
+};
+
+int usage(const std::string &message) {
+  std::fprintf(stderr, "brine sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
+  return Usage;
+}
+
+bool wholeNumber(const std::string &s, long low, long high, long &into) {
+  if (s.empty() || s.size() > 12 || s.find_first_not_of("0123456789") != std::string::npos)
+    return false;
+  into = std::stol(s);
+  return into >= low && into <= high;
+}
+
+// NAME=A:B:N -> "vary NAME from A to B points N"
+bool varyItem(const std::string &v, bool logarithmic, std::string &item, std::string &error) {
+  size_t eq = v.find('=');
+  std::vector<std::string> parts;
+  if (eq != std::string::npos) {
+    std::string rest = v.substr(eq + 1);
+    size_t pos = 0;
+    for (size_t colon; (colon = rest.find(':', pos)) != std::string::npos; pos = colon + 1)
+      parts.push_back(rest.substr(pos, colon - pos));
+    parts.push_back(rest.substr(pos));
+  }
+  if (eq == std::string::npos || eq == 0 || (parts.size() != 3 && parts.size() != 2)) {
+    error = "--vary needs NAME=FROM:TO:POINTS (or NAME=FROM:TO with --sample), not '" + v + "'";
+    return false;
+  }
+  item = "vary " + v.substr(0, eq) + " from " + parts[0] + " to " + parts[1];
+  if (parts.size() == 3)
+    item += " points " + parts[2];
+  if (logarithmic)
+    item += " logarithmic";
+  return true;
+}
+
+// The text of a sweep written on the command line, using FILE.
+std::string commandLineSpec(const SweepOptions &o) {
+  std::string text = "use \"" + std::filesystem::absolute(o.file).string() + "\"\n\nsweep command_line {\n";
+  for (const std::string &a : o.axes)
+    text += "  " + a + "\n";
+  if (!o.sample.empty())
+    text += "  sample " + o.sample + " " + o.design + " seed " + o.seed + "\n";
+  for (const std::string &m : o.measures)
+    text += "  measure " + m + "\n";
+  return text + "}\n";
+}
+
+} // namespace
+
+int sweepCommand(const std::vector<std::string> &args) {
+  SweepOptions o;
+  for (size_t i = 0; i < args.size(); ++i) {
+    const std::string &a = args[i];
+    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
+    std::string v, error;
+    long n = 0;
+    if (a == "--help" || a == "-h") {
+      std::fputs(sweepHelp, stdout);
+      return Ok;
+    } else if (a == "--version") {
+      std::printf("brine %s\n", BRINE_VERSION);
+      return Ok;
+    } else if (a == "--restart") {
+      o.restart = true;
+    } else if (value("--sweep", o.sweep) || value("--shard", o.shard) || value("--seed", o.seed)) {
+    } else if (value("--vary", v) || (a.rfind("--vary-log", 0) != 0 && false)) {
+      std::string item;
+      if (!varyItem(v, false, item, error))
+        return usage(error);
+      o.axes.push_back(item);
+    } else if (value("--vary-log", v)) {
+      std::string item;
+      if (!varyItem(v, true, item, error))
+        return usage(error);
+      o.axes.push_back(item);
+    } else if (value("--values", v)) {
+      size_t eq = v.find('=');
+      if (eq == std::string::npos || eq == 0 || eq + 1 == v.size())
+        return usage("--values needs NAME=A,B,..., not '" + v + "'");
+      o.axes.push_back("vary " + v.substr(0, eq) + " values " + v.substr(eq + 1));
+    } else if (value("--measure", v)) {
+      o.measures.push_back(v);
+    } else if (value("--sample", o.sample)) {
+      if (!wholeNumber(o.sample, 1, 100000000, n))
+        return usage("--sample needs a whole number of points from 1 to 100000000");
+    } else if (value("--design", o.design)) {
+      if (o.design != "latin_hypercube" && o.design != "uniform")
+        return usage("--design must be 'latin_hypercube' or 'uniform'");
+    } else if (value("-o", v)) {
+      o.outputs.push_back(v);
+    } else if (value("--threads", v)) {
+      if (!wholeNumber(v, 1, 4096, n))
+        return usage("--threads needs a whole number from 1 to 4096");
+      o.threads = static_cast<int>(n);
+    } else if (value("--lanes", v)) {
+      if (v != "2" && v != "4" && v != "8")
+        return usage("--lanes must be 2, 4 or 8");
+      o.lanes = std::stoi(v);
+    } else if (value("--checkpoint", v)) {
+      if (!wholeNumber(v, 1, 100000000, n))
+        return usage("--checkpoint needs a whole number of points");
+      o.checkpoint = static_cast<size_t>(n);
+    } else if (value("--engine", o.engine)) {
+      if (o.engine != "batched" && o.engine != "scalar" && o.engine != "interpreter")
+        return usage("--engine must be 'batched', 'scalar' or 'interpreter'");
+    } else if (value("--progress", o.progress)) {
+      if (o.progress != "auto" && o.progress != "bar" && o.progress != "log" && o.progress != "none")
+        return usage("--progress must be auto, bar, log or none");
+    } else if (a.size() > 1 && a[0] == '-') {
+      return usage("unknown option '" + a + "'");
+    } else if (o.file.empty()) {
+      o.file = a;
+    } else {
+      return usage("sweep takes one spec file");
+    }
+  }
+  if (o.file.empty())
+    return usage("no spec file given");
+  bool onCommandLine = !o.axes.empty() || !o.measures.empty() || !o.sample.empty();
+  if (onCommandLine && !o.sweep.empty())
+    return usage("--sweep names a sweep of the file; it cannot be combined with --vary, --values, --sample or --measure");
+  for (const std::string &out : o.outputs)
+    if (!isJsonPath(out) && (out.size() < 4 || out.substr(out.size() - 4) != ".csv"))
+      return usage("-o takes a .csv or .json file, not '" + out + "'");
+  sweep::ShardChoice shard;
+  if (!o.shard.empty()) {
+    std::string error;
+    if (!sweep::parseShard(o.shard, shard, error))
+      return usage(error);
+  }
+
+  Compilation c;
+  if (onCommandLine) {
+    std::error_code ec;
+    if (!std::filesystem::is_regular_file(o.file, ec)) {
+      std::fprintf(stderr, "brine sweep: error: cannot read '%s'\n", o.file.c_str());
+      return SpecErrors;
+    }
+    compileText("<command line>", commandLineSpec(o), c);
+  } else {
+    compileFile(o.file, c);
+  }
+  for (const Diagnostic &d : c.diags.all())
+    std::fputs(renderText(d).c_str(), stderr);
+  if (c.diags.errorCount() > 0)
+    return SpecErrors;
+  auto sweeps = rootSweeps(c.program);
+  const ast::SweepDecl *chosen = nullptr;
+  for (const ast::SweepDecl *s : sweeps)
+    if (s->name == o.sweep || (o.sweep.empty() && sweeps.size() == 1))
+      chosen = s;
+  if (!chosen) {
+    std::string names;
+    for (const ast::SweepDecl *s : sweeps)
+      names += (names.empty() ? "" : ", ") + s->name;
+    if (sweeps.empty())
+      std::fprintf(stderr, "brine sweep: error: '%s' declares no sweep; write one, or use --vary and --measure\n",
+                   o.file.c_str());
+    else if (o.sweep.empty())
+      std::fprintf(stderr, "brine sweep: error: '%s' has %zu sweeps (%s); choose one with --sweep\n", o.file.c_str(),
+                   sweeps.size(), names.c_str());
+    else
+      std::fprintf(stderr, "brine sweep: error: there is no sweep '%s' in '%s'; it has %s\n", o.sweep.c_str(),
+                   o.file.c_str(), names.c_str());
+    return Usage;
+  }
+  SweepPlan plan = planSweep(c, *chosen);
+
+  // The table of this shard's points.
+  sweep::Table table;
+  table.sweep = chosen->name;
+  table.version = BRINE_VERSION;
+  table.modelHash = modelHash(c.program);
+  table.design = plan.design;
+  table.totalPoints = plan.points.size();
+  table.shardIndex = shard.index;
+  table.shardCount = shard.count;
+  uint64_t count = 0;
+  sweep::shardRange(table.totalPoints, shard.index, shard.count, table.first, count);
+  for (size_t a = 0; a < plan.parameters.size(); ++a)
+    table.parameters.push_back({plan.parameters[a], plan.parameterUnits[a].name, plan.parameterUnits[a].scale});
+  for (const SweepMeasure &m : plan.measures) {
+    std::string name = m.decl->text;
+    table.measures.push_back({name, m.unit.name, m.unit.scale});
+  }
+  for (uint64_t k = 0; k < count; ++k) {
+    std::vector<double> shown;
+    // 15 digits: the unit conversion's last-bit noise (-54.387000000000001 mV) is not shown.
+    for (size_t a = 0; a < plan.parameters.size(); ++a) {
+      char buf[32];
+      std::snprintf(buf, sizeof buf, "%.15g", plan.points[table.first + k][a] * plan.parameterUnits[a].scale);
+      shown.push_back(std::strtod(buf, nullptr));
+    }
+    table.parameterValues.push_back(std::move(shown));
+  }
+  table.results.assign(count, sweep::PointResult());
+
+  int threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  SweepEngine engine = o.engine == "scalar" ? SweepEngine::Scalar
+                       : o.engine == "interpreter" ? SweepEngine::Interpreter : SweepEngine::Batched;
+  LaneCompiler compile;
+  int lanes = o.lanes;
+#ifdef BRINE_HAVE_JIT
+  std::unique_ptr<JIT> jit;
+  if (engine != SweepEngine::Interpreter) {
+    std::string jitError;
+    jit = JIT::create(jitError);
+    if (!jit) {
+      std::fprintf(stderr, "brine sweep: internal error: the JIT failed: %s\n", jitError.c_str());
+      return Internal;
+    }
+    if (lanes > jit->nativeLanes())
+      return usage("this CPU's vectors hold at most " + std::to_string(jit->nativeLanes()) + " lanes");
+    if (lanes == 0)
+      lanes = jit->nativeLanes();
+    compile = [&jit](const ir::Kernel &k, int width, std::string &error) {
+      return width == 1 ? jit->compile(k, error) : jit->compileLanes(k, width, error);
+    };
+  }
+#endif
+  SweepEvaluator evaluator(c, plan, engine, compile, lanes, threads);
+  std::string error;
+  if (!evaluator.ready(error)) {
+    std::fprintf(stderr, "brine sweep: internal error: %s\n", error.c_str());
+    return Internal;
+  }
+  table.engine = evaluator.description();
+  table.sweepHash = sha256Hex(table.version + "\n" + table.modelHash + "\n" + table.sweep + "\n" + table.engine +
+                              "\n" + std::to_string(table.totalPoints));
+
+  sweep::RunOptions run;
+  run.threads = threads;
+  run.batch = evaluator.batch();
+  run.chunk = o.checkpoint;
+  run.fingerprint = table.sweepHash + " shard " + std::to_string(shard.index) + "/" + std::to_string(shard.count);
+  run.progress = o.progress == "bar" ? sweep::Progress::Bar
+                 : o.progress == "log" ? sweep::Progress::Log
+                 : o.progress == "none" ? sweep::Progress::Quiet : sweep::Progress::Auto;
+  if (!o.outputs.empty()) {
+    run.journal = o.outputs.front() + ".journal";
+    if (o.restart)
+      std::filesystem::remove(run.journal);
+  }
+  sweep::RunReport report;
+  auto evaluate = [&](const std::vector<size_t> &local, std::vector<sweep::PointResult> &out, int worker) {
+    std::vector<size_t> global(local);
+    for (size_t &g : global)
+      g += table.first;
+    evaluator.evaluate(global, out, worker);
+  };
+  if (!sweep::runSweep(table, evaluate, run, report, error)) {
+    std::fprintf(stderr, "brine sweep: error: %s\n", error.c_str());
+    return error.find("journal") != std::string::npos && error.find("cannot write") != std::string::npos ? CannotWrite
+                                                                                                           : Usage;
+  }
+
+  size_t failed = 0;
+  for (const sweep::PointResult &r : table.results)
+    failed += r.failure.empty() ? 0 : 1;
+  if (o.outputs.empty())
+    std::fputs(sweep::toCsv(table).c_str(), stdout);
+  for (const std::string &out : o.outputs) {
+    std::string text = isJsonPath(out) ? sweep::toJson(table) : sweep::toCsv(table);
+    if (!writeFileAtomically(out, text, error)) {
+      std::fprintf(stderr, "brine sweep: %s\n", error.c_str());
+      std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
+      return CannotWrite;
+    }
+  }
+  if (!run.journal.empty())
+    std::filesystem::remove(run.journal);
+  std::fprintf(stderr, "swept %s: %llu point%s", table.sweep.c_str(), static_cast<unsigned long long>(count),
+               count == 1 ? "" : "s");
+  if (shard.count > 1)
+    std::fprintf(stderr, " (shard %d of %d, points %llu to %llu of %llu)", shard.index, shard.count,
+                 static_cast<unsigned long long>(table.first), static_cast<unsigned long long>(table.first + count - 1),
+                 static_cast<unsigned long long>(table.totalPoints));
+  if (report.resumed)
+    std::fprintf(stderr, ", %llu from the journal", static_cast<unsigned long long>(report.resumed));
+  std::fprintf(stderr, ", %zu failed; %s, %d thread%s, %.3g s (%.0f points/s)\n", failed, table.engine.c_str(),
+               threads, threads == 1 ? "" : "s", report.seconds,
+               report.seconds > 0 ? static_cast<double>(report.computed) / report.seconds : 0.0);
+  return Ok;
+}
+
+} // namespace brine::cli

@@ -1,0 +1,299 @@
+// SweepRun.cpp - the thread pool, the journal and the progress display of a sweep.
+#include "SweepRun.h"
+
+#include <nlohmann/json.hpp>
+
+#include <atomic>
+#include <chrono>
+#include <cmath>
+#include <condition_variable>
+#include <cstdio>
+#include <fcntl.h>
+#include <fstream>
+#include <mutex>
+#include <sstream>
+#include <thread>
+#include <unistd.h>
+
+namespace brine::sweep {
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+// ---- journal: a header line, then one JSON line per chunk of finished points ----
+
+std::string headerLine(const std::string &fingerprint, size_t points) {
+  nlohmann::json h = {{"brine_sweep_journal", 1}, {"fingerprint", fingerprint}, {"points", points}};
+  return h.dump() + "\n";
+}
+
+// Reads the journal's complete lines into `table`; `goodBytes` is where the last complete
+// line ends (a line cut short by a kill is dropped). Returns false with `error` when the
+// journal belongs to another sweep.
+bool readJournal(const std::string &path, const std::string &fingerprint, Table &table, uint64_t &resumed,
+                 off_t &goodBytes, std::string &error) {
+  std::ifstream in(path, std::ios::binary);
+  goodBytes = 0;
+  if (!in)
+    return true; // nothing to resume
+  std::stringstream buffer;
+  buffer << in.rdbuf();
+  std::string text = buffer.str();
+  size_t pos = 0;
+  bool first = true;
+  while (pos < text.size()) {
+    size_t end = text.find('\n', pos);
+    if (end == std::string::npos)
+      break; // cut short
+    std::string line = text.substr(pos, end - pos);
+    nlohmann::json j = nlohmann::json::parse(line, nullptr, false);
+    if (j.is_discarded())
+      break;
+    if (first) {
+      if (!j.is_object() || !j.contains("fingerprint") || j["fingerprint"] != fingerprint ||
+          j.value("points", size_t(0)) != table.results.size()) {
+        error = "the checkpoint journal '" + path +
+                "' was written for a different sweep (another spec, sweep, shard, engine or option); remove it "
+                "to start afresh";
+        return false;
+      }
+      first = false;
+    } else {
+      try {
+        std::vector<PointResult> rows;
+        std::vector<size_t> where;
+        for (auto &p : j.at("points")) {
+          size_t i = p.at(0).get<size_t>();
+          if (i >= table.results.size())
+            throw std::runtime_error("point out of range");
+          PointResult r;
+          r.done = true;
+          for (auto &v : p.at(1))
+            r.measures.push_back(v.is_null() ? NAN : v.get<double>());
+          if (!p.at(2).is_null())
+            r.failure = p.at(2).get<std::string>();
+          rows.push_back(std::move(r));
+          where.push_back(i);
+        }
+        for (size_t k = 0; k < rows.size(); ++k) {
+          if (!table.results[where[k]].done)
+            ++resumed;
+          table.results[where[k]] = std::move(rows[k]);
+        }
+      } catch (const std::exception &) {
+        break; // a damaged line: keep what came before it
+      }
+    }
+    pos = end + 1;
+    goodBytes = static_cast<off_t>(pos);
+  }
+  if (first)
+    goodBytes = 0; // no valid header: start the file again
+  return true;
+}
+
+std::string chunkLine(const Table &t, const std::vector<size_t> &indices) {
+  nlohmann::json points = nlohmann::json::array();
+  for (size_t i : indices) {
+    nlohmann::json measures = nlohmann::json::array();
+    for (double v : t.results[i].measures)
+      measures.push_back(std::isnan(v) ? nlohmann::json() : nlohmann::json(v));
+    points.push_back({i, measures, t.results[i].failure.empty() ? nlohmann::json() : nlohmann::json(t.results[i].failure)});
+  }
+  return nlohmann::json{{"points", points}}.dump() + "\n";
+}
+
+bool writeAll(int fd, const std::string &s) {
+  size_t done = 0;
+  while (done < s.size()) {
+    ssize_t n = ::write(fd, s.data() + done, s.size() - done);
+    if (n < 0)
+      return false;
+    done += static_cast<size_t>(n);
+  }
+  return ::fdatasync(fd) == 0;
+}
+
+// ---- progress ----
+
+class ProgressDisplay {
+public:
+  ProgressDisplay(Progress mode, const std::string &label, uint64_t total)
+      : label_(label), total_(total), started_(Clock::now()), lastLog_(started_) {
+    mode_ = mode == Progress::Auto ? (::isatty(2) ? Progress::Bar : Progress::Log) : mode;
+  }
+
+  void update(uint64_t done, bool final) {
+    if (mode_ == Progress::Quiet)
+      return;
+    auto now = Clock::now();
+    double elapsed = std::chrono::duration<double>(now - started_).count();
+    double rate = elapsed > 0 ? static_cast<double>(done) / elapsed : 0;
+    double left = rate > 0 ? static_cast<double>(total_ - done) / rate : 0;
+    if (mode_ == Progress::Bar) {
+      int width = 30;
+      int filled = total_ ? static_cast<int>(30.0 * static_cast<double>(done) / static_cast<double>(total_)) : width;
+      std::fprintf(stderr, "\r%s [%s%s] %llu/%llu points, %.0f points/s, %s left ", label_.c_str(),
+                   std::string(static_cast<size_t>(filled), '#').c_str(),
+                   std::string(static_cast<size_t>(width - filled), '.').c_str(), static_cast<unsigned long long>(done),
+                   static_cast<unsigned long long>(total_), rate, clock(left).c_str());
+      if (final)
+        std::fputc('\n', stderr);
+      std::fflush(stderr);
+      return;
+    }
+    // A log: one line every 10 s and one at the end, nothing that needs a terminal.
+    if (!final && std::chrono::duration<double>(now - lastLog_).count() < 10)
+      return;
+    lastLog_ = now;
+    std::fprintf(stderr, "%s: %llu of %llu points (%.0f%%), %.0f points/s, %s\n", label_.c_str(),
+                 static_cast<unsigned long long>(done), static_cast<unsigned long long>(total_),
+                 total_ ? 100.0 * static_cast<double>(done) / static_cast<double>(total_) : 100.0, rate,
+                 final ? ("done in " + clock(elapsed)).c_str() : ("about " + clock(left) + " left").c_str());
+  }
+
+private:
+  static std::string clock(double seconds) {
+    char buf[32];
+    long s = std::lround(seconds);
+    if (s < 60)
+      std::snprintf(buf, sizeof buf, "%lds", s);
+    else if (s < 3600)
+      std::snprintf(buf, sizeof buf, "%ldm%02lds", s / 60, s % 60);
+    else
+      std::snprintf(buf, sizeof buf, "%ldh%02ldm", s / 3600, s / 60 % 60);
+    return buf;
+  }
+  Progress mode_;
+  std::string label_;
+  uint64_t total_;
+  Clock::time_point started_, lastLog_;
+};
+
+} // namespace
+
+bool runSweep(Table &t, const Evaluate &evaluate, const RunOptions &o, RunReport &report, std::string &error) {
+  auto started = Clock::now();
+  int fd = -1;
+  if (!o.journal.empty()) {
+    off_t good = 0;
+    if (!readJournal(o.journal, o.fingerprint, t, report.resumed, good, error))
+      return false;
+    fd = ::open(o.journal.c_str(), O_WRONLY | O_CREAT, 0644);
+    if (fd < 0 || ::ftruncate(fd, good) != 0 || ::lseek(fd, 0, SEEK_END) < 0) {
+      error = "cannot write the checkpoint journal '" + o.journal + "'";
+      if (fd >= 0)
+        ::close(fd);
+      return false;
+    }
+    if (good == 0 && !writeAll(fd, headerLine(o.fingerprint, t.results.size()))) {
+      error = "cannot write the checkpoint journal '" + o.journal + "'";
+      ::close(fd);
+      return false;
+    }
+  }
+  std::vector<size_t> pending;
+  for (size_t i = 0; i < t.results.size(); ++i)
+    if (!t.results[i].done)
+      pending.push_back(i);
+
+  size_t batch = std::max<size_t>(1, o.batch);
+  size_t batches = (pending.size() + batch - 1) / batch;
+  int threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  threads = static_cast<int>(std::min<size_t>(static_cast<size_t>(threads), std::max<size_t>(1, batches)));
+
+  std::mutex mutex;
+  std::condition_variable wake;
+  std::vector<size_t> unflushed;
+  std::atomic<size_t> next{0};
+  std::atomic<bool> stop{false};
+  std::string workerError;
+  const uint64_t alreadyDone = t.results.size() - pending.size();
+  uint64_t done = alreadyDone;
+  size_t finishedBatches = 0;
+
+  auto work = [&](int worker) {
+    std::vector<size_t> local;
+    std::vector<PointResult> out;
+    for (;;) {
+      size_t b = next.fetch_add(1);
+      if (b >= batches || stop)
+        break;
+      local.assign(pending.begin() + static_cast<long>(b * batch),
+                   pending.begin() + static_cast<long>(std::min(pending.size(), (b + 1) * batch)));
+      out.assign(local.size(), PointResult());
+      try {
+        evaluate(local, out, worker);
+      } catch (const std::exception &e) {
+        std::lock_guard<std::mutex> lock(mutex);
+        workerError = e.what();
+        stop = true;
+        wake.notify_all();
+        break;
+      }
+      std::lock_guard<std::mutex> lock(mutex);
+      for (size_t k = 0; k < local.size(); ++k) {
+        out[k].done = true;
+        t.results[local[k]] = std::move(out[k]);
+        unflushed.push_back(local[k]);
+      }
+      done += local.size();
+      ++finishedBatches;
+      wake.notify_all();
+    }
+  };
+
+  ProgressDisplay progress(o.progress, o.label, t.results.size());
+  std::vector<std::thread> pool;
+  for (int w = 0; w < threads; ++w)
+    pool.emplace_back(work, w);
+
+  bool writeFailed = false;
+  auto flush = [&](std::unique_lock<std::mutex> &) {
+    if (unflushed.empty() || fd < 0)
+      return;
+    if (!writeAll(fd, chunkLine(t, unflushed)))
+      writeFailed = true;
+    unflushed.clear();
+  };
+  {
+    std::unique_lock<std::mutex> lock(mutex);
+    auto lastFlush = Clock::now();
+    while (finishedBatches < batches && !stop) {
+      wake.wait_for(lock, std::chrono::milliseconds(100));
+      auto now = Clock::now();
+      if (unflushed.size() >= o.chunk || (now - lastFlush > std::chrono::seconds(1) && !unflushed.empty())) {
+        flush(lock);
+        lastFlush = now;
+        if (writeFailed) {
+          stop = true;
+          break;
+        }
+      }
+      progress.update(done, false);
+    }
+  }
+  for (std::thread &th : pool)
+    th.join();
+  {
+    std::unique_lock<std::mutex> lock(mutex);
+    flush(lock);
+  }
+  if (fd >= 0)
+    ::close(fd);
+  report.computed = done - alreadyDone;
+  report.seconds = std::chrono::duration<double>(Clock::now() - started).count();
+  if (!workerError.empty()) {
+    error = workerError;
+    return false;
+  }
+  if (writeFailed) {
+    error = "cannot write the checkpoint journal '" + o.journal + "'";
+    return false;
+  }
+  progress.update(done, true);
+  return true;
+}
+
+} // namespace brine::sweep

@@ -1,0 +1,155 @@
+// SweepTable.cpp - CSV and JSON of sweep results.
+#include "SweepTable.h"
+
+#include <nlohmann/json.hpp>
+
+#include <charconv>
+#include <cmath>
+
+namespace brine::sweep {
+
+void shardRange(uint64_t total, int index, int count, uint64_t &first, uint64_t &size) {
+  // total * i / count without overflow: total is at most 1e8 points, count at most 1e6.
+  auto at = [&](int i) { return total / static_cast<uint64_t>(count) * static_cast<uint64_t>(i) +
+                                total % static_cast<uint64_t>(count) * static_cast<uint64_t>(i) / static_cast<uint64_t>(count); };
+  first = at(index);
+  size = at(index + 1) - first;
+}
+
+std::string exactNumber(double v) {
+  char buf[40];
+  auto r = std::to_chars(buf, buf + sizeof buf, v);
+  return std::string(buf, r.ptr);
+}
+
+namespace {
+
+// RFC 4180 quoting when a cell holds a comma, a quote or a line break.
+std::string cell(const std::string &s) {
+  if (s.find_first_of(",\"\r\n") == std::string::npos)
+    return s;
+  std::string q = "\"";
+  for (char c : s)
+    q += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return q + "\"";
+}
+
+std::string heading(const Column &c) { return c.unit.empty() ? c.name : c.name + " (" + c.unit + ")"; }
+
+nlohmann::ordered_json columns(const std::vector<Column> &cs) {
+  nlohmann::ordered_json a = nlohmann::ordered_json::array();
+  for (const Column &c : cs)
+    a.push_back({{"name", c.name}, {"unit", c.unit}, {"scale", c.scale}});
+  return a;
+}
+
+nlohmann::ordered_json number(double v) { return std::isnan(v) ? nlohmann::ordered_json() : nlohmann::ordered_json(v); }
+
+} // namespace
+
+std::string toCsv(const Table &t) {
+  std::string out = "point";
+  for (const Column &c : t.parameters)
+    out += "," + cell(heading(c));
+  for (const Column &c : t.measures)
+    out += "," + cell(heading(c));
+  out += ",failure\n";
+  for (size_t i = 0; i < t.results.size(); ++i) {
+    out += std::to_string(t.first + i);
+    for (double v : t.parameterValues[i])
+      out += "," + exactNumber(v);
+    for (double v : t.results[i].measures)
+      out += "," + (std::isnan(v) ? std::string() : exactNumber(v));
+    out += "," + cell(t.results[i].failure) + "\n";
+  }
+  return out;
+}
+
+std::string toJson(const Table &t) {
+  nlohmann::ordered_json doc;
+  doc["brine_version"] = t.version;
+  doc["model_hash"] = t.modelHash;
+  doc["sweep"] = t.sweep;
+  doc["sweep_hash"] = t.sweepHash;
+  doc["design"] = t.design;
+  doc["engine"] = t.engine;
+  doc["points_total"] = t.totalPoints;
+  if (t.shardCount > 1)
+    doc["shard"] = {{"index", t.shardIndex}, {"count", t.shardCount}, {"first", t.first}};
+  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions.";
+  doc["parameters"] = columns(t.parameters);
+  doc["measures"] = columns(t.measures);
+  nlohmann::ordered_json points = nlohmann::ordered_json::array();
+  for (size_t i = 0; i < t.results.size(); ++i) {
+    nlohmann::ordered_json p, params = nlohmann::ordered_json::array(), measures = nlohmann::ordered_json::array();
+    for (double v : t.parameterValues[i])
+      params.push_back(v);
+    for (double v : t.results[i].measures)
+      measures.push_back(number(v));
+    p["point"] = t.first + i;
+    p["parameters"] = std::move(params);
+    p["measures"] = std::move(measures);
+    p["failure"] = t.results[i].failure.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(t.results[i].failure);
+    points.push_back(std::move(p));
+  }
+  doc["points"] = std::move(points);
+  return doc.dump(1) + "\n";
+}
+
+bool fromJson(const std::string &text, Table &t, std::string &error) {
+  try {
+    auto doc = nlohmann::json::parse(text);
+    t.version = doc.at("brine_version").get<std::string>();
+    t.modelHash = doc.at("model_hash").get<std::string>();
+    t.sweep = doc.at("sweep").get<std::string>();
+    t.sweepHash = doc.at("sweep_hash").get<std::string>();
+    t.design = doc.at("design").get<std::string>();
+    t.engine = doc.at("engine").get<std::string>();
+    t.totalPoints = doc.at("points_total").get<uint64_t>();
+    t.shardIndex = 0;
+    t.shardCount = 1;
+    t.first = 0;
+    if (doc.contains("shard")) {
+      t.shardIndex = doc["shard"].at("index").get<int>();
+      t.shardCount = doc["shard"].at("count").get<int>();
+      t.first = doc["shard"].at("first").get<uint64_t>();
+    }
+    auto readColumns = [](const nlohmann::json &a, std::vector<Column> &into) {
+      into.clear();
+      for (auto &c : a)
+        into.push_back({c.at("name").get<std::string>(), c.at("unit").get<std::string>(), c.at("scale").get<double>()});
+    };
+    readColumns(doc.at("parameters"), t.parameters);
+    readColumns(doc.at("measures"), t.measures);
+    t.parameterValues.clear();
+    t.results.clear();
+    uint64_t expected = t.first;
+    for (auto &p : doc.at("points")) {
+      if (p.at("point").get<uint64_t>() != expected++) {
+        error = "the points are not consecutive";
+        return false;
+      }
+      std::vector<double> params;
+      for (auto &v : p.at("parameters"))
+        params.push_back(v.get<double>());
+      PointResult r;
+      r.done = true;
+      for (auto &v : p.at("measures"))
+        r.measures.push_back(v.is_null() ? NAN : v.get<double>());
+      if (!p.at("failure").is_null())
+        r.failure = p["failure"].get<std::string>();
+      if (params.size() != t.parameters.size() || r.measures.size() != t.measures.size()) {
+        error = "a point has the wrong number of values";
+        return false;
+      }
+      t.parameterValues.push_back(std::move(params));
+      t.results.push_back(std::move(r));
+    }
+    return true;
+  } catch (const std::exception &e) {
+    error = std::string("not a brine sweep result: ") + e.what();
+    return false;
+  }
+}
+
+} // namespace brine::sweep
