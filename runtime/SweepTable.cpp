@@ -113,6 +113,11 @@ bool fromJson(const std::string &text, Table &t, std::string &error) {
       t.shardIndex = doc["shard"].at("index").get<int>();
       t.shardCount = doc["shard"].at("count").get<int>();
       t.first = doc["shard"].at("first").get<uint64_t>();
+      // brine merge indexes its shard slots with these; an edited file must not reach past them.
+      if (t.shardCount < 1 || t.shardIndex < 0 || t.shardIndex >= t.shardCount) {
+        error = "shard " + std::to_string(t.shardIndex) + " of " + std::to_string(t.shardCount) + " does not exist";
+        return false;
+      }
     }
     auto readColumns = [](const nlohmann::json &a, std::vector<Column> &into) {
       into.clear();

@@ -141,6 +141,15 @@ TEST_CASE("fromJson refuses what is not a sweep result", "[sweep]") {
   error.clear();
   CHECK_FALSE(fromJson(toJson(fewer), t, error));
   CHECK(error.find("wrong number") != std::string::npos);
+  // A shard index outside its count (an edited file) is refused, not used as an index.
+  for (int index : {-1, 3, 7000000}) {
+    Table shard = sample();
+    shard.shardCount = 3;
+    shard.shardIndex = index;
+    error.clear();
+    CHECK_FALSE(fromJson(toJson(shard), t, error));
+    CHECK(error.find("does not exist") != std::string::npos);
+  }
 }
 
 TEST_CASE("exactNumber reads back as the same double", "[sweep]") {
