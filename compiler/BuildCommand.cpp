@@ -69,6 +69,9 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault 
              the runtime archives or the C++ compiler driver cannot be found, or linking fails),
              73 the output could not be written
 
+environment: BRINE_CXX  the C++ compiler driver that links (default: c++ on PATH; in a
+                        sanitizer build of brine, the compiler that built it)
+
 brine is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
@@ -284,10 +287,12 @@ int buildCommand(const std::vector<std::string> &args) {
       return fault(std::string("cannot find the runtime file '") + n.file + "'; looked in:" + searched);
     found.push_back(*path);
   }
-  auto driver = findOnPath(BRINE_LINK_DRIVER);
+  const char *chosen = std::getenv("BRINE_CXX");
+  std::string driverName = chosen && *chosen ? chosen : BRINE_LINK_DRIVER;
+  auto driver = findOnPath(driverName);
   if (!driver)
-    return fault(std::string("cannot find the C++ compiler driver '") + BRINE_LINK_DRIVER +
-                 "' on PATH; it links the model (on Debian: apt-get install g++)");
+    return fault("cannot find the C++ compiler driver '" + driverName +
+                 "' on PATH; it links the model (on Debian: apt-get install g++; BRINE_CXX names another)");
 
   ScratchDirectory scratch;
   if (scratch.path.empty())
@@ -308,7 +313,9 @@ int buildCommand(const std::vector<std::string> &args) {
     std::string exports = (scratch.path / "exports.map").string();
     if (!writeFileAtomically(exports, "{\n  global: brine_model_*;\n  local: *;\n};\n", error))
       return fault(error);
-    link.insert(link.end(), {"-shared", "-Wl,--version-script=" + exports,
+    // -Bsymbolic: the library's own calls stay inside it even when another model library
+    // that exports the same names is loaded first.
+    link.insert(link.end(), {"-shared", "-Wl,-Bsymbolic", "-Wl,--version-script=" + exports,
                              "-Wl,-soname," + fs::path(o.output).filename().string()});
   }
   link.insert(link.end(), {"-o", linked, object});
