@@ -141,9 +141,11 @@ private:
       return;
     }
     bool ok = same(a.from.get()) & same(a.to.get());
-    if (sampled && a.points > 0)
+    // `points 0` is written but not positive: test whether the clause is there, not its value.
+    bool givenPoints = a.pointsRange.valid();
+    if (sampled && givenPoints)
       diags_.error(a.pointsRange, "a sampled sweep takes its point count from 'sample'; drop 'points'");
-    if (!sampled && a.points <= 0) {
+    if (!sampled && !givenPoints) {
       diags_.error(a.range, "a grid needs the number of points along '" + a.parameter + "': add 'points N'");
       return;
     }
