@@ -63,7 +63,7 @@ bool refused(const std::string &text) {
 
 } // namespace
 
-TEST_CASE("--shard I/N names shard I of N", "[sweep]") {
+TEST_CASE("parseShard: --shard I/N names shard I of N", "[sweep]") {
   SchedulerEnvironment none({});
   CHECK(parsed("0/4").index == 0);
   CHECK(parsed("0/4").count == 4);
@@ -73,7 +73,7 @@ TEST_CASE("--shard I/N names shard I of N", "[sweep]") {
   CHECK(parsed("999999/1000000").index == 999999);
 }
 
-TEST_CASE("--shard refuses shards that do not exist and text that is not I/N", "[sweep]") {
+TEST_CASE("parseShard: --shard refuses shards that do not exist and text that is not I/N", "[sweep]") {
   SchedulerEnvironment none({});
   for (const char *bad : {"4/4", "5/4", "-1/2", "a/b", "1", "", "/", "1/", "/2", "0/0", "1/2/3", "1.5/4", " 1/4",
                           "0x1/4", "0/1000001", "env2", "env/", "env/x"})
@@ -83,7 +83,7 @@ TEST_CASE("--shard refuses shards that do not exist and text that is not I/N", "
   CHECK(refused("env/4"));
 }
 
-TEST_CASE("--shard env reads SLURM's array-task variables", "[sweep]") {
+TEST_CASE("parseShard: --shard env reads SLURM's array-task variables", "[sweep]") {
   {
     SchedulerEnvironment slurm({{"SLURM_ARRAY_TASK_ID", "1"}, {"SLURM_ARRAY_TASK_MIN", "0"}, {"SLURM_ARRAY_TASK_COUNT", "3"}});
     ShardChoice s = parsed("env");
@@ -109,7 +109,7 @@ TEST_CASE("--shard env reads SLURM's array-task variables", "[sweep]") {
   }
 }
 
-TEST_CASE("--shard env reads SGE's task range and step", "[sweep]") {
+TEST_CASE("parseShard: --shard env reads SGE's task range and step", "[sweep]") {
   {
     SchedulerEnvironment sge({{"SGE_TASK_ID", "3"}, {"SGE_TASK_FIRST", "1"}, {"SGE_TASK_LAST", "4"}});
     ShardChoice s = parsed("env");
@@ -133,7 +133,7 @@ TEST_CASE("--shard env reads SGE's task range and step", "[sweep]") {
   }
 }
 
-TEST_CASE("--shard env reads PBS and LSF indices", "[sweep]") {
+TEST_CASE("parseShard: --shard env reads PBS and LSF indices", "[sweep]") {
   {
     SchedulerEnvironment pbs({{"PBS_ARRAY_INDEX", "2"}});
     CHECK(refused("env")); // PBS gives no count
