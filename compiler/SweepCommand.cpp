@@ -353,7 +353,10 @@ int sweepCommand(const std::vector<std::string> &args) {
     std::filesystem::remove(run.journal);
   std::fprintf(stderr, "swept %s: %llu point%s", table.sweep.c_str(), static_cast<unsigned long long>(count),
                count == 1 ? "" : "s");
-  if (shard.count > 1)
+  if (shard.count > 1 && count == 0) // more shards than points: "points 0 to -1" would wrap round
+    std::fprintf(stderr, " (shard %d of %d, none of the %llu)", shard.index, shard.count,
+                 static_cast<unsigned long long>(table.totalPoints));
+  else if (shard.count > 1)
     std::fprintf(stderr, " (shard %d of %d, points %llu to %llu of %llu)", shard.index, shard.count,
                  static_cast<unsigned long long>(table.first), static_cast<unsigned long long>(table.first + count - 1),
                  static_cast<unsigned long long>(table.totalPoints));

@@ -95,6 +95,15 @@ expect_rc mergeusage 64 merge "$TMP/s0.json"
 expect_grep mergeusage err "^brine merge: error: no output given"
 expect_rc mergeopt 64 merge --bogus -o "$TMP/x.csv" "$TMP/s0.json"
 
+# More shards than points: the empty shards merge too, and say they hold none.
+for i in 0 1 2 3 4 5 6 7 8 9 10 11 12; do
+  expect_rc "many$i" 0 "${S[@]}" --shard "$i/13" -o "$TMP/m$i.json" "$TMP/small.brine"
+done
+expect_grep many0 err "^swept eleven: 0 points \(shard 0 of 13, none of the 11\)"
+expect_grep many1 err "^swept eleven: 1 point \(shard 1 of 13, points 0 to 0 of 11\)"
+expect_rc mergemany 0 merge -o "$TMP/many.csv" "$TMP"/m{0,1,2,3,4,5,6,7,8,9,10,11,12}.json
+cmp -s "$TMP/many.csv" "$TMP/whole.csv" || fail "mergemany: 13 shards of 11 points merge to another CSV"
+
 # --shard env: SLURM's task 1 of 0..2 is --shard 1/3.
 rc=0
 SLURM_ARRAY_TASK_ID=1 SLURM_ARRAY_TASK_MIN=0 SLURM_ARRAY_TASK_COUNT=3 \
