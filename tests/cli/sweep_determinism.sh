@@ -63,6 +63,19 @@ done
 sweep s1 --engine scalar --threads 1
 sweep s2 --engine scalar --threads 2
 same s1 s2
+sweep i1 --engine interpreter --threads 1
+sweep i2 --engine interpreter --threads 2
+same i1 i2
+# The reference interpreter computes what the native scalar kernels compute.
+"$PY" - "$TMP/i1.json" "$TMP/s1.json" <<'PYEOF' || fail "interpreter: disagrees with the scalar engine"
+import json, sys
+interp, scalar = (json.load(open(p, encoding="utf-8")) for p in sys.argv[1:])
+assert interp["engine"] == "interpreter", interp["engine"]
+for a, b in zip(interp["points"], scalar["points"], strict=True):
+    assert a["parameters"] == b["parameters"] and a["measures"][0] == b["measures"][0], (a, b)
+    for x, y in zip(a["measures"][1:], b["measures"][1:]):
+        assert (x is None) == (y is None) and (x is None or abs(x - y) <= 1e-12 * abs(y)), (a, b)
+PYEOF
 
 # ---- lane independence: the same parameter value gives the same bits in any lane, beside any
 # neighbours (one of them a point whose run fails) ----
