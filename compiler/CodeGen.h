@@ -10,6 +10,8 @@
 namespace llvm {
 class LLVMContext;
 class Module;
+class TargetMachine;
+class Triple;
 } // namespace llvm
 
 namespace brine {
@@ -27,5 +29,10 @@ namespace brine {
 /// _ZGVdN4v_exp, _ZGVeN8v_exp, ...), so no lane's value depends on another lane.
 std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
                                       const std::string &functionName, int lanes = 1);
+
+/// The new pass manager's O3 for `machine`, with scalar libm only (libmvec's vector functions
+/// differ from scalar ones in the last bits). The JIT and `brine build` both use it, so a
+/// built model computes bit for bit what `brine run` computes. Defined in JIT.cpp.
+void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple);
 
 } // namespace brine

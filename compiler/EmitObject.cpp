@@ -30,24 +30,6 @@ namespace {
 
 std::string describe(llvm::Error e) { return llvm::toString(std::move(e)); }
 
-// The same pipeline as JIT.cpp's optimize() (O3, scalar libm only), so a built model computes
-// bit for bit what `brine run` computes.
-void optimize(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
-  llvm::LoopAnalysisManager lam;
-  llvm::FunctionAnalysisManager fam;
-  llvm::CGSCCAnalysisManager cgam;
-  llvm::ModuleAnalysisManager mam;
-  llvm::PassBuilder builder(&machine);
-  llvm::TargetLibraryInfoImpl tlii(triple);
-  fam.registerPass([&] { return llvm::TargetLibraryAnalysis(tlii); });
-  builder.registerModuleAnalyses(mam);
-  builder.registerCGSCCAnalyses(cgam);
-  builder.registerFunctionAnalyses(fam);
-  builder.registerLoopAnalyses(lam);
-  builder.crossRegisterProxies(lam, fam, cgam, mam);
-  builder.buildPerModuleDefaultPipeline(llvm::OptimizationLevel::O3).run(module, mam);
-}
-
 // The target machine the JIT would create: host CPU and features, aggressive codegen, PIC and
 // the small code model (JITTargetMachineBuilder would default to the large one).
 std::unique_ptr<llvm::TargetMachine> hostMachine(llvm::Triple &triple, std::string &error) {
@@ -114,7 +96,7 @@ bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::
       fn->addFnAttr("target-features", machine->getTargetFeatureString());
     }
     // Each kernel is optimised alone, as the JIT does, before it joins the others.
-    optimize(*kernelModule, *machine, triple);
+    optimizeModule(*kernelModule, *machine, triple);
     if (llvm::Linker::linkModules(*module, std::move(kernelModule))) {
       error = "cannot link kernel " + std::to_string(i) + " into the object";
       return false;

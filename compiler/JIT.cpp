@@ -62,18 +62,15 @@ llvm::Error defineLibm(llvm::orc::LLJIT &jit) {
   return jit.getMainJITDylib().define(llvm::orc::absoluteSymbols(std::move(symbols)));
 }
 
-/// The new pass manager's O3, with glibc's libmvec known so loops and SLP groups of exp, log,
-/// pow... become calls such as _ZGVdN4v_exp.
-void optimize(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
+} // namespace
+
+void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
   llvm::LoopAnalysisManager lam;
   llvm::FunctionAnalysisManager fam;
   llvm::CGSCCAnalysisManager cgam;
   llvm::ModuleAnalysisManager mam;
   llvm::PassBuilder builder(&machine);
-  llvm::TargetLibraryInfoImpl tlii(triple);
-  // Scalar libm only: libmvec's vector exp differs from scalar exp in the last bits, which
-  // would break the interpreter/JIT agreement. (Batched sweeps will opt in to it.)
-  (void)triple;
+  llvm::TargetLibraryInfoImpl tlii(triple); // no vector library registered
   fam.registerPass([&] { return llvm::TargetLibraryAnalysis(tlii); });
   builder.registerModuleAnalyses(mam);
   builder.registerCGSCCAnalyses(cgam);
@@ -82,8 +79,6 @@ void optimize(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Tr
   builder.crossRegisterProxies(lam, fam, cgam, mam);
   builder.buildPerModuleDefaultPipeline(llvm::OptimizationLevel::O3).run(module, mam);
 }
-
-} // namespace
 
 JIT::JIT(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
 JIT::~JIT() = default;
@@ -179,7 +174,7 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
       fn->addFnAttr("prefer-vector-width", bits);
     }
   }
-  optimize(*module, *impl.machine, impl.triple);
+  optimizeModule(*module, *impl.machine, impl.triple);
 
   impl.lastIR.clear();
   llvm::raw_string_ostream irStream(impl.lastIR);

@@ -86,7 +86,7 @@ int usage(const std::string &message) {
 }
 
 bool wholeNumber(const std::string &s, long low, long high, long &into) {
-  if (s.empty() || s.size() > 12 || s.find_first_not_of("0123456789") != std::string::npos)
+  if (s.empty() || s.size() > 16 || s.find_first_not_of("0123456789") != std::string::npos)
     return false;
   into = std::stol(s);
   return into >= low && into <= high;
@@ -144,8 +144,11 @@ int sweepCommand(const std::vector<std::string> &args) {
       return Ok;
     } else if (a == "--restart") {
       o.restart = true;
-    } else if (value("--sweep", o.sweep) || value("--shard", o.shard) || value("--seed", o.seed)) {
-    } else if (value("--vary", v) || (a.rfind("--vary-log", 0) != 0 && false)) {
+    } else if (value("--seed", o.seed)) {
+      if (!wholeNumber(o.seed, 0, 9007199254740992L, n))
+        return usage("--seed needs a whole number from 0 to 2^53");
+    } else if (value("--sweep", o.sweep) || value("--shard", o.shard)) {
+    } else if (value("--vary", v)) {
       std::string item;
       if (!varyItem(v, false, item, error))
         return usage(error);

@@ -6,6 +6,7 @@
 #include "brine_model.h"
 
 #include "Fuse.h"
+#include "Simulate.h"
 #include "StandaloneModel.h"
 
 #include <cmath>
@@ -134,12 +135,7 @@ struct brine_model {
       double g = out[c.gOutput], ge = out[c.geOutput], other = out[c.iOtherOutput];
       double cap = params[c.capacitanceParam];
       double &v = y[c.voltageState];
-      if (g > 0) {
-        double vInf = (ge - other) / g;
-        v = vInf + (v - vInf) * std::exp(-dt * g / cap);
-      } else {
-        v -= dt * other / cap;
-      }
+      v = exponentialEulerVoltage(v, g, ge, other, cap, dt);
     }
   }
 

@@ -53,7 +53,9 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
     NodeId dtOverC = k.binary(Op::Div, k.constant(dt), cap); // one division, shared
     NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Mul, dtOverC, g)));
     NodeId relaxed = k.binary(Op::Add, vInf, k.binary(Op::Mul, k.binary(Op::Sub, v, vInf), decay));
-    NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Mul, dtOverC, other));
+    // Without a positive conductance, an explicit step of the whole current (as Simulate.cpp).
+    NodeId current = k.binary(Op::Add, k.binary(Op::Sub, k.binary(Op::Mul, g, v), ge), other);
+    NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Mul, dtOverC, current));
     next[c.voltageState] = k.select(k.binary(Op::Gt, g, k.constant(0)), relaxed, explicitStep);
   }
   // Dynamic concentrations: a forward Euler step of their currents.

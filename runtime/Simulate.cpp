@@ -20,6 +20,16 @@ namespace {
 constexpr double maxPotential = 2.0; // volts
 } // namespace
 
+double exponentialEulerVoltage(double v, double g, double ge, double other, double cap, double dt) {
+  if (g > 0) {
+    double vInf = (ge - other) / g;
+    return vInf + (v - vInf) * std::exp(-dt * g / cap);
+  }
+  // No positive conductance to relax towards (a zero or negative density): an explicit step
+  // of the whole current, G V - GE included.
+  return v - dt * (g * v - ge + other) / cap;
+}
+
 bool healthyState(const ir::Model &m, const double *y, size_t stride, double t, SimulationFailure &failure) {
   auto fail = [&](size_t state, const char *reason) {
     failure.failed = true;
@@ -196,12 +206,7 @@ private:
       double g = out_[c.gOutput], ge = out_[c.geOutput], other = out_[c.iOtherOutput];
       double cap = p_[c.capacitanceParam];
       double &v = y_[c.voltageState];
-      if (g > 0) {
-        double vInf = (ge - other) / g;
-        v = vInf + (v - vInf) * std::exp(-dt * g / cap);
-      } else {
-        v -= dt * other / cap;
-      }
+      v = exponentialEulerVoltage(v, g, ge, other, cap, dt);
     }
   }
 

@@ -56,6 +56,10 @@ struct FusedStep {
   bool hasStateOnly = false;
 };
 
+/// The exponential Euler update of a potential with the gates frozen: the exact relaxation
+/// of C V' = GE - G V - Iother when G > 0, otherwise an explicit step of the whole current.
+double exponentialEulerVoltage(double v, double g, double ge, double other, double cap, double dt);
+
 /// Checks a state vector whose values are `stride` apart (1 for one run, the lane count for
 /// lockstep runs): every value finite, every potential within +-2 V. On a problem fills
 /// `failure` (time t, the state's name, the cause) and returns false.
