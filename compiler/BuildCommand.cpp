@@ -9,8 +9,10 @@
 #include "ModelFile.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
+#include "Sweep.h"
 #include "TraceOutput.h"
 
+#include <algorithm>
 #include <cerrno>
 #include <cstdio>
 #include <cstdlib>
@@ -51,7 +53,10 @@ LLVM nor brine when it runs.
 
 Without --shared the program runs the model's protocols and takes the options of `brine run`
 (--protocol, --set, --duration, --every, -o); its CSV and JSON outputs are byte for byte those
-of `brine run`. `PROGRAM --help` lists its protocols and parameters.
+of `brine run`. `PROGRAM --help` lists its protocols and parameters. `PROGRAM sweep` runs the
+spec's sweeps, planned here, and writes what `brine sweep --engine scalar` writes; sweeps that
+measure rest or input_resistance are left out (with a note), as the program has no
+steady-state search.
 
 With --shared it is a shared library with the C interface in brine_model.h, which is copied
 next to it (see docs/embedding.md).
@@ -209,6 +214,46 @@ void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kerne
     kernels.add(k);
 }
 
+// The root sweeps whose measures all come from protocol runs, planned as `brine sweep` plans
+// them. A steady-state measure needs the compiler's search, which the runtime does not have.
+void bundleSweeps(Compilation &c, ModelBundle &bundle) {
+  std::vector<const ast::ProtocolDecl *> decls = protocols(c.program);
+  for (const ast::SweepDecl *s : rootSweeps(c.program)) {
+    const ast::ExpectDecl *steady = nullptr;
+    for (auto &m : s->measures)
+      if (!m->target && !steady)
+        steady = m.get();
+    if (steady) {
+      std::fprintf(stderr,
+                   "brine build: note: sweep '%s' is not built in: '%s' needs a steady-state search, which only "
+                   "`brine sweep` does\n",
+                   s->name.c_str(), steady->measure.c_str());
+      continue;
+    }
+    SweepPlan plan = planSweep(c, *s);
+    BundledSweep b;
+    b.name = s->name;
+    b.design = plan.design;
+    b.points = plan.points;
+    for (size_t a = 0; a < plan.parameters.size(); ++a)
+      b.parameters.push_back({plan.parameters[a], plan.parameterUnits[a].name, plan.parameterUnits[a].scale});
+    for (const ast::ProtocolDecl *p : plan.protocols) {
+      BundledSweep::Protocol bp;
+      bp.protocol = static_cast<int>(std::find(decls.begin(), decls.end(), p) - decls.begin());
+      for (const std::string &name : plan.parameters)
+        bp.parameters.push_back(bundle.protocols[static_cast<size_t>(bp.protocol)].findParam(name));
+      b.protocols.push_back(std::move(bp));
+    }
+    for (const SweepMeasure &m : plan.measures)
+      b.measures.push_back({{m.decl->text, m.unit.name, m.unit.scale},
+                            b.protocols[static_cast<size_t>(m.protocol)].protocol,
+                            m.decl->measure,
+                            m.decl->args[0].path,
+                            m.args.value});
+    bundle.sweeps.push_back(std::move(b));
+  }
+}
+
 struct BuildOptions {
   std::string file, output;
   bool shared = false;
@@ -265,6 +310,7 @@ int buildCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "brine build: error: '%s' has no protocol to build\n", o.file.c_str());
     return Usage;
   }
+  bundleSweeps(c, bundle);
 
   // Find everything the link needs before the slow part.
   struct Needed {
@@ -353,10 +399,11 @@ int buildCommand(const std::vector<std::string> &args) {
       return CannotWrite;
     }
   }
-  std::fprintf(stderr, "built %s: %s '%s', %zu protocol%s, %zu kernel%s%s%s\n", o.output.c_str(),
+  std::fprintf(stderr, "built %s: %s '%s', %zu protocol%s, %zu sweep%s, %zu kernel%s%s%s\n", o.output.c_str(),
                o.shared ? "shared library of" : "executable of", bundle.protocols.front().name.c_str(),
-               bundle.protocols.size(), bundle.protocols.size() == 1 ? "" : "s", kernels.all.size(),
-               kernels.all.size() == 1 ? "" : "s", header.empty() ? "" : "; header ", header.c_str());
+               bundle.protocols.size(), bundle.protocols.size() == 1 ? "" : "s", bundle.sweeps.size(),
+               bundle.sweeps.size() == 1 ? "" : "s", kernels.all.size(), kernels.all.size() == 1 ? "" : "s",
+               header.empty() ? "" : "; header ", header.c_str());
   return Ok;
 }
 

@@ -571,62 +571,7 @@ std::optional<double> restMeasure(const std::vector<rest::CompartmentRest> &anal
 
 std::optional<double> traceMeasure(const ExpectDecl &e, const MeasureArgs &args, const ir::Model &model,
                                    const Trace &t, std::string &why) {
-  const std::string &name = e.measure;
-  size_t column = 0;
-  while (column < t.columns() && t.names[column] != e.args[0].path)
-    ++column;
-  if (column == t.columns()) {
-    why = "'" + e.args[0].path + "' was not recorded";
-    return std::nullopt;
-  }
-  if (t.time.empty()) {
-    why = "nothing was recorded";
-    return std::nullopt;
-  }
-  double scale = model.recordables[model.findRecordable(e.args[0].path)].scale;
-  std::vector<double> values(t.time.size());
-  for (size_t i = 0; i < t.time.size(); ++i)
-    values[i] = t.at(i, column) / scale; // back to SI
-  double threshold = std::isnan(args.value) ? 0.0 : args.value;
-  if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
-    auto spikes = measures::spikeTimes(t.time, values, threshold);
-    if (name == "spike_count")
-      return static_cast<double>(spikes.size());
-    if (name == "first_spike") {
-      if (spikes.empty())
-        why = "no spike";
-      return spikes.empty() ? std::nullopt : std::optional<double>(spikes.front());
-    }
-    if (spikes.size() < 2) {
-      why = std::to_string(spikes.size()) + " spike" + (spikes.size() == 1 ? "" : "s") + ", fewer than two";
-      return std::nullopt;
-    }
-    if (name == "last_interval")
-      return spikes.back() - spikes[spikes.size() - 2];
-    return measures::firingRate(spikes);
-  }
-  if (name == "peak")
-    return measures::peak(values);
-  if (name == "minimum")
-    return measures::minimum(values);
-  if (name == "mean")
-    return measures::mean(t.time, values);
-  if (name == "final")
-    return values.back();
-  if (name == "value") {
-    double at = args.value;
-    for (size_t i = 1; i < t.time.size(); ++i)
-      if (t.time[i] >= at) {
-        double f = (at - t.time[i - 1]) / (t.time[i] - t.time[i - 1]);
-        return values[i - 1] + f * (values[i] - values[i - 1]);
-      }
-    if (at == t.time.back())
-      return values.back();
-    why = "the run ends before that time";
-    return std::nullopt;
-  }
-  why = "unknown measure";
-  return std::nullopt;
+  return measures::ofTrace(e.measure, e.args[0].path, args.value, model, t, why);
 }
 
 std::optional<Dimension> measuredDimension(const Compilation &c, const ExpectDecl &e) {

@@ -9,6 +9,7 @@
 #include "Pipeline.h"
 #include "Rest.h"
 #include "Simulate.h"
+#include "SweepSupport.h"
 
 #include <cmath>
 #include <map>
@@ -229,6 +230,14 @@ SweepPlan planSweep(Compilation &c, const SweepDecl &s) {
   return plan;
 }
 
+std::vector<std::string> recordedBy(const SweepPlan &plan, const ProtocolDecl *protocol) {
+  std::vector<std::string> paths;
+  for (const SweepMeasure &m : plan.measures)
+    if (m.decl->target == protocol)
+      paths.push_back(m.decl->args[0].path);
+  return paths;
+}
+
 // ---- computing points ----
 
 struct SweepEvaluator::Impl {
@@ -260,12 +269,6 @@ struct SweepEvaluator::Impl {
     return params;
   }
 
-  static std::string failureText(const ast::ProtocolDecl *p, const SimulationFailure &f) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, "%.6g ms", f.time * 1e3);
-    return p->name + ": the run failed at " + buf + ": " + f.variable + " " + f.reason;
-  }
-
   void measureRun(size_t protocol, const Trace &trace, sweep::PointResult &r) {
     const ProtocolRun &run = runs[protocol];
     for (size_t k = 0; k < plan.measures.size(); ++k) {
@@ -278,10 +281,6 @@ struct SweepEvaluator::Impl {
     }
   }
 
-  void addFailure(sweep::PointResult &r, const std::string &text) {
-    r.failure += (r.failure.empty() ? "" : "; ") + text;
-  }
-
   void evaluateRest(size_t point, sweep::PointResult &r) {
     ir::Model m = restModel;
     m.params = paramsFor(restModel, restParam, point);
@@ -289,7 +288,7 @@ struct SweepEvaluator::Impl {
     try {
       analysis = rest::findSteadyStates(m, &c.model);
     } catch (const std::exception &e) {
-      addFailure(r, std::string("steady states: ") + e.what());
+      sweep::addFailure(r, std::string("steady states: ") + e.what());
       return;
     }
     for (size_t k = 0; k < plan.measures.size(); ++k) {
@@ -318,7 +317,7 @@ struct SweepEvaluator::Impl {
     SimulationStats stats;
     Trace trace = simulate(run.model, params, kernel, failure, &stats, fused);
     if (failure.failed)
-      addFailure(r, failureText(plan.protocols[protocol], failure));
+      sweep::addFailure(r, sweep::failureText(plan.protocols[protocol]->name, failure));
     else
       measureRun(protocol, trace, r);
   }
@@ -331,7 +330,7 @@ struct SweepEvaluator::Impl {
     LaneRun result = simulateLanes(run.model, params, run.laneKernels);
     for (size_t k = 0; k < points.size(); ++k) {
       if (result.failures[k].failed)
-        addFailure(out[k], failureText(plan.protocols[protocol], result.failures[k]));
+        sweep::addFailure(out[k], sweep::failureText(plan.protocols[protocol]->name, result.failures[k]));
       else
         measureRun(protocol, result.traces[k], out[k]);
     }
@@ -350,14 +349,7 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
     Impl::ProtocolRun run;
     run.model = c.lowered.at(p);
     // Record only what the measures read: fewer columns, and often the state-only kernel.
-    run.model.protocol.record.clear();
-    for (const SweepMeasure &m : plan.measures)
-      if (m.decl->target == p) {
-        int r = run.model.findRecordable(m.decl->args[0].path);
-        if (std::find(run.model.protocol.record.begin(), run.model.protocol.record.end(), r) ==
-            run.model.protocol.record.end())
-          run.model.protocol.record.push_back(r);
-      }
+    sweep::recordOnly(run.model, recordedBy(plan, p));
     for (const std::string &name : plan.parameters)
       run.axisParam.push_back(run.model.findParam(name));
     double dt = run.model.protocol.step;

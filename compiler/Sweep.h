@@ -46,6 +46,9 @@ struct SweepPlan {
 /// The points and columns of a sweep that checkSweeps accepted.
 SweepPlan planSweep(Compilation &c, const ast::SweepDecl &sweep);
 
+/// What the plan's measures of `protocol` read, in measure order (sweep::recordOnly takes it).
+std::vector<std::string> recordedBy(const SweepPlan &plan, const ast::ProtocolDecl *protocol);
+
 enum class SweepEngine { Batched, Scalar, Interpreter };
 
 /// Compiles a kernel to native code for `lanes` parameter sets (1: the scalar form), or

@@ -5,10 +5,10 @@
 #include "Diagnostics.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
-#include "Sha256.h"
 #include "Shard.h"
 #include "Sweep.h"
 #include "SweepRun.h"
+#include "SweepSupport.h"
 #include "TraceOutput.h"
 #ifdef BRINE_HAVE_JIT
 #include "JIT.h"
@@ -189,7 +189,7 @@ int sweepCommand(const std::vector<std::string> &args) {
       if (o.engine != "batched" && o.engine != "scalar" && o.engine != "interpreter")
         return usage("--engine must be 'batched', 'scalar' or 'interpreter'");
     } else if (value("--progress", o.progress)) {
-      if (o.progress != "auto" && o.progress != "bar" && o.progress != "log" && o.progress != "none")
+      if (sweep::Progress p; !sweep::parseProgress(o.progress, p))
         return usage("--progress must be auto, bar, log or none");
     } else if (a.size() > 1 && a[0] == '-') {
       return usage("unknown option '" + a + "'");
@@ -257,28 +257,11 @@ int sweepCommand(const std::vector<std::string> &args) {
   table.version = BRINE_VERSION;
   table.modelHash = modelHash(c.program);
   table.design = plan.design;
-  table.totalPoints = plan.points.size();
-  table.shardIndex = shard.index;
-  table.shardCount = shard.count;
-  uint64_t count = 0;
-  sweep::shardRange(table.totalPoints, shard.index, shard.count, table.first, count);
   for (size_t a = 0; a < plan.parameters.size(); ++a)
     table.parameters.push_back({plan.parameters[a], plan.parameterUnits[a].name, plan.parameterUnits[a].scale});
-  for (const SweepMeasure &m : plan.measures) {
-    std::string name = m.decl->text;
-    table.measures.push_back({name, m.unit.name, m.unit.scale});
-  }
-  for (uint64_t k = 0; k < count; ++k) {
-    std::vector<double> shown;
-    // 15 digits: the unit conversion's last-bit noise (-54.387000000000001 mV) is not shown.
-    for (size_t a = 0; a < plan.parameters.size(); ++a) {
-      char buf[32];
-      std::snprintf(buf, sizeof buf, "%.15g", plan.points[table.first + k][a] * plan.parameterUnits[a].scale);
-      shown.push_back(std::strtod(buf, nullptr));
-    }
-    table.parameterValues.push_back(std::move(shown));
-  }
-  table.results.assign(count, sweep::PointResult());
+  for (const SweepMeasure &m : plan.measures)
+    table.measures.push_back({m.decl->text, m.unit.name, m.unit.scale});
+  sweep::setUpTable(table, plan.points, shard);
 
   int threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   SweepEngine engine = o.engine == "scalar" ? SweepEngine::Scalar
@@ -310,17 +293,14 @@ int sweepCommand(const std::vector<std::string> &args) {
     return Internal;
   }
   table.engine = evaluator.description();
-  table.sweepHash = sha256Hex(table.version + "\n" + table.modelHash + "\n" + table.sweep + "\n" + table.engine +
-                              "\n" + std::to_string(table.totalPoints));
+  table.sweepHash = sweep::sweepHash(table);
 
   sweep::RunOptions run;
   run.threads = threads;
   run.batch = evaluator.batch();
   run.chunk = o.checkpoint;
-  run.fingerprint = table.sweepHash + " shard " + std::to_string(shard.index) + "/" + std::to_string(shard.count);
-  run.progress = o.progress == "bar" ? sweep::Progress::Bar
-                 : o.progress == "log" ? sweep::Progress::Log
-                 : o.progress == "none" ? sweep::Progress::Quiet : sweep::Progress::Auto;
+  run.fingerprint = sweep::journalFingerprint(table);
+  sweep::parseProgress(o.progress, run.progress);
   if (!o.outputs.empty()) {
     run.journal = o.outputs.front() + ".journal";
     if (o.restart)
@@ -335,39 +315,15 @@ int sweepCommand(const std::vector<std::string> &args) {
   };
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
     std::fprintf(stderr, "brine sweep: error: %s\n", error.c_str());
-    return error.find("journal") != std::string::npos && error.find("cannot write") != std::string::npos ? CannotWrite
-                                                                                                           : Usage;
+    return sweep::cannotWriteJournal(error) ? CannotWrite : Usage;
   }
 
-  size_t failed = 0;
-  for (const sweep::PointResult &r : table.results)
-    failed += r.failure.empty() ? 0 : 1;
-  if (o.outputs.empty())
-    std::fputs(sweep::toCsv(table).c_str(), stdout);
-  for (const std::string &out : o.outputs) {
-    std::string text = isJsonPath(out) ? sweep::toJson(table) : sweep::toCsv(table);
-    if (!writeFileAtomically(out, text, error)) {
-      std::fprintf(stderr, "brine sweep: %s\n", error.c_str());
-      std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
-      return CannotWrite;
-    }
+  if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
+    std::fprintf(stderr, "brine sweep: %s\n", error.c_str());
+    std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
+    return CannotWrite;
   }
-  if (!run.journal.empty())
-    std::filesystem::remove(run.journal);
-  std::fprintf(stderr, "swept %s: %llu point%s", table.sweep.c_str(), static_cast<unsigned long long>(count),
-               count == 1 ? "" : "s");
-  if (shard.count > 1 && count == 0) // more shards than points: "points 0 to -1" would wrap round
-    std::fprintf(stderr, " (shard %d of %d, none of the %llu)", shard.index, shard.count,
-                 static_cast<unsigned long long>(table.totalPoints));
-  else if (shard.count > 1)
-    std::fprintf(stderr, " (shard %d of %d, points %llu to %llu of %llu)", shard.index, shard.count,
-                 static_cast<unsigned long long>(table.first), static_cast<unsigned long long>(table.first + count - 1),
-                 static_cast<unsigned long long>(table.totalPoints));
-  if (report.resumed)
-    std::fprintf(stderr, ", %llu from the journal", static_cast<unsigned long long>(report.resumed));
-  std::fprintf(stderr, ", %zu failed; %s, %d thread%s, %.3g s (%.0f points/s)\n", failed, table.engine.c_str(),
-               threads, threads == 1 ? "" : "s", report.seconds,
-               report.seconds > 0 ? static_cast<double>(report.computed) / report.seconds : 0.0);
+  std::fputs(sweep::summary(table, report, threads).c_str(), stderr);
   return Ok;
 }
 

@@ -2,6 +2,7 @@
 #include "Measures.h"
 
 #include <algorithm>
+#include <cmath>
 
 namespace brine::measures {
 
@@ -38,6 +39,65 @@ double mean(const std::vector<double> &time, const std::vector<double> &values) 
   for (size_t i = 1; i < values.size(); ++i)
     area += 0.5 * (values[i] + values[i - 1]) * (time[i] - time[i - 1]);
   return area / (time.back() - time.front());
+}
+
+std::optional<double> ofTrace(const std::string &name, const std::string &recorded, double argument,
+                              const ir::Model &model, const Trace &t, std::string &why) {
+  size_t column = 0;
+  while (column < t.columns() && t.names[column] != recorded)
+    ++column;
+  if (column == t.columns()) {
+    why = "'" + recorded + "' was not recorded";
+    return std::nullopt;
+  }
+  if (t.time.empty()) {
+    why = "nothing was recorded";
+    return std::nullopt;
+  }
+  double scale = model.recordables[model.findRecordable(recorded)].scale;
+  std::vector<double> values(t.time.size());
+  for (size_t i = 0; i < t.time.size(); ++i)
+    values[i] = t.at(i, column) / scale; // back to SI
+  double threshold = std::isnan(argument) ? 0.0 : argument;
+  if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
+    auto spikes = spikeTimes(t.time, values, threshold);
+    if (name == "spike_count")
+      return static_cast<double>(spikes.size());
+    if (name == "first_spike") {
+      if (spikes.empty())
+        why = "no spike";
+      return spikes.empty() ? std::nullopt : std::optional<double>(spikes.front());
+    }
+    if (spikes.size() < 2) {
+      why = std::to_string(spikes.size()) + " spike" + (spikes.size() == 1 ? "" : "s") + ", fewer than two";
+      return std::nullopt;
+    }
+    if (name == "last_interval")
+      return spikes.back() - spikes[spikes.size() - 2];
+    return firingRate(spikes);
+  }
+  if (name == "peak")
+    return peak(values);
+  if (name == "minimum")
+    return minimum(values);
+  if (name == "mean")
+    return mean(t.time, values);
+  if (name == "final")
+    return values.back();
+  if (name == "value") {
+    double at = argument;
+    for (size_t i = 1; i < t.time.size(); ++i)
+      if (t.time[i] >= at) {
+        double f = (at - t.time[i - 1]) / (t.time[i] - t.time[i - 1]);
+        return values[i - 1] + f * (values[i] - values[i - 1]);
+      }
+    if (at == t.time.back())
+      return values.back();
+    why = "the run ends before that time";
+    return std::nullopt;
+  }
+  why = "unknown measure";
+  return std::nullopt;
 }
 
 } // namespace brine::measures

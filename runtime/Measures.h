@@ -1,6 +1,10 @@
 // Measures.h - measures of recorded traces: spikes, rates, extremes, means.
 #pragma once
+#include "IR.h"
+#include "Simulate.h"
+
 #include <optional>
+#include <string>
 #include <vector>
 
 namespace brine::measures {
@@ -14,5 +18,12 @@ double peak(const std::vector<double> &values);
 double minimum(const std::vector<double> &values);
 /// Time-weighted mean (trapezoidal) over the whole trace.
 double mean(const std::vector<double> &time, const std::vector<double> &values);
+
+/// The run measure `measure` (spike_count, firing_rate, first_spike, last_interval, peak,
+/// minimum, mean, final or value) of the quantity `recorded` in trace `t` of `model`, in SI;
+/// `argument` is the threshold or the time (SI; NaN when not given). nullopt with `why` when
+/// the trace has no such value. Pure: safe to call from several threads.
+std::optional<double> ofTrace(const std::string &measure, const std::string &recorded, double argument,
+                              const ir::Model &model, const Trace &t, std::string &why);
 
 } // namespace brine::measures

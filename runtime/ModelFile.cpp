@@ -11,7 +11,7 @@ using nlohmann::json;
 
 namespace {
 
-constexpr const char *formatName = "brine-model-bundle 1";
+constexpr const char *formatName = "brine-model-bundle 2";
 
 // JSON has no infinities or NaN; a folded constant may be one, so those go as strings.
 json number(double v) {
@@ -214,6 +214,69 @@ ir::Model readModel(const json &j) {
   return m;
 }
 
+json column(const sweep::Column &c) { return {{"name", c.name}, {"unit", c.unit}, {"scale", number(c.scale)}}; }
+
+sweep::Column readColumn(const json &j) {
+  return {j.at("name").get<std::string>(), j.at("unit").get<std::string>(), readNumber(j.at("scale"))};
+}
+
+json sweepJson(const BundledSweep &s) {
+  json parameters = json::array(), points = json::array(), measures = json::array(), protocols = json::array();
+  for (const sweep::Column &c : s.parameters)
+    parameters.push_back(column(c));
+  for (const std::vector<double> &p : s.points)
+    points.push_back(numbers(p));
+  for (const BundledSweep::Measure &m : s.measures)
+    measures.push_back({{"column", column(m.column)},
+                        {"protocol", m.protocol},
+                        {"measure", m.measure},
+                        {"recorded", m.recorded},
+                        {"argument", number(m.argument)}});
+  for (const BundledSweep::Protocol &p : s.protocols)
+    protocols.push_back({{"protocol", p.protocol}, {"parameters", p.parameters}});
+  return {{"name", s.name},   {"design", s.design},   {"parameters", parameters},
+          {"points", points}, {"measures", measures}, {"protocols", protocols}};
+}
+
+// Indices are checked against the bundle's protocols, as checkIndices does for a model.
+BundledSweep readSweep(const json &j, const std::vector<ir::Model> &models) {
+  BundledSweep s;
+  s.name = j.at("name").get<std::string>();
+  s.design = j.at("design").get<std::string>();
+  for (const json &c : j.at("parameters"))
+    s.parameters.push_back(readColumn(c));
+  auto protocolIndex = [&](const json &p) {
+    int i = p.get<int>();
+    if (i < 0 || static_cast<size_t>(i) >= models.size())
+      throw std::runtime_error("sweep '" + s.name + "' names protocol " + std::to_string(i) + ", out of range");
+    return i;
+  };
+  for (const json &p : j.at("points")) {
+    s.points.push_back(readNumbers(p));
+    if (s.points.back().size() != s.parameters.size())
+      throw std::runtime_error("a point of sweep '" + s.name + "' has the wrong number of values");
+  }
+  for (const json &m : j.at("measures")) {
+    BundledSweep::Measure x{readColumn(m.at("column")), protocolIndex(m.at("protocol")),
+                            m.at("measure").get<std::string>(), m.at("recorded").get<std::string>(),
+                            readNumber(m.at("argument"))};
+    if (models[static_cast<size_t>(x.protocol)].findRecordable(x.recorded) < 0)
+      throw std::runtime_error("sweep '" + s.name + "' reads '" + x.recorded + "', which is not recordable");
+    s.measures.push_back(std::move(x));
+  }
+  for (const json &p : j.at("protocols")) {
+    BundledSweep::Protocol x{protocolIndex(p.at("protocol")), p.at("parameters").get<std::vector<int>>()};
+    size_t params = models[static_cast<size_t>(x.protocol)].params.size();
+    if (x.parameters.size() != s.parameters.size())
+      throw std::runtime_error("sweep '" + s.name + "' has the wrong number of parameter indices");
+    for (int i : x.parameters)
+      if (i < 0 || static_cast<size_t>(i) >= params)
+        throw std::runtime_error("sweep '" + s.name + "' names parameter " + std::to_string(i) + ", out of range");
+    s.protocols.push_back(std::move(x));
+  }
+  return s;
+}
+
 // Every index a stepper follows must land inside its vector; a damaged file must not make it
 // read out of bounds.
 void checkIndices(const ir::Model &m) {
@@ -263,13 +326,14 @@ void checkIndices(const ir::Model &m) {
 
 std::string writeModelBundle(const ModelBundle &bundle) {
   json protocols = json::array();
+  json sweeps = json::array();
   for (const ir::Model &m : bundle.protocols)
     protocols.push_back(model(m));
-  json doc = {{"format", formatName},
-              {"tool_version", bundle.toolVersion},
-              {"model_hash", bundle.modelHash},
-              {"source", bundle.source},
-              {"protocols", protocols}};
+  for (const BundledSweep &s : bundle.sweeps)
+    sweeps.push_back(sweepJson(s));
+  json doc = {{"format", formatName},           {"tool_version", bundle.toolVersion},
+              {"model_hash", bundle.modelHash}, {"source", bundle.source},
+              {"protocols", protocols},         {"sweeps", sweeps}};
   return doc.dump();
 }
 
@@ -288,6 +352,9 @@ bool readModelBundle(const std::string &text, ModelBundle &bundle, std::string &
       bundle.protocols.push_back(readModel(m));
       checkIndices(bundle.protocols.back());
     }
+    bundle.sweeps.clear();
+    for (const json &s : doc.at("sweeps"))
+      bundle.sweeps.push_back(readSweep(s, bundle.protocols));
     return true;
   } catch (const std::exception &e) {
     error = std::string("malformed model bundle: ") + e.what();

@@ -1,7 +1,9 @@
 // Standalone.cpp - main() of the executables `brine build` writes: runs one of the compiled-in
-// protocols with the options of `brine run` and writes the same CSV or JSON bytes.
+// protocols with the options of `brine run` and writes the same CSV or JSON bytes, or with
+// `sweep` first, one of the compiled-in sweeps (StandaloneSweep.cpp).
 #include "Run.h"
 #include "RunSettings.h"
+#include "StandaloneMain.h"
 #include "StandaloneModel.h"
 #include "TraceOutput.h"
 
@@ -11,24 +13,49 @@
 #include <string>
 #include <vector>
 
+namespace brine::standalone {
+
+bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into) {
+  const std::string &a = args[i];
+  if (a.rfind(name + "=", 0) == 0) {
+    into = a.substr(name.size() + 1);
+    return true;
+  }
+  if (a == name && i + 1 < args.size()) {
+    into = args[++i];
+    return true;
+  }
+  return false;
+}
+
+int usage(const std::string &program, const std::string &message, const std::string &hint) {
+  std::fprintf(stderr, "%s: error: %s\n%s\n", program.c_str(), message.c_str(), hint.c_str());
+  return Usage;
+}
+
+} // namespace brine::standalone
+
 namespace {
 
 using namespace brine;
-
-enum ExitCode { Ok = 0, Usage = 64, Failed = 65, Internal = 70, CannotWrite = 73 };
+using namespace brine::standalone;
 
 std::string program = "model"; // argv[0] without its directory, for messages
 
 std::string helpText(const ModelBundle &b) {
   const ir::Model &first = b.protocols.front();
-  std::string text = "usage: " + program + " [options]\n\n";
+  std::string text = "usage: " + program + " [options]\n       " + program + " sweep [sweep options]\n\n";
   text += "Runs the model '" + first.name + "' from " + b.source + "\n(" + b.modelHash + "),\ncompiled by brine " +
           b.toolVersion +
           " to native code for the CPU it was built on, and writes the recorded\n"
           "quantities: time first, units in the header. The options are those of `brine run`, and the\n"
           "output is byte for byte what `brine run` writes for the same options.\n"
           "Conventions: V is inside minus outside; membrane current is positive outward; injected\n"
-          "current is positive into the cell.\n\n"
+          "current is positive into the cell.\n"
+          "With `sweep` first it runs one of the sweeps below instead and writes what\n"
+          "`brine sweep --engine scalar` writes; `" +
+          program +
+          " sweep --help` lists its options.\n\n"
           "options:\n"
           "  --protocol NAME      the protocol to run (default: the only one; needed when there are several)\n"
           "  --set NAME=VALUE     override a parameter with a unit, e.g. --set NAME=\"100 mS/cm2\" (repeatable)\n"
@@ -51,6 +78,7 @@ std::string helpText(const ModelBundle &b) {
                   describeDimension(first.paramDims[i]).c_str());
     text += line;
   }
+  text += "\n" + sweepList(b);
   text += "\nexit status: 0 success, 64 bad usage, 65 the simulation failed, 70 internal fault,\n"
           "             73 the output file could not be written\n\n"
           "brine is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
@@ -58,9 +86,7 @@ std::string helpText(const ModelBundle &b) {
 }
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "%s: error: %s\nrun '%s --help' for the options, protocols and parameters\n", program.c_str(),
-               message.c_str(), program.c_str());
-  return Usage;
+  return standalone::usage(program, message, "run '" + program + " --help' for the options, protocols and parameters");
 }
 
 struct Options {
@@ -75,21 +101,12 @@ int run(const std::vector<std::string> &args) {
     std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), error.empty() ? "no protocol" : error.c_str());
     return Internal;
   }
+  if (!args.empty() && args[0] == "sweep")
+    return sweepMode(bundle, std::vector<std::string>(args.begin() + 1, args.end()), program);
   Options o;
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string &a = args[i];
-    // "--name=VALUE" or "--name VALUE", as brine's own options.
-    auto value = [&](const std::string &name, std::string &into) {
-      if (a.rfind(name + "=", 0) == 0) {
-        into = a.substr(name.size() + 1);
-        return true;
-      }
-      if (a == name && i + 1 < args.size()) {
-        into = args[++i];
-        return true;
-      }
-      return false;
-    };
+    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
     std::string v;
     if (a == "--help" || a == "-h") {
       std::fputs(helpText(bundle).c_str(), stdout);

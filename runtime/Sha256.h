@@ -1,4 +1,4 @@
-// Sha256.h - a small SHA-256 (FIPS 180-4) for `brine hash`; no external crypto library.
+// Sha256.h - a small SHA-256 (FIPS 180-4) for `brine hash` and sweep hashes; no external crypto library.
 #pragma once
 #include <array>
 #include <cstdint>
