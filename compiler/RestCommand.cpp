@@ -5,6 +5,7 @@
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Rest.h"
+#include "RunSettings.h"
 
 #include <cmath>
 #include <cstdio>
@@ -49,24 +50,16 @@ int usage(const std::string &message) {
   return Usage;
 }
 
-// "-100mV", "-100 mV", "-0.1 V", "-100" (mV) -> volts.
+// "-100mV", "-100 mV", "-0.1 V", "-100" (a bare number is in mV) -> volts.
 std::optional<double> parseVoltage(const std::string &text) {
-  const char *begin = text.c_str();
   char *end = nullptr;
-  double number = std::strtod(begin, &end);
-  if (end == begin || !std::isfinite(number))
-    return std::nullopt;
-  std::string unit(end);
-  unit.erase(0, unit.find_first_not_of(' '));
-  while (!unit.empty() && unit.back() == ' ')
-    unit.pop_back();
-  if (unit.empty() || unit == "mV")
+  double number = std::strtod(text.c_str(), &end);
+  if (end != text.c_str() && std::isfinite(number) && text.find_first_not_of(' ', end - text.c_str()) == std::string::npos)
     return number * 1e-3;
-  if (unit == "V")
-    return number;
-  if (unit == "uV" || unit == "µV")
-    return number * 1e-6;
-  return std::nullopt;
+  auto q = parseQuantity(text);
+  if (!q || q->second != dims::voltage())
+    return std::nullopt;
+  return q->first;
 }
 
 std::string format(const char *fmt, double v) {
