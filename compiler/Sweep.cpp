@@ -360,10 +360,19 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
         run.stateOnlyKernel = fuseExponentialEuler(run.model, dt, false);
     }
     std::string err;
-    if (im.engine == SweepEngine::Batched && run.fusedKernel) {
-      auto stateOnly = fuseExponentialEuler(run.model, dt, false);
+    // Lanes step with a fused exponential Euler or RK4 step; other methods run point by point.
+    std::optional<ir::Kernel> laneFull, laneStateOnly;
+    if (im.engine == SweepEngine::Batched && euler && run.fusedKernel) {
+      laneFull = run.fusedKernel;
+      laneStateOnly = fuseExponentialEuler(run.model, dt, false);
+    } else if (im.engine == SweepEngine::Batched && run.model.protocol.method == ir::Method::RungeKutta4) {
+      laneFull = fuseRungeKutta4(run.model, dt, true);
+      laneStateOnly = fuseRungeKutta4(run.model, dt, false);
+    }
+    if (laneFull && laneStateOnly) {
+      auto &stateOnly = laneStateOnly;
       run.laneKernels.lanes = im.lanes;
-      run.laneKernels.full = compile(*run.fusedKernel, im.lanes, err);
+      run.laneKernels.full = compile(*laneFull, im.lanes, err);
       run.laneKernels.stateOnly = run.laneKernels.full ? compile(*stateOnly, im.lanes, err) : nullptr;
       if (!run.laneKernels.stateOnly && im.error.empty())
         im.error = "cannot compile the lane kernel of protocol '" + p->name + "': " + err;
@@ -407,7 +416,7 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
   if (im.engine == SweepEngine::Interpreter)
     im.description = "interpreter";
   else if (anyLanes)
-    im.description = "batched, " + std::to_string(im.lanes) + " lanes" + (anyScalar ? " (scalar where not exponential Euler)" : "");
+    im.description = "batched, " + std::to_string(im.lanes) + " lanes" + (anyScalar ? " (scalar where the method is adaptive or a clamp is used)" : "");
   else
     im.description = "scalar";
 }

@@ -35,7 +35,7 @@ row per point (the point's index, its parameters, then its measures, each with i
 why the point's run failed if it did). The sweep is a `sweep NAME { ... }` declaration in FILE,
 or is written on the command line with --vary, --values, --sample and --measure.
 
-Points run on every core; with exponential Euler the model is compiled to advance several
+Points run on every core; with exponential Euler or RK4 the model is compiled to advance several
 points in lockstep in the CPU's SIMD lanes (8 with AVX-512, 4 with AVX2). Each lane computes
 only its own point, so a point's numbers do not depend on the thread count, the lanes beside it
 or the shard. With -o, finished points are checkpointed to FILE.journal: run the same command

@@ -8,6 +8,87 @@ namespace brine {
 using ir::NodeId;
 using ir::Op;
 
+namespace {
+
+// Copies `src` into `k` with its states read from `states` and its time from `time` (the copy
+// re-shares and re-folds as it goes); returns the node of each of src's nodes.
+std::vector<NodeId> inlineKernel(ir::Kernel &k, const ir::Kernel &src, const std::vector<NodeId> &states,
+                                 NodeId time) {
+  const auto &nodes = src.nodes();
+  std::vector<NodeId> map(nodes.size());
+  for (size_t i = 0; i < nodes.size(); ++i) {
+    const ir::Node &n = nodes[i];
+    switch (n.op) {
+    case Op::Const: map[i] = k.constant(n.constant); break;
+    case Op::State: map[i] = states[static_cast<size_t>(n.index)]; break;
+    case Op::Param: map[i] = k.param(n.index); break;
+    case Op::Time: map[i] = time; break;
+    case Op::Select: map[i] = k.select(map[n.a], map[n.b], map[n.c], n.loc); break;
+    default:
+      map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
+    }
+  }
+  return map;
+}
+
+} // namespace
+
+std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &m, double dt, bool withOutputs) {
+  for (const ir::Compartment &c : m.compartments)
+    if (c.clampedOutput >= 0)
+      return std::nullopt;
+  ir::Kernel k;
+  size_t n = m.stateNames.size();
+  std::vector<NodeId> y(n);
+  for (size_t s = 0; s < n; ++s)
+    y[s] = k.state(static_cast<int>(s));
+  // dy/dt at (states, time), written as Simulate.cpp's derivative() computes it, so the fused
+  // step gives the same numbers as the C++ RK4 loop.
+  std::vector<NodeId> firstOutputs;
+  auto derivative = [&](const std::vector<NodeId> &states, NodeId time) {
+    std::vector<NodeId> map = inlineKernel(k, m.kernel, states, time);
+    auto out = [&](int slot) { return map[m.kernel.outputs[static_cast<size_t>(slot)]]; };
+    if (firstOutputs.empty())
+      for (NodeId o : m.kernel.outputs)
+        firstOutputs.push_back(map[o]);
+    std::vector<NodeId> d(n, k.constant(0));
+    for (const ir::Gate &g : m.gates)
+      d[g.state] = k.binary(Op::Div, k.binary(Op::Sub, out(g.infOutput), states[g.state]), out(g.tauOutput));
+    for (const ir::Pool &pool : m.pools)
+      d[pool.state] = out(pool.derivativeOutput);
+    for (const ir::Compartment &c : m.compartments) {
+      NodeId v = states[c.voltageState];
+      NodeId current = k.binary(Op::Add, k.binary(Op::Sub, k.binary(Op::Mul, out(c.gOutput), v), out(c.geOutput)),
+                                out(c.iOtherOutput));
+      d[c.voltageState] = k.binary(Op::Div, k.unary(Op::Neg, current), k.param(c.capacitanceParam));
+    }
+    return d;
+  };
+  auto along = [&](const std::vector<NodeId> &slope, double h) { // y + h * slope
+    std::vector<NodeId> out(n);
+    for (size_t s = 0; s < n; ++s)
+      out[s] = k.binary(Op::Add, y[s], k.binary(Op::Mul, k.constant(h), slope[s]));
+    return out;
+  };
+  NodeId t = k.time();
+  NodeId half = k.binary(Op::Add, t, k.constant(0.5 * dt)), full = k.binary(Op::Add, t, k.constant(dt));
+  std::vector<NodeId> k1 = derivative(y, t);
+  std::vector<NodeId> k2 = derivative(along(k1, 0.5 * dt), half);
+  std::vector<NodeId> k3 = derivative(along(k2, 0.5 * dt), half);
+  std::vector<NodeId> k4 = derivative(along(k3, dt), full);
+  NodeId two = k.constant(2);
+  for (size_t s = 0; s < n; ++s) {
+    NodeId sum = k.binary(Op::Add, k.binary(Op::Add, k.binary(Op::Add, k1[s], k.binary(Op::Mul, two, k2[s])),
+                                            k.binary(Op::Mul, two, k3[s])),
+                          k4[s]);
+    k.addOutput(k.binary(Op::Add, y[s], k.binary(Op::Mul, k.constant(dt / 6), sum)));
+  }
+  if (withOutputs)
+    for (NodeId o : firstOutputs)
+      k.addOutput(o);
+  return k;
+}
+
 std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bool withOutputs) {
   for (const ir::Compartment &c : m.compartments)
     if (c.clampedOutput >= 0)

@@ -17,4 +17,8 @@ namespace brine {
 /// lets the optimiser drop everything that is only recorded; steps between recordings use it.
 std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt, bool withOutputs = true);
 
+/// The same for one classical RK4 step (four evaluations of the model's kernel, at t,
+/// t + dt/2 twice and t + dt), in the same output layout; sweeps step lanes with it.
+std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &model, double dt, bool withOutputs = true);
+
 } // namespace brine

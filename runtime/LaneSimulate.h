@@ -1,6 +1,6 @@
 // LaneSimulate.h - several parameter sets of one model stepped in lockstep, one per SIMD lane.
 //
-// The exponential Euler step is fused into the kernel (Fuse.h) and compiled in lane mode
+// The exponential Euler or RK4 step is fused into the kernel (Fuse.h) and compiled in lane mode
 // (CodeGen.h): slot i of lane l lives at i * lanes + l. Steps are fixed, so lanes never
 // wait for one another, and every operation is elementwise, so a lane's result does not
 // depend on its neighbours: a point gives the same numbers in any lane, batch or thread.
@@ -24,7 +24,7 @@ struct LaneRun {
 };
 
 /// Runs `params.size()` (== kernels.lanes) parameter sets of `model` through its protocol,
-/// which must use exponential Euler with a fusable step. A lane that fails stops being
+/// whose step the kernels fuse (exponential Euler or RK4, fixed steps). A lane that fails stops being
 /// recorded; the others go on.
 LaneRun simulateLanes(const ir::Model &model, const std::vector<std::vector<double>> &params,
                       const LaneKernels &kernels);
