@@ -287,6 +287,23 @@ private:
     }
   }
 
+  // Whether an adaptive step's error estimate can drive the step control; otherwise records
+  // why the run stops (a state gone bad, an infinite estimate, or too many steps).
+  static constexpr long maxSteps = 100000000;
+  bool stepUsable(double err, const std::vector<double> &ynew, double t, double step) {
+    if (!std::isfinite(err)) {
+      healthy(ynew, t + step);
+      if (!failure_.failed)
+        fail(t, 0, "the error estimate is not finite");
+      return false;
+    }
+    if (++stats_.steps > maxSteps) {
+      fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
+      return false;
+    }
+    return true;
+  }
+
   enum class Verdict { Accepted, Rejected, Stop };
 
   // The step control shared by the adaptive methods. `ynew` is the solution at t + step and
@@ -368,7 +385,6 @@ private:
     applyClamps(t);
     record(t);
     ++recordIndex;
-    const long maxSteps = 100000000;
     while (recordIndex <= recordCount) {
       double target = std::min(recordIndex * proto.every, proto.duration);
       bool hitsTarget = t + h >= target;
@@ -412,16 +428,8 @@ private:
         err += (e / scale) * (e / scale);
       }
       err = std::sqrt(err / static_cast<double>(n));
-      if (!std::isfinite(err)) {
-        healthy(ynew, t + step);
-        if (!failure_.failed)
-          fail(t, 0, "the error estimate is not finite");
+      if (!stepUsable(err, ynew, t, step))
         return;
-      }
-      if (++stats_.steps > maxSteps) {
-        fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
-        return;
-      }
       evaluate(ynew.data(), t + step, scratch.data());
       if (acceptOrReject(err, 2, step, target, hitsTarget, t, h, recordIndex, ynew, scratch) == Verdict::Stop)
         return;
@@ -451,7 +459,6 @@ private:
     record(t);
     ++recordIndex;
     derivative(y_.data(), out_.data(), k1.data());
-    const long maxSteps = 100000000;
     while (recordIndex <= recordCount) {
       double target = std::min(recordIndex * proto.every, proto.duration);
       bool hitsTarget = t + h >= target;
@@ -482,16 +489,8 @@ private:
         err += (e / scale) * (e / scale);
       }
       err = std::sqrt(err / static_cast<double>(n));
-      if (!std::isfinite(err)) {
-        healthy(ynew, t + step);
-        if (!failure_.failed)
-          fail(t, 0, "the error estimate is not finite");
+      if (!stepUsable(err, ynew, t, step))
         return;
-      }
-      if (++stats_.steps > maxSteps) {
-        fail(t, 0, "needed more than 1e8 steps; the tolerance may be too tight for this model");
-        return;
-      }
       Verdict verdict = acceptOrReject(err, 5, step, target, hitsTarget, t, h, recordIndex, ynew, scratch);
       if (verdict == Verdict::Stop)
         return;
