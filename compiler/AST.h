@@ -1,4 +1,4 @@
-// AST.h - the syntax tree of a brine spec, built by parse/ and annotated by later stages.
+// AST.h - the syntax tree of a saltpan spec, built by parse/ and annotated by later stages.
 //
 // Plain structs with public fields; children are owned through unique_ptr. Fields that a
 // later stage fills in say which stage sets them.
@@ -10,7 +10,7 @@
 #include <string>
 #include <vector>
 
-namespace brine::ast {
+namespace saltpan::ast {
 
 struct Decl;
 struct IonDecl;
@@ -77,7 +77,7 @@ struct ConcentrationExpr : Expr {
   static bool classof(const Expr *e) { return e->kind == ExprKind::Concentration; }
 };
 
-/// Math functions the compiler provides; everything else lives in stdlib/ in brine.
+/// Math functions the compiler provides; everything else lives in stdlib/ in saltpan.
 enum class MathFn { None, Exp, Expm1, Log, Log10, Sqrt, Pow, Abs, Min, Max, Tanh, Reversal };
 
 struct CallExpr : Expr {
@@ -237,7 +237,7 @@ struct Geometry {
 };
 
 struct MembraneEntry {
-  std::string mechanism;
+  std::string name; // the channel or pump placed here
   SourceRange nameRange;
   SourceRange range;
   ExprPtr density;
@@ -446,7 +446,7 @@ template <typename T, typename U> const T *dyn_cast(const U *p) {
   return isa<T>(p) ? static_cast<const T *>(p) : nullptr;
 }
 
-/// Stable, diff-friendly dump of a module (brine check --emit ast).
+/// Stable, diff-friendly dump of a module (saltpan check --emit ast).
 std::string dump(const Module &m);
 
-} // namespace brine::ast
+} // namespace saltpan::ast

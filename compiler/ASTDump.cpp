@@ -1,10 +1,10 @@
-// ASTDump.cpp - the stable text dump behind `brine check --emit ast`, and node spellings.
+// ASTDump.cpp - the stable text dump behind `saltpan check --emit ast`, and node spellings.
 #include "AST.h"
 
 #include <cstdio>
 #include <sstream>
 
-namespace brine::ast {
+namespace saltpan::ast {
 
 const char *spelling(BinaryOp op) {
   switch (op) {
@@ -183,7 +183,7 @@ public:
         solution(2, c.inside);
       }
       for (auto &m : c.membrane) {
-        line(1, "membrane " + m.mechanism);
+        line(1, "membrane " + m.name);
         expr(2, "density", m.density.get());
         expr(2, "reversal", m.reversal.get());
       }
@@ -289,4 +289,4 @@ std::string dump(const Module &m) {
   return d.out.str();
 }
 
-} // namespace brine::ast
+} // namespace saltpan::ast

@@ -9,7 +9,7 @@
 #include <cmath>
 #include <set>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -259,7 +259,7 @@ private:
     p.entry = &m;
     p.channel = dyn_cast<ChannelDecl>(m.target);
     p.pump = dyn_cast<PumpDecl>(m.target);
-    std::string what = "the density of '" + m.mechanism + "' in '" + v.decl->name + "'";
+    std::string what = "the density of '" + m.name + "' in '" + v.decl->name + "'";
     if (m.density) {
       p.densityKind = densityKind(*m.density);
       p.density = value(*m.density, what);
@@ -271,7 +271,7 @@ private:
     if (m.reversal) {
       p.reversalKind = ReversalKind::Written;
       p.writtenReversal = m.reversal.get();
-      p.reversal = value(*m.reversal, "the reversal potential of '" + m.mechanism + "'");
+      p.reversal = value(*m.reversal, "the reversal potential of '" + m.name + "'");
     } else if (ch.reversal) {
       p.reversalKind = ReversalKind::Written;
       p.writtenReversal = ch.reversal.get();
@@ -331,4 +331,4 @@ bool analyze(const Program &program, const SymbolTable &symbols, Evaluator &eval
   return diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -2,7 +2,7 @@
 //
 // Temperature, solutions, geometry, capacitance, densities, reversal potentials (Nernst,
 // GHK or as written) and each compartment's GHK resting potential. CheckCharge,
-// CheckPhysics and `brine show` read the result; none of them recompute it.
+// CheckPhysics and `saltpan show` read the result; none of them recompute it.
 #pragma once
 #include "AST.h"
 #include "Resolve.h"
@@ -11,7 +11,7 @@
 #include <optional>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
 
@@ -85,4 +85,4 @@ bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator 
 
 /// Valence of an ion as an integer, or nullopt if it is not a non-zero whole number.
 std::optional<int> integerValence(const ast::IonDecl &ion);
-} // namespace brine
+} // namespace saltpan

@@ -1,4 +1,4 @@
-// BuildCommand.cpp - `brine build`: a checked spec as a standalone executable or a shared
+// BuildCommand.cpp - `saltpan build`: a checked spec as a standalone executable or a shared
 // library: every protocol lowered, its kernels emitted as one object (EmitObject.h) and linked
 // with `c++` against the runtime archives, which hold no LLVM and no ANTLR.
 #include "Commands.h"
@@ -26,45 +26,45 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 // The build tree's archives and header (configure time); see compiler/CMakeLists.txt.
-#ifndef BRINE_LINK_DRIVER
-#define BRINE_LINK_DRIVER "c++"
+#ifndef SALTPAN_LINK_DRIVER
+#define SALTPAN_LINK_DRIVER "c++"
 #endif
-#ifndef BRINE_LINK_FLAGS
-#define BRINE_LINK_FLAGS ""
+#ifndef SALTPAN_LINK_FLAGS
+#define SALTPAN_LINK_FLAGS ""
 #endif
 
 extern char **environ;
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace fs = std::filesystem;
 
 namespace {
 
-const char *buildHelp = R"(usage: brine build [options] FILE
+const char *buildHelp = R"(usage: saltpan build [options] FILE
 
 Checks FILE, lowers every protocol, compiles the model to native code for this machine's CPU
-(the code `brine run` would run) and links it with `c++` into a program that needs neither
-LLVM nor brine when it runs.
+(the code `saltpan run` would run) and links it with `c++` into a program that needs neither
+LLVM nor saltpan when it runs.
 
-Without --shared the program runs the model's protocols and takes the options of `brine run`
+Without --shared the program runs the model's protocols and takes the options of `saltpan run`
 (--protocol, --set, --duration, --every, -o); its CSV and JSON outputs are byte for byte those
-of `brine run`. `PROGRAM --help` lists its protocols and parameters. `PROGRAM sweep` runs the
-spec's sweeps, planned here, and writes what `brine sweep --engine scalar` writes; sweeps that
+of `saltpan run`. `PROGRAM --help` lists its protocols and parameters. `PROGRAM sweep` runs the
+spec's sweeps, planned here, and writes what `saltpan sweep --engine scalar` writes; sweeps that
 measure rest or input_resistance are left out (with a note), as the program has no
 steady-state search.
 
-With --shared it is a shared library with the C interface in brine_model.h, which is copied
+With --shared it is a shared library with the C interface in saltpan_model.h, which is copied
 next to it (see docs/embedding.md).
 
 The result runs only on CPUs with the features of the one that built it.
 
 options:
-  -o FILE        the output (default: FILE's name without .brine, or libNAME.so with --shared);
+  -o FILE        the output (default: FILE's name without .saltpan, or libNAME.so with --shared);
                  written atomically
   --shared       build a shared library instead of an executable
   --version      print the version
@@ -74,32 +74,32 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault 
              the runtime archives or the C++ compiler driver cannot be found, or linking fails),
              73 the output could not be written
 
-environment: BRINE_CXX  the C++ compiler driver that links (default: c++ on PATH; in a
-                        sanitizer build of brine, the compiler that built it)
+environment: SALTPAN_CXX  the C++ compiler driver that links (default: c++ on PATH; in a
+                        sanitizer build of saltpan, the compiler that built it)
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine build: error: %s\n\n%s", message.c_str(), buildHelp);
+  std::fprintf(stderr, "saltpan build: error: %s\n\n%s", message.c_str(), buildHelp);
   return Usage;
 }
 
 int fault(const std::string &message) {
-  std::fprintf(stderr, "brine build: error: %s\n", message.c_str());
+  std::fprintf(stderr, "saltpan build: error: %s\n", message.c_str());
   return Internal;
 }
 
-// Where a moved or installed brine keeps its runtime: PREFIX/bin/brine, PREFIX/lib/brine/.
-fs::path besideBrine(const std::string &file) {
+// Where a moved or installed saltpan keeps its runtime: PREFIX/bin/saltpan, PREFIX/lib/saltpan/.
+fs::path besideSaltpan(const std::string &file) {
   std::error_code ec;
   fs::path self = fs::read_symlink("/proc/self/exe", ec);
-  return ec ? fs::path() : self.parent_path() / ".." / "lib" / "brine" / file;
+  return ec ? fs::path() : self.parent_path() / ".." / "lib" / "saltpan" / file;
 }
 
-// The installed copy first, so a moved brine uses its own runtime; then the build tree's.
+// The installed copy first, so a moved saltpan uses its own runtime; then the build tree's.
 std::optional<std::string> findRuntimeFile(const std::string &file, const char *builtAt, std::string &searched) {
-  for (fs::path candidate : {besideBrine(file), fs::path(builtAt)}) {
+  for (fs::path candidate : {besideSaltpan(file), fs::path(builtAt)}) {
     if (candidate.empty())
       continue;
     std::error_code ec;
@@ -124,7 +124,7 @@ std::optional<std::string> findOnPath(const std::string &program) {
 }
 
 // Runs argv[0] with no shell in between (paths with spaces need no quoting); the child's
-// output goes to brine's standard error.
+// output goes to saltpan's standard error.
 bool runProgram(const std::vector<std::string> &argv, std::string &error) {
   std::vector<char *> raw;
   for (const std::string &a : argv)
@@ -169,7 +169,7 @@ std::optional<std::string> readBinary(const std::string &path) {
 struct ScratchDirectory {
   fs::path path;
   ScratchDirectory() {
-    std::string pattern = (fs::temp_directory_path() / "brine-build-XXXXXX").string();
+    std::string pattern = (fs::temp_directory_path() / "saltpan-build-XXXXXX").string();
     if (mkdtemp(pattern.data()))
       path = pattern;
   }
@@ -214,7 +214,7 @@ void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kerne
     kernels.add(k);
 }
 
-// The root sweeps whose measures all come from protocol runs, planned as `brine sweep` plans
+// The root sweeps whose measures all come from protocol runs, planned as `saltpan sweep` plans
 // them. A steady-state measure needs the compiler's search, which the runtime does not have.
 void bundleSweeps(Compilation &c, ModelBundle &bundle) {
   std::vector<const ast::ProtocolDecl *> decls = protocols(c.program);
@@ -225,8 +225,8 @@ void bundleSweeps(Compilation &c, ModelBundle &bundle) {
         steady = m.get();
     if (steady) {
       std::fprintf(stderr,
-                   "brine build: note: sweep '%s' is not built in: '%s' needs a steady-state search, which only "
-                   "`brine sweep` does\n",
+                   "saltpan build: note: sweep '%s' is not built in: '%s' needs a steady-state search, which only "
+                   "`saltpan sweep` does\n",
                    s->name.c_str(), steady->measure.c_str());
       continue;
     }
@@ -269,7 +269,7 @@ int buildCommand(const std::vector<std::string> &args) {
       std::fputs(buildHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (a == "--shared") {
       o.shared = true;
@@ -297,7 +297,7 @@ int buildCommand(const std::vector<std::string> &args) {
   if (c.diags.errorCount() > 0 || !c.checked)
     return SpecErrors;
   ModelBundle bundle;
-  bundle.toolVersion = BRINE_VERSION;
+  bundle.toolVersion = SALTPAN_VERSION;
   bundle.modelHash = modelHash(c.program);
   bundle.source = fs::path(o.file).filename().string();
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
@@ -307,7 +307,7 @@ int buildCommand(const std::vector<std::string> &args) {
     bundle.protocols.push_back(lowered->second);
   }
   if (bundle.protocols.empty()) {
-    std::fprintf(stderr, "brine build: error: '%s' has no protocol to build\n", o.file.c_str());
+    std::fprintf(stderr, "saltpan build: error: '%s' has no protocol to build\n", o.file.c_str());
     return Usage;
   }
   bundleSweeps(c, bundle);
@@ -317,14 +317,14 @@ int buildCommand(const std::vector<std::string> &args) {
     const char *file, *builtAt;
   };
   std::vector<Needed> needed = {
-      {o.shared ? "libbrine_capi.a" : "libbrine_standalone_main.a",
-       o.shared ? BRINE_CAPI_ARCHIVE : BRINE_STANDALONE_MAIN_ARCHIVE},
-      {"libbrine_standalone.a", BRINE_STANDALONE_ARCHIVE},
-      {"libbrine_runtime.a", BRINE_RUNTIME_ARCHIVE},
-      {"libbrine_support.a", BRINE_SUPPORT_ARCHIVE},
+      {o.shared ? "libsaltpan_capi.a" : "libsaltpan_standalone_main.a",
+       o.shared ? SALTPAN_CAPI_ARCHIVE : SALTPAN_STANDALONE_MAIN_ARCHIVE},
+      {"libsaltpan_standalone.a", SALTPAN_STANDALONE_ARCHIVE},
+      {"libsaltpan_runtime.a", SALTPAN_RUNTIME_ARCHIVE},
+      {"libsaltpan_support.a", SALTPAN_SUPPORT_ARCHIVE},
   };
   if (o.shared)
-    needed.push_back({"brine_model.h", BRINE_MODEL_HEADER});
+    needed.push_back({"saltpan_model.h", SALTPAN_MODEL_HEADER});
   std::vector<std::string> found;
   for (const Needed &n : needed) {
     std::string searched;
@@ -333,12 +333,12 @@ int buildCommand(const std::vector<std::string> &args) {
       return fault(std::string("cannot find the runtime file '") + n.file + "'; looked in:" + searched);
     found.push_back(*path);
   }
-  const char *chosen = std::getenv("BRINE_CXX");
-  std::string driverName = chosen && *chosen ? chosen : BRINE_LINK_DRIVER;
+  const char *chosen = std::getenv("SALTPAN_CXX");
+  std::string driverName = chosen && *chosen ? chosen : SALTPAN_LINK_DRIVER;
   auto driver = findOnPath(driverName);
   if (!driver)
     return fault("cannot find the C++ compiler driver '" + driverName +
-                 "' on PATH; it links the model (on Debian: apt-get install g++; BRINE_CXX names another)");
+                 "' on PATH; it links the model (on Debian: apt-get install g++; SALTPAN_CXX names another)");
 
   ScratchDirectory scratch;
   if (scratch.path.empty())
@@ -357,7 +357,7 @@ int buildCommand(const std::vector<std::string> &args) {
   if (o.shared) {
     // Only the C interface is exported; the runtime's C++ symbols stay inside the library.
     std::string exports = (scratch.path / "exports.map").string();
-    if (!writeFileAtomically(exports, "{\n  global: brine_model_*;\n  local: *;\n};\n", error))
+    if (!writeFileAtomically(exports, "{\n  global: saltpan_model_*;\n  local: *;\n};\n", error))
       return fault(error);
     // -Bsymbolic: the library's own calls stay inside it even when another model library
     // that exports the same names is loaded first.
@@ -370,7 +370,7 @@ int buildCommand(const std::vector<std::string> &args) {
   else
     link.push_back(found[0]);
   link.insert(link.end(), {found[1], found[2], found[3], "-lm", "-lpthread"});
-  std::stringstream extra(BRINE_LINK_FLAGS); // the sanitizers the archives were built with
+  std::stringstream extra(SALTPAN_LINK_FLAGS); // the sanitizers the archives were built with
   for (std::string flag; extra >> flag;)
     link.push_back(flag);
   if (!runProgram(link, error))
@@ -380,7 +380,7 @@ int buildCommand(const std::vector<std::string> &args) {
   if (!bytes)
     return fault("cannot read the linked file '" + linked + "'");
   if (!writeFileAtomically(o.output, *bytes, error)) {
-    std::fprintf(stderr, "brine build: error: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan build: error: %s\n", error.c_str());
     return CannotWrite;
   }
   std::error_code ec;
@@ -390,12 +390,12 @@ int buildCommand(const std::vector<std::string> &args) {
                   ec);
   std::string header;
   if (o.shared) {
-    header = (fs::path(o.output).parent_path() / "brine_model.h").string();
+    header = (fs::path(o.output).parent_path() / "saltpan_model.h").string();
     auto text = readBinary(found[4]);
     if (!text)
       return fault("cannot read '" + found[4] + "'");
     if (!writeFileAtomically(header, *text, error)) {
-      std::fprintf(stderr, "brine build: error: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan build: error: %s\n", error.c_str());
       return CannotWrite;
     }
   }
@@ -407,4 +407,4 @@ int buildCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -7,7 +7,7 @@
 #include <cmath>
 #include <cstdio>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -97,7 +97,8 @@ private:
     }
     if (!p.activity) {
       auto &d = diags_.error(p.nameRange, what + " has no activity law");
-      DiagnosticEngine::note(d, {}, "give the fraction of the maximal rate, e.g. 'activity = hill([Na]in, 10 mM, 1.5)'");
+      DiagnosticEngine::note(d, {},
+                             "give the fraction of the maximal rate, e.g. 'activity = hill([Na]in, 10 mM, 1.5)'");
     }
     bool in = false, out = false;
     for (size_t i = 0; i < p.cycle.size(); ++i) {
@@ -153,7 +154,7 @@ private:
     if (inside && outside)
       return;
     std::string side = !inside && !outside ? "on either side" : !inside ? "inside" : "outside";
-    auto &d = diags_.error(m.nameRange, "'" + m.mechanism + "' " + verb + " '" + ion->name + "', but compartment '" +
+    auto &d = diags_.error(m.nameRange, "'" + m.name + "' " + verb + " '" + ion->name + "', but compartment '" +
                                             c.decl->name + "' has no concentration of '" + ion->name + "' " + side);
     if (!inside)
       DiagnosticEngine::note(d, c.decl->hasInside ? c.decl->inside.range : c.decl->nameRange,
@@ -204,4 +205,4 @@ bool checkCharge(const Program &program, const Model &model, DiagnosticEngine &d
   return diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

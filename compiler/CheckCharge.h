@@ -5,10 +5,10 @@
 #pragma once
 #include "AST.h"
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 struct Model;
 
 /// Returns false if it reported an error (warnings do not count).
 bool checkCharge(const ast::Program &program, const Model &model, DiagnosticEngine &diags);
-} // namespace brine
+} // namespace saltpan

@@ -9,7 +9,7 @@
 #include <cmath>
 #include <cstdio>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -96,8 +96,8 @@ private:
     std::string of = " of '" + d.name + "'";
     if (d.hasInside)
       concentrations(d.inside, c.inside, "the inside of '" + d.name + "'");
-    positive(d.geometry.diameter.get(), d.geometry.diameter ? evaluator_.evaluate(*d.geometry.diameter, {}) : std::nullopt,
-             "the diameter" + of);
+    positive(d.geometry.diameter.get(),
+             d.geometry.diameter ? evaluator_.evaluate(*d.geometry.diameter, {}) : std::nullopt, "the diameter" + of);
     positive(d.geometry.length.get(), d.geometry.length ? evaluator_.evaluate(*d.geometry.length, {}) : std::nullopt,
              "the length" + of);
     positive(d.geometry.area.get(), c.area, "the membrane area" + of);
@@ -109,8 +109,9 @@ private:
       if (cm <= 0)
         diags_.error(d.capacitance->range, "the capacitance" + of + " must be positive");
       else if (cm < minCapacitance || cm > maxCapacitance) {
-        auto &diag = diags_.warning(d.capacitance->range, "the capacitance" + of + " is " + fmt("%.4g uF/cm2", cm * 100) +
-                                                              ", outside the usual 0.5 to 2 uF/cm2");
+        auto &diag =
+            diags_.warning(d.capacitance->range, "the capacitance" + of + " is " + fmt("%.4g uF/cm2", cm * 100) +
+                                                     ", outside the usual 0.5 to 2 uF/cm2");
         DiagnosticEngine::note(diag, {}, "lipid bilayers measure close to 1 uF/cm2; check the unit");
       }
     }
@@ -127,9 +128,9 @@ private:
     const MembraneEntry &m = *p.entry;
     if (p.density && m.density) {
       if (*p.density < 0)
-        diags_.error(m.density->range, "the density of '" + m.mechanism + "' cannot be negative");
+        diags_.error(m.density->range, "the density of '" + m.name + "' cannot be negative");
       else if (*p.density == 0)
-        diags_.warning(m.density->range, "'" + m.mechanism + "' has zero density and adds nothing to the membrane");
+        diags_.warning(m.density->range, "'" + m.name + "' has zero density and adds nothing to the membrane");
     }
     if (p.channel && p.reversalKind == ReversalKind::Written && p.reversal && p.concentrationReversal &&
         std::fabs(*p.reversal - *p.concentrationReversal) > reversalToleranceVolts) {
@@ -300,4 +301,4 @@ bool checkPhysics(const Program &program, const Model &model, Evaluator &evaluat
   return diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

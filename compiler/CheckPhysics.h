@@ -7,11 +7,11 @@
 #pragma once
 #include "AST.h"
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
 struct Model;
 
 /// Returns false if it reported an error (warnings do not count).
 bool checkPhysics(const ast::Program &program, const Model &model, Evaluator &evaluator, DiagnosticEngine &diags);
-} // namespace brine
+} // namespace saltpan

@@ -10,7 +10,7 @@
 #include <cmath>
 #include <set>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -153,11 +153,11 @@ private:
     if (c.hasInside)
       solution(c.inside);
     for (MembraneEntry &m : c.membrane) {
-      std::string what = "the density of '" + m.mechanism + "'";
+      std::string what = "the density of '" + m.name + "'";
       if (!m.density)
         continue;
       ExprType t = infer(*m.density);
-      expect(m.reversal.get(), dims::voltage(), "the reversal potential of '" + m.mechanism + "'");
+      expect(m.reversal.get(), dims::voltage(), "the reversal potential of '" + m.name + "'");
       if (!t.known || !m.target)
         continue;
       if (m.target->kind == DeclKind::Channel) {
@@ -202,8 +202,8 @@ private:
       if (s.conductance) {
         ExprType t = infer(*s.conductance);
         if (t.known && t.dim != dims::conductanceDensity() && t.dim != dims::conductanceDensity() * dims::area())
-          mismatch(s.conductance->range, "a synaptic conductance", "a conductance (nS) or a conductance density (mS/cm2)",
-                   t.dim);
+          mismatch(s.conductance->range, "a synaptic conductance",
+                   "a conductance (nS) or a conductance density (mS/cm2)", t.dim);
       }
       expect(s.reversal.get(), dims::voltage(), "a synaptic reversal potential");
       expect(s.rise.get(), dims::time(), "a synaptic rise time");
@@ -490,4 +490,4 @@ bool checkUnits(Program &program, Evaluator &evaluator, DiagnosticEngine &diags)
   return diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

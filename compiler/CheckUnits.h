@@ -6,10 +6,10 @@
 #pragma once
 #include "AST.h"
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
 
 /// Sets Expr::type on every expression. Returns false if it reported an error.
 bool checkUnits(ast::Program &program, Evaluator &evaluator, DiagnosticEngine &diags);
-} // namespace brine
+} // namespace saltpan

@@ -11,7 +11,7 @@
 
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 namespace {
 
 class KernelEmitter {
@@ -198,4 +198,4 @@ std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContex
   return module;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -14,7 +14,7 @@ class TargetMachine;
 class Triple;
 } // namespace llvm
 
-namespace brine {
+namespace saltpan {
 
 /// Emits `void functionName(const double *y, const double *p, double t, double *out)`, which
 /// writes out[i] = value of kernel.outputs[i]. y, p and out must not overlap (they are noalias).
@@ -31,8 +31,8 @@ std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContex
                                       const std::string &functionName, int lanes = 1);
 
 /// The new pass manager's O3 for `machine`, with scalar libm only (libmvec's vector functions
-/// differ from scalar ones in the last bits). The JIT and `brine build` both use it, so a
-/// built model computes bit for bit what `brine run` computes. Defined in JIT.cpp.
+/// differ from scalar ones in the last bits). The JIT and `saltpan build` both use it, so a
+/// built model computes bit for bit what `saltpan run` computes. Defined in JIT.cpp.
 void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple);
 
-} // namespace brine
+} // namespace saltpan

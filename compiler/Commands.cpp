@@ -1,4 +1,4 @@
-// Commands.cpp - `brine check` and `brine show`: options, output and exit codes.
+// Commands.cpp - `saltpan check` and `saltpan show`: options, output and exit codes.
 #include "Commands.h"
 
 #include "Fuse.h"
@@ -7,7 +7,7 @@
 #include "Show.h"
 #include "TraceOutput.h"
 #include "parse/Parse.h"
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
 
@@ -17,15 +17,15 @@
 #include <memory>
 #include <unistd.h>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *checkHelp = R"(usage: brine check [options] FILE...
+const char *checkHelp = R"(usage: saltpan check [options] FILE...
 
 Checks each spec and every module it uses: syntax, names, units of every expression,
 valences and charge (electroneutrality, pump stoichiometry), and physical plausibility
@@ -45,11 +45,11 @@ exit status: 0 no errors, 64 bad usage, 65 errors (or warnings with --warnings-a
              70 internal fault
 )";
 
-const char *showHelp = R"(usage: brine show [options] FILE
+const char *showHelp = R"(usage: saltpan show [options] FILE
 
 Prints the resolved model: temperature; for every compartment and ion the inside and
 outside concentrations, the valence and the Nernst potential at the model temperature;
-each membrane mechanism with its density and reversal potential (Nernst, GHK or as
+each membrane entry with its density and reversal potential (Nernst, GHK or as
 written); the GHK resting potential of each compartment from its ungated permeability
 channels; each pump's net charge moved outward per cycle. Conventions: V is inside minus
 outside, membrane current is positive outward.
@@ -76,7 +76,7 @@ struct Options {
 };
 
 int usageError(const std::string &message, const char *help) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), help);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), help);
   return Usage;
 }
 
@@ -115,7 +115,7 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
     return Ok;
   }
   if (o.version) {
-    std::printf("brine %s\n", BRINE_VERSION);
+    std::printf("saltpan %s\n", SALTPAN_VERSION);
     return Ok;
   }
   if (o.files.empty())
@@ -153,7 +153,7 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
 
 // The implementation lives in the runtime, which the standalone executables link too.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
-  return brine::writeFileAtomically(path, text, error);
+  return saltpan::writeFileAtomically(path, text, error);
 }
 
 int checkCommand(const std::vector<std::string> &args) {
@@ -167,7 +167,7 @@ int checkCommand(const std::vector<std::string> &args) {
     std::string error;
     const SourceFile *file = c.sources.load(o.files[0], error);
     if (!file) {
-      std::fprintf(stderr, "brine: cannot read '%s': %s\n", o.files[0].c_str(), error.c_str());
+      std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", o.files[0].c_str(), error.c_str());
       return SpecErrors;
     }
     if (o.emit == "tokens") {
@@ -191,20 +191,20 @@ int checkCommand(const std::vector<std::string> &args) {
         std::fputs(ir::dump(model).c_str(), stdout);
         return Ok;
       }
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
       std::string jitError;
       auto jit = JIT::create(jitError);
       std::optional<ir::Kernel> fused;
       if (model.protocol.method == ir::Method::ExponentialEuler)
         fused = fuseExponentialEuler(model, model.protocol.step);
       if (!jit || !jit->compile(fused ? *fused : model.kernel, jitError)) {
-        std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", jitError.c_str());
+        std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", jitError.c_str());
         return Internal;
       }
       std::fputs(jit->lastIR().c_str(), stdout);
       return Ok;
 #else
-      std::fprintf(stderr, "brine: this build has no JIT\n");
+      std::fprintf(stderr, "saltpan: this build has no JIT\n");
       return Internal;
 #endif
     }
@@ -258,10 +258,10 @@ int showCommand(const std::vector<std::string> &args) {
   }
   std::string error;
   if (!writeFileAtomically(o.output, text, error)) {
-    std::fprintf(stderr, "brine: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan: %s\n", error.c_str());
     return CannotWrite;
   }
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -1,9 +1,9 @@
-// Commands.h - the subcommands of the brine executable.
+// Commands.h - the subcommands of the saltpan executable.
 #pragma once
 #include <string>
 #include <vector>
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 /// Exit codes (sysexits): documented in every --help.
 enum ExitCode { Ok = 0, ExpectationsFailed = 1, Usage = 64, SpecErrors = 65, Internal = 70, CannotWrite = 73 };
@@ -27,4 +27,4 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
 
 /// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
-} // namespace brine::cli
+} // namespace saltpan::cli

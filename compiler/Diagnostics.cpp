@@ -3,7 +3,7 @@
 
 #include <nlohmann/json.hpp>
 
-namespace brine {
+namespace saltpan {
 
 Diagnostic &DiagnosticEngine::report(Severity s, SourceRange range, std::string message) {
   diagnostics_.push_back(Diagnostic{s, range, std::move(message), {}});
@@ -68,7 +68,7 @@ void renderOne(std::string &out, Severity s, const SourceRange &range, const std
     out += bold + file.path() + ":" + std::to_string(range.begin.line) + ":" +
            std::to_string(range.begin.column) + ": " + reset;
   } else if (s != Severity::Note) {
-    out += bold + std::string("brine: ") + reset;
+    out += bold + std::string("saltpan: ") + reset;
   }
   out += tint + std::string(severityName(s)) + ": " + reset + bold + message + reset + "\n";
   if (!range.valid())
@@ -132,4 +132,4 @@ std::string renderJson(const std::vector<Diagnostic> &all) {
   return doc.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
-} // namespace brine
+} // namespace saltpan

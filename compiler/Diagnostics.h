@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 enum class Severity { Error, Warning, Note };
 
@@ -52,4 +52,4 @@ std::string renderText(const Diagnostic &d, bool colour = false);
 std::string renderJson(const std::vector<Diagnostic> &all);
 const char *severityName(Severity s);
 
-} // namespace brine
+} // namespace saltpan

@@ -1,7 +1,7 @@
-// EmitObject.cpp - kernels and the model bundle as one relocatable object file (`brine build`).
+// EmitObject.cpp - kernels and the model bundle as one relocatable object file (`saltpan build`).
 //
 // Why an object file with data in it, rather than generated C: the runtime archives and this
-// one object are all the link needs, so `brine build` runs no C++ compiler of its own and the
+// one object are all the link needs, so `saltpan build` runs no C++ compiler of its own and the
 // kernels are the very machine code the JIT would run (same passes, same target machine).
 #include "EmitObject.h"
 
@@ -25,7 +25,7 @@
 
 #include <mutex>
 
-namespace brine {
+namespace saltpan {
 namespace {
 
 std::string describe(llvm::Error e) { return llvm::toString(std::move(e)); }
@@ -71,13 +71,13 @@ bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::
   if (!machine)
     return false;
   llvm::LLVMContext ctx;
-  auto module = std::make_unique<llvm::Module>("brine_model", ctx);
+  auto module = std::make_unique<llvm::Module>("saltpan_model", ctx);
   module->setTargetTriple(triple.str());
   module->setDataLayout(machine->createDataLayout());
 
   std::vector<std::pair<uint64_t, std::string>> table;
   for (size_t i = 0; i < kernels.size(); ++i) {
-    std::string name = "brine_model_kernel_" + std::to_string(i);
+    std::string name = "saltpan_model_kernel_" + std::to_string(i);
     std::unique_ptr<llvm::Module> kernelModule = codegen(*kernels[i], ctx, name);
     if (!kernelModule) {
       error = "malformed kernel: an operand or output names no earlier node";
@@ -140,4 +140,4 @@ bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::
   return true;
 }
 
-} // namespace brine
+} // namespace saltpan

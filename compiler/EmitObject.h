@@ -1,4 +1,4 @@
-// EmitObject.h - `brine build`'s code generation: kernels and the model bundle as an object file.
+// EmitObject.h - `saltpan build`'s code generation: kernels and the model bundle as an object file.
 //
 // No LLVM type here; EmitObject.cpp is the one build-time LLVM file besides CodeGen and JIT.
 #pragma once
@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 /// Writes a relocatable object for the host CPU (PIC, small code model) to `path`: each kernel
 /// compiled exactly as the JIT compiles it (codegen, O3, the host's CPU and features), the
@@ -16,4 +16,4 @@ namespace brine {
 bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::string &bundleText,
                      const std::string &path, std::string &error);
 
-} // namespace brine
+} // namespace saltpan

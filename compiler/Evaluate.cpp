@@ -6,7 +6,7 @@
 #include <cmath>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -80,7 +80,8 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
       v = env.concentration(c.target, c.side);
     if (!v)
       failure_.missingIon = c.target;
-    return v ? *v : fail("needs the concentration of '" + c.ion + "' " + (c.side == Side::Inside ? "inside" : "outside"));
+    return v ? *v
+             : fail("needs the concentration of '" + c.ion + "' " + (c.side == Side::Inside ? "inside" : "outside"));
   }
   case ExprKind::Call: {
     auto &c = static_cast<const CallExpr &>(e);
@@ -162,4 +163,4 @@ double Evaluator::eval(const Expr &e, const EvalEnv &env, const Frame *frame) {
   return fail("unknown expression");
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -10,7 +10,7 @@
 #include <optional>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// What the surroundings of an expression provide. Missing pieces make evaluation fail.
 struct EvalEnv {
@@ -42,4 +42,4 @@ private:
   EvalFailure failure_;
 };
 
-} // namespace brine
+} // namespace saltpan

@@ -17,7 +17,7 @@
 #include <map>
 #include <sstream>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -72,7 +72,12 @@ struct MeasureSpec {
 
 const std::vector<MeasureSpec> &measureSpecs() {
   static const std::vector<MeasureSpec> specs = {
-      {"reversal", false, {Arg::Ion, Arg::Compartment}, 2, "voltage", "the Nernst potential of an ion in a compartment"},
+      {"reversal",
+       false,
+       {Arg::Ion, Arg::Compartment},
+       2,
+       "voltage",
+       "the Nernst potential of an ion in a compartment"},
       {"ghk_rest", false, {Arg::Compartment}, 1, "voltage", "the GHK resting potential of a compartment"},
       {"area", false, {Arg::Compartment}, 1, "area", "the membrane area of a compartment"},
       {"net_charge", false, {Arg::Pump}, 1, "none", "the elementary charges a pump moves out per cycle"},
@@ -87,9 +92,17 @@ const std::vector<MeasureSpec> &measureSpecs() {
       {"mean", true, {Arg::Trace}, 1, "trace", "the time-weighted mean"},
       {"final", true, {Arg::Trace}, 1, "trace", "the value at the end of the run"},
       {"value", true, {Arg::Trace, Arg::Time}, 2, "trace", "the value at a time (linear interpolation)"},
-      {"snapshot_max_error", true, {Arg::Trace, Arg::File}, 2, "trace",
-       "the largest difference from a snapshot's column (brine snapshot)"},
-      {"snapshot_rms_error", true, {Arg::Trace, Arg::File}, 2, "trace",
+      {"snapshot_max_error",
+       true,
+       {Arg::Trace, Arg::File},
+       2,
+       "trace",
+       "the largest difference from a snapshot's column (saltpan snapshot)"},
+      {"snapshot_rms_error",
+       true,
+       {Arg::Trace, Arg::File},
+       2,
+       "trace",
        "the root-mean-square difference from a snapshot's column"},
   };
   return specs;
@@ -102,7 +115,7 @@ const MeasureSpec *findMeasure(const std::string &name) {
   return nullptr;
 }
 
-// A recordable's display unit back to its dimension.
+// A probe's display unit back to its dimension.
 Dimension unitDimension(const std::string &unit) {
   if (unit == "mV")
     return dims::voltage();
@@ -157,10 +170,10 @@ std::optional<Dimension> measureDimension(const Compilation &c, const ExpectDecl
   const ir::Model *m = e.target ? loweredFor(c, e.target) : nullptr;
   if (!m || e.args.empty())
     return std::nullopt;
-  int r = m->findRecordable(e.args[0].path);
+  int r = m->findProbe(e.args[0].path);
   if (r < 0)
     return std::nullopt;
-  return unitDimension(m->recordables[r].unit);
+  return unitDimension(m->probes[r].unit);
 }
 
 class Validator {
@@ -256,9 +269,9 @@ private:
       if (!needPath("a recorded quantity such as soma.V"))
         return false;
       const ir::Model *m = loweredFor(c_, e.target);
-      if (m && m->findRecordable(a.path) < 0) {
+      if (m && m->findProbe(a.path) < 0) {
         auto &d = diags_.error(a.range, "protocol '" + e.protocol + "' has nothing called '" + a.path + "' to measure");
-        DiagnosticEngine::note(d, {}, "`brine check --emit ir FILE` lists the recordable quantities");
+        DiagnosticEngine::note(d, {}, "`saltpan check --emit ir FILE` lists the probes (recorded quantities)");
         return false;
       }
       return true;
@@ -446,7 +459,7 @@ private:
     ir::Model model = *lowered;
     for (const ExpectDecl *e : expectations(c_.program))
       if (e->target == p && !e->args.empty() && !e->args[0].path.empty()) {
-        int index = model.findRecordable(e->args[0].path);
+        int index = model.findProbe(e->args[0].path);
         if (index >= 0 && std::find(model.protocol.record.begin(), model.protocol.record.end(), index) ==
                               model.protocol.record.end())
           model.protocol.record.push_back(index);
@@ -471,7 +484,7 @@ private:
     std::filesystem::path path = std::filesystem::path(e.range.begin.file->path()).parent_path() / file;
     std::ifstream in(path);
     if (!in) {
-      why = "cannot read the snapshot '" + path.string() + "' (make it with `brine snapshot`)";
+      why = "cannot read the snapshot '" + path.string() + "' (make it with `saltpan snapshot`)";
       return std::nullopt;
     }
     std::string line;
@@ -537,7 +550,7 @@ private:
         return std::nullopt;
       }
       const ir::Model *m = loweredFor(c_, e.target);
-      double scale = m->recordables[m->findRecordable(e.args[0].path)].scale;
+      double scale = m->probes[m->findProbe(e.args[0].path)].scale;
       return snapshotError(e, e.args[1].text, r.trace, column, scale, name == "snapshot_rms_error", why);
     }
     return traceMeasure(e, args, *loweredFor(c_, e.target), r.trace, why);
@@ -609,4 +622,4 @@ std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &
   return out;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
-// Expect.h - Stage 11: expectations. checkExpectations (run by every `brine check`)
+// Expect.h - Stage 11: expectations. checkExpectations (run by every `saltpan check`)
 // validates each expectation: a known measure, arguments of the right kind, expected values
-// in the measure's dimension. runExpectations (run by `brine test`) measures each one, running
+// in the measure's dimension. runExpectations (run by `saltpan test`) measures each one, running
 // protocols and steady-state searches as needed, and compares.
 #pragma once
 #include "AST.h"
@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 struct Compilation;
 
@@ -63,4 +63,4 @@ std::optional<double> restMeasure(const std::vector<rest::CompartmentRest> &anal
 
 /// Every expectation of the program, in declaration order.
 std::vector<const ast::ExpectDecl *> expectations(const ast::Program &program);
-} // namespace brine
+} // namespace saltpan

@@ -1,4 +1,4 @@
-// FmtCommand.cpp - `brine fmt`: rewrites specs in the canonical layout (parse/Format.h).
+// FmtCommand.cpp - `saltpan fmt`: rewrites specs in the canonical layout (parse/Format.h).
 #include "Commands.h"
 
 #include "Diagnostics.h"
@@ -8,15 +8,15 @@
 #include <cstdio>
 #include <unistd.h>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *fmtHelp = R"(usage: brine fmt [options] FILE...
+const char *fmtHelp = R"(usage: saltpan fmt [options] FILE...
 
 Rewrites each spec in place in the canonical layout (docs/language.md, "Canonical layout"):
 two-space indentation, one item per line, single spaces around operators, a blank line
@@ -36,7 +36,7 @@ exit status: 0 success (with --check: every file is canonical), 1 with --check: 
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), fmtHelp);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), fmtHelp);
   return Usage;
 }
 
@@ -52,7 +52,7 @@ int fmtCommand(const std::vector<std::string> &args) {
       return Ok;
     }
     if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     }
     if (a == "--check")
@@ -80,7 +80,7 @@ int fmtCommand(const std::vector<std::string> &args) {
     std::string error;
     const SourceFile *file = sources.load(path, error);
     if (!file) {
-      std::fprintf(stderr, "brine: cannot read '%s': %s\n", path.c_str(), error.c_str());
+      std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", path.c_str(), error.c_str());
       errors = true;
       continue;
     }
@@ -103,7 +103,7 @@ int fmtCommand(const std::vector<std::string> &args) {
       continue;
     }
     if (!writeFileAtomically(path, *text, error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       cannotWrite = true;
     }
   }
@@ -114,4 +114,4 @@ int fmtCommand(const std::vector<std::string> &args) {
   return check && changed ? ExpectationsFailed : Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -1,4 +1,4 @@
-// HashCommand.cpp - `brine hash`: one SHA-256 naming a model exactly, whatever its layout.
+// HashCommand.cpp - `saltpan hash`: one SHA-256 naming a model exactly, whatever its layout.
 //
 // Digests the tool version, then each module the spec loads (dependencies first, the root
 // last): its name and its bare canonical form (parse/Format.h), which has no comments and no
@@ -17,17 +17,17 @@
 #include <nlohmann/json.hpp>
 #include <unistd.h>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *hashHelp = R"(usage: brine hash [options] FILE
+const char *hashHelp = R"(usage: saltpan hash [options] FILE
 
-Prints a SHA-256 that identifies the model in FILE: it covers the brine version and, for
+Prints a SHA-256 that identifies the model in FILE: it covers the saltpan version and, for
 FILE and every module it uses (standard modules by name, other files by their path relative
 to FILE's directory), the canonical form without comments. Reformatting a spec or editing
 its comments leaves the hash unchanged; changing any number, unit or name changes it.
@@ -45,7 +45,7 @@ exit status: 0 success, 64 bad usage, 65 the spec or a module it uses has syntax
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), hashHelp);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), hashHelp);
   return Usage;
 }
 
@@ -61,7 +61,7 @@ int hashCommand(const std::vector<std::string> &args) {
       return Ok;
     }
     if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     }
     if (a == "--format" || a.rfind("--format=", 0) == 0) {
@@ -94,13 +94,13 @@ int hashCommand(const std::vector<std::string> &args) {
   std::string error;
   const SourceFile *root = sources.load(files[0], error);
   if (!root) {
-    std::fprintf(stderr, "brine: cannot read '%s': %s\n", files[0].c_str(), error.c_str());
+    std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", files[0].c_str(), error.c_str());
     return SpecErrors;
   }
   ast::Program program;
   bool loaded = loadProgram(*root, sources, diags, program);
   if (!loaded) {
-    // Only what stopped the loading is worth showing; `brine check` reports the rest.
+    // Only what stopped the loading is worth showing; `saltpan check` reports the rest.
     for (const Diagnostic &d : diags.all())
       std::fputs(renderText(d, colour).c_str(), stderr);
     return SpecErrors;
@@ -117,7 +117,7 @@ int hashCommand(const std::vector<std::string> &args) {
   for (auto &[name, moduleHash] : hashed->modules)
     modules.push_back({{"name", name}, {"hash", moduleHash}});
   if (format == "json") {
-    nlohmann::json out{{"file", files[0]}, {"hash", hash}, {"version", BRINE_VERSION}, {"modules", modules}};
+    nlohmann::json out{{"file", files[0]}, {"hash", hash}, {"version", SALTPAN_VERSION}, {"modules", modules}};
     std::printf("%s\n", out.dump(2).c_str());
   } else {
     std::printf("%s  %s\n", hash.c_str(), files[0].c_str());
@@ -125,4 +125,4 @@ int hashCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

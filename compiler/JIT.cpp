@@ -21,7 +21,7 @@
 #include <cmath>
 #include <mutex>
 
-namespace brine {
+namespace saltpan {
 
 struct JIT::Impl {
   std::unique_ptr<llvm::orc::LLJIT> jit;
@@ -147,7 +147,7 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
     error = "this CPU's vectors hold at most " + std::to_string(nativeLanes()) + " lanes, not " + std::to_string(lanes);
     return nullptr;
   }
-  std::string name = "brine_kernel_" + std::to_string(impl.counter++);
+  std::string name = "saltpan_kernel_" + std::to_string(impl.counter++);
   auto context = std::make_unique<llvm::LLVMContext>();
   std::unique_ptr<llvm::Module> module = codegen(kernel, *context, name, lanes);
   if (!module) {
@@ -195,4 +195,4 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
 
 const std::string &JIT::lastIR() const { return impl_->lastIR; }
 
-} // namespace brine
+} // namespace saltpan

@@ -5,7 +5,7 @@
 #include <memory>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 using KernelFn = void (*)(const double *y, const double *p, double t, double *out);
 
@@ -23,7 +23,7 @@ public:
   /// otherwise 2 (SSE2, every x86-64).
   int nativeLanes() const;
   /// The optimised LLVM IR of the last compiled kernel (for `--emit llvm`); the Nth compile
-  /// (from 0) defines `brine_kernel_N`.
+  /// (from 0) defines `saltpan_kernel_N`.
   const std::string &lastIR() const;
 
 private:
@@ -32,4 +32,4 @@ private:
   std::unique_ptr<Impl> impl_;
 };
 
-} // namespace brine
+} // namespace saltpan

@@ -11,7 +11,7 @@
 #include <cmath>
 #include <map>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 using ir::NodeId;
@@ -91,10 +91,9 @@ private:
   NodeId addParam(const std::string &name, double value, Dimension dim) {
     return k_.param(addParamIndex(name, value, dim));
   }
-  void recordable(const std::string &name, const std::string &unit, double scale, NodeId node,
-                  bool mechanismCurrent = false) {
-    ir::Recordable r{name, unit, scale, -1, k_.addOutput(node), mechanismCurrent};
-    out_.recordables.push_back(r);
+  void probe(const std::string &name, const std::string &unit, double scale, NodeId node, bool entryCurrent = false) {
+    ir::Probe r{name, unit, scale, -1, k_.addOutput(node), entryCurrent};
+    out_.probes.push_back(r);
   }
 
   NodeId add(NodeId a, NodeId b) { return k_.binary(Op::Add, a, b); }
@@ -226,7 +225,7 @@ private:
       it->second = add(it->second, current);
   }
 
-  // ---- mechanisms ----
+  // ---- membrane entries ----
 
   struct Currents {
     NodeId g, ge, other, stimulus;
@@ -266,7 +265,7 @@ private:
       }
       ir::Gate gate{name, state, k_.addOutput(inf), k_.addOutput(tau)};
       out_.gates.push_back(gate);
-      out_.recordables.push_back({name, "1", 1, state, -1});
+      out_.probes.push_back({name, "1", 1, state, -1});
       NodeId x = k_.state(state);
       int power = static_cast<int>(g.power.value);
       for (int i = 0; i < power; ++i)
@@ -289,7 +288,7 @@ private:
 
   void channel(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
     const ChannelDecl &ch = *p.channel;
-    std::string prefix = c.decl->name + "." + p.entry->mechanism;
+    std::string prefix = c.decl->name + "." + p.entry->name;
     if (!p.density) {
       fail(p.entry->nameRange, "the density of '" + ch.name + "' is unknown");
       return;
@@ -343,19 +342,19 @@ private:
       cur.g = add(cur.g, g);
       cur.ge = add(cur.ge, mul(g, e));
       current = mul(g, sub(env.voltage, e));
-      recordable(prefix + ".conductance", "mS/cm2", 0.1, g);
-      recordable(prefix + ".reversal", "mV", 1e3, e);
+      probe(prefix + ".conductance", "mS/cm2", 0.1, g);
+      probe(prefix + ".reversal", "mV", 1e3, e);
       if (single)
         carries(single, current, env);
       else
         allCarried_ = false;
     }
-    recordable(prefix + ".current", "uA/cm2", 100, current, true);
+    probe(prefix + ".current", "uA/cm2", 100, current, true);
   }
 
   void pump(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
     const PumpDecl &pump = *p.pump;
-    std::string prefix = c.decl->name + "." + p.entry->mechanism;
+    std::string prefix = c.decl->name + "." + p.entry->name;
     auto values = model_.pumps.find(&pump);
     if (!p.density || !pump.activity || values == model_.pumps.end() || !values->second.chargeKnown) {
       fail(p.entry->nameRange, "'" + pump.name + "' cannot be simulated without a density, cycle and activity");
@@ -381,7 +380,7 @@ private:
       NodeId ionPart = mul(cycles, num(outward));
       carries(t.target, ionPart, env);
     }
-    recordable(prefix + ".current", "uA/cm2", 100, current, true);
+    probe(prefix + ".current", "uA/cm2", 100, current, true);
   }
 
   std::optional<double> time(const Expr *e) { return e ? evaluator_.evaluate(*e, {}) : std::nullopt; }
@@ -527,8 +526,8 @@ private:
     cur.g = add(cur.g, g);
     cur.ge = add(cur.ge, mul(g, num(*reversal)));
     std::string prefix = c.decl->name + ".synapse" + std::to_string(number);
-    recordable(prefix + ".conductance", "mS/cm2", 0.1, g);
-    recordable(prefix + ".current", "uA/cm2", 100, mul(g, sub(env.voltage, num(*reversal))));
+    probe(prefix + ".conductance", "mS/cm2", 0.1, g);
+    probe(prefix + ".current", "uA/cm2", 100, mul(g, sub(env.voltage, num(*reversal))));
   }
 
   void clamps(const ProtocolDecl &p, const CompartmentValues &c, ir::Compartment &comp) {
@@ -594,7 +593,7 @@ private:
       pools[pool.ion] = k_.state(state);
       out_.pools.push_back({d.name + "." + pool.ion->name, static_cast<int>(out_.compartments.size()), state, -1, *z,
                             pool.areaPerVolume});
-      out_.recordables.push_back({d.name + "." + pool.ion->name, "mM", 1, state, -1});
+      out_.probes.push_back({d.name + "." + pool.ion->name, "mM", 1, state, -1});
     }
     size_t firstPool = out_.pools.size() - pools.size();
     ionCurrent_.clear();
@@ -629,7 +628,7 @@ private:
       pool.derivativeOutput =
           k_.addOutput(mul(current, num(-pool.areaPerVolume / (pool.valence * physics::faraday))));
       if (NodeId e = nernstNode(ion, env); e >= 0)
-        recordable(pool.name + ".reversal", "mV", 1e3, e);
+        probe(pool.name + ".reversal", "mV", 1e3, e);
     }
     comp.allCurrentCarried = !pools.empty() && allCarried_;
     std::vector<const IonDecl *> carried;
@@ -637,24 +636,24 @@ private:
       carried.push_back(ion);
     std::sort(carried.begin(), carried.end(), [](auto *a, auto *b) { return a->name < b->name; });
     for (const IonDecl *ion : carried)
-      recordable(d.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
+      probe(d.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
     comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell
     comp.injectedOutput = k_.addOutput(cur.stimulus);
     out_.compartments.push_back(comp);
-    out_.recordables.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
-    recordable(d.name + ".membrane_current", "uA/cm2", 100, ionic);
+    out_.probes.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
+    probe(d.name + ".membrane_current", "uA/cm2", 100, ionic);
     if (comp.clampedOutput >= 0) // while clamped, the amplifier supplies the ionic current
-      recordable(d.name + ".clamp_current", "uA/cm2", 100,
+      probe(d.name + ".clamp_current", "uA/cm2", 100,
                  mul(k_.outputs[comp.clampedOutput], ionic));
-    recordable(d.name + ".injected", "uA/cm2", 100, cur.stimulus);
+    probe(d.name + ".injected", "uA/cm2", 100, cur.stimulus);
   }
 
   void defaultProtocol() {
     out_.protocol = ir::Protocol{};
     for (const ir::Compartment &c : out_.compartments)
-      out_.protocol.record.push_back(out_.findRecordable(c.name + ".V"));
+      out_.protocol.record.push_back(out_.findProbe(c.name + ".V"));
   }
 
   void lowerProtocol(const ProtocolDecl &p) {
@@ -671,7 +670,8 @@ private:
         proto.method = ir::Method::Rosenbrock;
       else {
         fail(p.methodRange, "unknown method '" + p.method + "'");
-        DiagnosticEngine::note(*diags_.last(), {}, "the methods are exponential_euler, rk4, dormand_prince and rosenbrock");
+        DiagnosticEngine::note(*diags_.last(), {},
+                               "the methods are exponential_euler, rk4, dormand_prince and rosenbrock");
       }
     }
     if (p.step) {
@@ -709,20 +709,20 @@ private:
         fail(p.every->range, "the recording interval must be a whole number of steps");
     }
     for (const RecordTarget &r : p.records) {
-      int index = out_.findRecordable(r.path);
+      int index = out_.findProbe(r.path);
       if (index < 0) {
         fail(r.range, "there is nothing called '" + r.path + "' to record");
         std::string some;
-        for (size_t i = 0; i < out_.recordables.size() && i < 6; ++i)
-          some += (i ? ", " : "") + out_.recordables[i].name;
-        DiagnosticEngine::note(*diags_.last(), {}, "recordable quantities include " + some);
+        for (size_t i = 0; i < out_.probes.size() && i < 6; ++i)
+          some += (i ? ", " : "") + out_.probes[i].name;
+        DiagnosticEngine::note(*diags_.last(), {}, "probes (recorded quantities) include " + some);
       } else {
         proto.record.push_back(index);
       }
     }
     if (p.records.empty())
       for (const ir::Compartment &c : out_.compartments)
-        proto.record.push_back(out_.findRecordable(c.name + ".V"));
+        proto.record.push_back(out_.findProbe(c.name + ".V"));
   }
 
   // Gates start at their steady values for the initial potentials.
@@ -744,4 +744,4 @@ bool lowerModel(const Program &program, const Model &model, Evaluator &evaluator
   return ok && diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -9,7 +9,7 @@
 #include "AST.h"
 #include "IR.h"
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
 struct Model;
@@ -21,4 +21,4 @@ bool lowerModel(const ast::Program &program, const Model &model, Evaluator &eval
 
 /// Every protocol declared in the program, in order.
 std::vector<const ast::ProtocolDecl *> protocols(const ast::Program &program);
-} // namespace brine
+} // namespace saltpan

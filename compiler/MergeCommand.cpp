@@ -1,4 +1,4 @@
-// MergeCommand.cpp - `brine merge`: the JSON results of a sweep's shards, joined into the
+// MergeCommand.cpp - `saltpan merge`: the JSON results of a sweep's shards, joined into the
 // file (CSV or JSON) that one unsharded run of the sweep writes.
 #include "Commands.h"
 
@@ -10,20 +10,20 @@
 #include <fstream>
 #include <sstream>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *mergeHelp = R"(usage: brine merge -o FILE [-o FILE...] SHARD.json...
+const char *mergeHelp = R"(usage: saltpan merge -o FILE [-o FILE...] SHARD.json...
 
-Joins the JSON results that `brine sweep --shard I/N -o SHARD.json` wrote for every shard of one
+Joins the JSON results that `saltpan sweep --shard I/N -o SHARD.json` wrote for every shard of one
 sweep into FILE (.csv or .json), byte for byte the file one unsharded run would have written.
 Every shard from 0 to N-1 must be given once, and all must come from the same sweep of the same
-spec with the same brine version and engine (their sweep_hash fields agree).
+spec with the same saltpan version and engine (their sweep_hash fields agree).
 
 options:
   -o FILE     the merged output (.csv or .json; repeatable)
@@ -32,16 +32,16 @@ options:
 
 exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine merge: error: %s\n\n%s", message.c_str(), mergeHelp);
+  std::fprintf(stderr, "saltpan merge: error: %s\n\n%s", message.c_str(), mergeHelp);
   return Usage;
 }
 
 int refuse(const std::string &message) {
-  std::fprintf(stderr, "brine merge: error: %s\n", message.c_str());
+  std::fprintf(stderr, "saltpan merge: error: %s\n", message.c_str());
   return SpecErrors;
 }
 
@@ -55,7 +55,7 @@ int mergeCommand(const std::vector<std::string> &args) {
       std::fputs(mergeHelp, stdout);
       return Ok;
     } else if (args[i] == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (optionValue(args, i, "-o", v)) {
       if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
@@ -89,7 +89,7 @@ int mergeCommand(const std::vector<std::string> &args) {
     const sweep::Table &s = shards[i];
     if (s.sweepHash != first.sweepHash || s.shardCount != first.shardCount)
       return refuse("'" + inputs[i] + "' comes from a different sweep than '" + inputs[0] +
-                    "' (another spec, sweep, brine version, engine or shard count)");
+                    "' (another spec, sweep, saltpan version, engine or shard count)");
     int &slot = holder[static_cast<size_t>(s.shardIndex)];
     if (slot >= 0)
       return refuse("shard " + std::to_string(s.shardIndex) + " is given twice: '" + inputs[static_cast<size_t>(slot)] +
@@ -119,7 +119,7 @@ int mergeCommand(const std::vector<std::string> &args) {
   for (const std::string &out : outputs) {
     std::string error;
     if (!writeFileAtomically(out, isJsonPath(out) ? sweep::toJson(merged) : sweep::toCsv(merged), error)) {
-      std::fprintf(stderr, "brine merge: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan merge: %s\n", error.c_str());
       return CannotWrite;
     }
   }
@@ -128,4 +128,4 @@ int mergeCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -1,4 +1,4 @@
-// MethodsCommand.cpp - `brine methods`: a methods-section description of a checked model
+// MethodsCommand.cpp - `saltpan methods`: a methods-section description of a checked model
 // (the text is generated in Methods.cpp).
 #include "Commands.h"
 
@@ -10,15 +10,15 @@
 #include <filesystem>
 #include <unistd.h>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *methodsHelp = R"(usage: brine methods [options] FILE
+const char *methodsHelp = R"(usage: saltpan methods [options] FILE
 
 Writes a methods-section description of the checked model, to paste into a paper and edit:
 the temperature; the sign conventions (V inside minus outside, membrane current positive
@@ -42,11 +42,11 @@ options:
 exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
              73 the output file could not be written
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), methodsHelp);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), methodsHelp);
   return Usage;
 }
 
@@ -102,7 +102,7 @@ int methodsCommand(const std::vector<std::string> &args) {
     return Ok;
   }
   if (version) {
-    std::printf("brine %s\n", BRINE_VERSION);
+    std::printf("saltpan %s\n", SALTPAN_VERSION);
     return Ok;
   }
   if (files.size() != 1)
@@ -129,10 +129,10 @@ int methodsCommand(const std::vector<std::string> &args) {
   }
   std::string error;
   if (!writeFileAtomically(output, text, error)) {
-    std::fprintf(stderr, "brine: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan: %s\n", error.c_str());
     return CannotWrite;
   }
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -8,11 +8,11 @@
 
 #include <filesystem>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine {
+namespace saltpan {
 
 namespace {
 
@@ -38,7 +38,7 @@ std::optional<ModelHash> hashProgram(const ast::Program &program, const std::str
                                      DiagnosticEngine &diags) {
   ModelHash out;
   Sha256 whole;
-  whole.update("brine-hash 1\nversion " + std::string(BRINE_VERSION) + "\n");
+  whole.update("saltpan-hash 1\nversion " + std::string(SALTPAN_VERSION) + "\n");
   for (const auto &module : program.modules) {
     std::optional<std::string> bare = bareSpec(*module->file, diags);
     if (!bare)
@@ -61,4 +61,4 @@ std::string modelHash(const ast::Program &program) {
   return h ? h->hash : "unknown";
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
 // ModelHash.h - the SHA-256 that names a model exactly: the tool version, then every module
 // the spec uses (in load order) as its canonical form without comments. Reformatting and
-// comment edits keep it; any changed number changes it. `brine hash` prints it, and every
+// comment edits keep it; any changed number changes it. `saltpan hash` prints it, and every
 // report and JSON output carries it.
 #pragma once
 #include "AST.h"
@@ -10,7 +10,7 @@
 #include <utility>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 
 struct ModelHash {
@@ -24,4 +24,4 @@ std::optional<ModelHash> hashProgram(const ast::Program &program, const std::str
                                      DiagnosticEngine &diags);
 /// The hash of a checked program, for the headers of outputs ("unknown" if it cannot be had).
 std::string modelHash(const ast::Program &program);
-} // namespace brine
+} // namespace saltpan

@@ -7,7 +7,7 @@
 #include <filesystem>
 #include <map>
 
-namespace brine {
+namespace saltpan {
 
 const std::vector<StdModule> &stdModules() {
   static const std::vector<StdModule> modules = {
@@ -118,7 +118,7 @@ private:
         if (use.target.rfind("std.", 0) == 0)
           DiagnosticEngine::note(d, {}, "the standard modules are " + list);
         else
-          DiagnosticEngine::note(d, {}, "to use a file, write its path in quotes: use \"" + use.target + ".brine\"");
+          DiagnosticEngine::note(d, {}, "to use a file, write its path in quotes: use \"" + use.target + ".saltpan\"");
         ok_ = false;
         return;
       }
@@ -153,4 +153,4 @@ bool loadProgram(const SourceFile &root, SourceManager &sources, DiagnosticEngin
   return Loader(sources, diags, program).loadRoot(root);
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
 // Modules.h - Stage 2: loads the root spec and every module it uses, each file once.
 //
-// `use std.x` names an embedded stdlib module; `use "file.brine"` a path relative to the
+// `use std.x` names an embedded stdlib module; `use "file.saltpan"` a path relative to the
 // using file. A cycle of uses is an error that lists the chain.
 #pragma once
 #include "AST.h"
@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class SourceManager;
 
@@ -19,9 +19,9 @@ bool loadProgram(const SourceFile &root, SourceManager &sources, DiagnosticEngin
 
 struct StdModule {
   const char *name; // "std.ions"
-  const char *path; // "stdlib/ions.brine", how diagnostics name it
+  const char *path; // "stdlib/ions.saltpan", how diagnostics name it
   const char *text;
 };
 /// The embedded standard library.
 const std::vector<StdModule> &stdModules();
-} // namespace brine
+} // namespace saltpan

@@ -1,10 +1,10 @@
-// MpiMain.cpp - brine-mpi: `brine sweep` spread over the ranks of an MPI job.
+// MpiMain.cpp - saltpan-mpi: `saltpan sweep` spread over the ranks of an MPI job.
 //
-// Rank r of n computes shard r/n of the sweep exactly as `brine sweep --shard r/n` would
+// Rank r of n computes shard r/n of the sweep exactly as `saltpan sweep --shard r/n` would
 // (with its own checkpoint journal, so a relaunched job resumes), into a JSON file beside
 // the first output; when every rank has succeeded, rank 0 joins the shards with
-// `brine merge` into the requested outputs and removes them. The outputs are therefore the
-// bytes one unsharded `brine sweep` writes. The ranks share a file system, as on a cluster.
+// `saltpan merge` into the requested outputs and removes them. The outputs are therefore the
+// bytes one unsharded `saltpan sweep` writes. The ranks share a file system, as on a cluster.
 #include "Commands.h"
 
 #include <mpi.h>
@@ -19,14 +19,14 @@
 
 namespace {
 
-const char *mpiHelp = R"(usage: mpirun -n N brine-mpi sweep [sweep options] -o FILE [-o FILE...] SPEC
+const char *mpiHelp = R"(usage: mpirun -n N saltpan-mpi sweep [sweep options] -o FILE [-o FILE...] SPEC
 
-Runs `brine sweep` with its points split over the N ranks of an MPI job: rank r computes
+Runs `saltpan sweep` with its points split over the N ranks of an MPI job: rank r computes
 shard r of N (checkpointed, so relaunching the same job resumes), and rank 0 joins the
-shards into each -o FILE, the same bytes one `brine sweep` would write. Every option of
-`brine sweep` except --shard is accepted; at least one -o is required.
+shards into each -o FILE, the same bytes one `saltpan sweep` would write. Every option of
+`saltpan sweep` except --shard is accepted; at least one -o is required.
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 } // namespace
@@ -37,30 +37,31 @@ int main(int argc, char **argv) {
   MPI_Comm_rank(MPI_COMM_WORLD, &rank);
   MPI_Comm_size(MPI_COMM_WORLD, &size);
   std::vector<std::string> args(argv + 1, argv + argc);
-  int rc = brine::cli::Ok;
+  int rc = saltpan::cli::Ok;
   std::vector<std::string> outputs, sweepArgs;
   if (args.empty() || args[0] != "sweep" || (args.size() > 1 && (args[1] == "--help" || args[1] == "-h"))) {
     if (rank == 0)
       std::fputs(mpiHelp, args.size() > 1 && args[1] == "--help" ? stdout : stderr);
     MPI_Finalize();
-    return args.size() > 1 && args[1] == "--help" ? brine::cli::Ok : brine::cli::Usage;
+    return args.size() > 1 && args[1] == "--help" ? saltpan::cli::Ok : saltpan::cli::Usage;
   }
   for (size_t i = 1; i < args.size(); ++i) {
     std::string v;
-    if (brine::cli::optionValue(args, i, "-o", v))
+    if (saltpan::cli::optionValue(args, i, "-o", v))
       outputs.push_back(v);
     else if (args[i] == "--shard" || args[i].rfind("--shard=", 0) == 0)
-      rc = brine::cli::Usage;
+      rc = saltpan::cli::Usage;
     else
       sweepArgs.push_back(args[i]);
   }
-  if (rc != brine::cli::Ok || outputs.empty()) {
+  if (rc != saltpan::cli::Ok || outputs.empty()) {
     if (rank == 0)
-      std::fprintf(stderr, "brine-mpi: error: %s\n\n%s",
-                   outputs.empty() ? "give at least one output with -o FILE" : "the ranks choose the shards; drop --shard",
+      std::fprintf(stderr, "saltpan-mpi: error: %s\n\n%s",
+                   outputs.empty() ? "give at least one output with -o FILE"
+                                   : "the ranks choose the shards; drop --shard",
                    mpiHelp);
     MPI_Finalize();
-    return brine::cli::Usage;
+    return saltpan::cli::Usage;
   }
   auto shardFile = [&](int r) {
     return outputs.front() + ".rank-" + std::to_string(r) + "-of-" + std::to_string(size) + ".json";
@@ -78,17 +79,17 @@ int main(int argc, char **argv) {
   mine.insert(mine.end(), {"--shard", std::to_string(rank) + "/" + std::to_string(size), "-o", shardFile(rank)});
   if (rank != 0)
     mine.insert(mine.end(), {"--progress", "none"});
-  rc = brine::cli::sweepCommand(mine);
+  rc = saltpan::cli::sweepCommand(mine);
   int worst = 0;
   MPI_Allreduce(&rc, &worst, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
-  if (worst == brine::cli::Ok && rank == 0) {
+  if (worst == saltpan::cli::Ok && rank == 0) {
     std::vector<std::string> merge;
     for (const std::string &o : outputs)
       merge.insert(merge.end(), {"-o", o});
     for (int r = 0; r < size; ++r)
       merge.push_back(shardFile(r));
-    worst = brine::cli::mergeCommand(merge);
-    if (worst == brine::cli::Ok)
+    worst = saltpan::cli::mergeCommand(merge);
+    if (worst == saltpan::cli::Ok)
       for (int r = 0; r < size; ++r)
         std::filesystem::remove(shardFile(r));
   }

@@ -3,7 +3,7 @@
 
 #include <cmath>
 
-namespace brine::physics {
+namespace saltpan::physics {
 
 double thermalVoltage(double kelvin) { return gasConstant * kelvin / faraday; }
 
@@ -41,4 +41,4 @@ std::optional<double> ghkZeroCurrentPotential(const std::vector<PermeantIon> &io
   return 0.5 * (lo + hi);
 }
 
-} // namespace brine::physics
+} // namespace saltpan::physics

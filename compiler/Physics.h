@@ -4,7 +4,7 @@
 #include <optional>
 #include <vector>
 
-namespace brine::physics {
+namespace saltpan::physics {
 
 inline constexpr double elementaryCharge = 1.602176634e-19; // C, exact
 inline constexpr double avogadro = 6.02214076e23;           // 1/mol, exact
@@ -33,4 +33,4 @@ double ghkCurrent(const PermeantIon &ion, double v, double kelvin);
 /// for any valences). nullopt when no such potential exists (e.g. one ion, one side only).
 std::optional<double> ghkZeroCurrentPotential(const std::vector<PermeantIon> &ions, double kelvin);
 
-} // namespace brine::physics
+} // namespace saltpan::physics

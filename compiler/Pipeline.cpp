@@ -11,7 +11,7 @@
 
 #include <filesystem>
 
-namespace brine {
+namespace saltpan {
 
 namespace {
 
@@ -65,4 +65,4 @@ void compileText(const std::string &path, std::string text, Compilation &c) {
   run(*c.sources.add(path, std::move(text)), c);
 }
 
-} // namespace brine
+} // namespace saltpan

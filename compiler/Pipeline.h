@@ -11,7 +11,7 @@
 #include <map>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// Everything one compilation of a spec produces, owned together.
 struct Compilation {
@@ -30,4 +30,4 @@ void compileFile(const std::string &path, Compilation &c);
 /// The same on in-memory text named `path` (tests, fuzzing).
 void compileText(const std::string &path, std::string text, Compilation &c);
 
-} // namespace brine
+} // namespace saltpan

@@ -7,7 +7,7 @@
 #include <limits>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 namespace {
 
@@ -280,4 +280,4 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
   return s;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,4 +1,4 @@
-// Plot.h - a recorded trace as an SVG 1.1 figure (`brine run --plot FILE`).
+// Plot.h - a recorded trace as an SVG 1.1 figure (`saltpan run --plot FILE`).
 //
 // One panel per distinct display unit, stacked and sharing the time axis; each panel has
 // axes, tick labels at round numbers, axis titles with units and a legend of its columns.
@@ -8,9 +8,9 @@
 
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// The SVG document (time in the trace is in seconds; it is drawn in ms).
 std::string plotSvg(const Trace &trace, const std::string &title);
 
-} // namespace brine
+} // namespace saltpan

@@ -6,7 +6,7 @@
 #include <algorithm>
 #include <set>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -166,8 +166,9 @@ private:
     if (!d) {
       auto &diag = unknown(range, name, "ion", {DeclKind::Ion});
       if (diag.notes.empty())
-        DiagnosticEngine::note(diag, {}, stdIonsUsed_ ? "declare it with 'ion " + name + " valence ...'"
-                                                      : "declare it with 'ion " + name + " valence ...' or 'use std.ions'");
+        DiagnosticEngine::note(diag, {},
+                               stdIonsUsed_ ? "declare it with 'ion " + name + " valence ...'"
+                                            : "declare it with 'ion " + name + " valence ...' or 'use std.ions'");
       return nullptr;
     }
     if (auto *i = dyn_cast<IonDecl>(d))
@@ -344,13 +345,13 @@ private:
       }
     }
     for (MembraneEntry &m : c.membrane) {
-      Decl *d = lookup(m.mechanism);
+      Decl *d = lookup(m.name);
       if (!d)
-        unknown(m.nameRange, m.mechanism, "channel or pump", {DeclKind::Channel, DeclKind::Pump});
+        unknown(m.nameRange, m.name, "channel or pump", {DeclKind::Channel, DeclKind::Pump});
       else if (d->kind == DeclKind::Channel || d->kind == DeclKind::Pump)
         m.target = d;
       else {
-        auto &diag = diags_.error(m.nameRange, "'" + m.mechanism + "' is " + article(d->kind) +
+        auto &diag = diags_.error(m.nameRange, "'" + m.name + "' is " + article(d->kind) +
                                                    "; a membrane holds channels and pumps");
         DiagnosticEngine::note(diag, d->nameRange, "declared here");
       }
@@ -539,4 +540,4 @@ bool resolveNames(Program &program, SymbolTable &symbols, DiagnosticEngine &diag
   return diags.errorCount() == before;
 }
 
-} // namespace brine
+} // namespace saltpan

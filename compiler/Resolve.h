@@ -9,7 +9,7 @@
 #include <map>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 
 /// The program's declarations by name, and its single temperature (if any).
@@ -21,4 +21,4 @@ struct SymbolTable {
 
 /// Binds every name in the program. Returns false if it reported an error.
 bool resolveNames(ast::Program &program, SymbolTable &symbols, DiagnosticEngine &diags);
-} // namespace brine
+} // namespace saltpan

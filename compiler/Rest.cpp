@@ -9,7 +9,7 @@
 #include <limits>
 #include <stdexcept>
 
-namespace brine::rest {
+namespace saltpan::rest {
 
 namespace {
 
@@ -436,13 +436,13 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Mode
       for (const ir::Gate *g : sys.gates())
         s.gates.push_back({g->name.substr(prefix.size()), sys.state()[g->state]});
       const std::string suffix = ".current";
-      for (const ir::Recordable &r : model.recordables) {
-        if (!r.mechanismCurrent || r.output < 0 || r.name.rfind(prefix, 0) != 0 ||
+      for (const ir::Probe &r : model.probes) {
+        if (!r.entryCurrent || r.output < 0 || r.name.rfind(prefix, 0) != 0 ||
             r.name.size() <= prefix.size() + suffix.size() ||
             r.name.compare(r.name.size() - suffix.size(), suffix.size(), suffix) != 0)
           continue;
-        std::string mechanism = r.name.substr(prefix.size(), r.name.size() - prefix.size() - suffix.size());
-        s.currents.push_back({mechanism, sys.outputs()[r.output] * r.scale});
+        std::string entry = r.name.substr(prefix.size(), r.name.size() - prefix.size() - suffix.size());
+        s.currents.push_back({entry, sys.outputs()[r.output] * r.scale});
       }
       s.totalCurrent = total * 100; // A/m2 -> uA/cm2
       // The slope of the steady-state I-V curve gives the input resistance for small
@@ -458,4 +458,4 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Mode
   return result;
 }
 
-} // namespace brine::rest
+} // namespace saltpan::rest

@@ -1,4 +1,4 @@
-// Rest.h - steady states of each compartment (`brine rest`): the potentials where, with
+// Rest.h - steady states of each compartment (`saltpan rest`): the potentials where, with
 // every gate at its steady value, the total membrane current is zero, and whether each is
 // stable. Analysis only; RestCommand.cpp prints the result.
 //
@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 struct Model;
 
 namespace rest {
@@ -38,7 +38,7 @@ struct SteadyState {
   double maxRealEigenvalue = 0;                 // 1/s
   std::vector<std::complex<double>> eigenvalues; // 1/s, sorted by decreasing real part
   std::vector<Named> gates;                     // steady values (dimensionless)
-  std::vector<Named> currents;                  // per mechanism, uA/cm2, outward positive
+  std::vector<Named> currents;                  // per membrane entry, uA/cm2, outward positive
   double totalCurrent = 0;                      // uA/cm2 (zero up to rounding)
   double slopeConductance = 0;                  // S/m2: dI/dV of the steady-state I-V curve
   // Input resistance for small steady currents: 1/slope (ohm m2), and over the area.
@@ -49,7 +49,7 @@ struct CompartmentRest {
   std::string name;
   std::vector<SteadyState> steadyStates; // by increasing V
   // Every channel of the compartment is ungated and has a permeability density: its GHK
-  // resting potential (from the analysis, as `brine show` prints it) is comparable.
+  // resting potential (from the analysis, as `saltpan show` prints it) is comparable.
   bool passivePermeability = false;
   std::optional<double> ghkRest; // V, set when passivePermeability and the analysis has one
 };
@@ -67,4 +67,4 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Mode
 std::vector<std::complex<double>> eigenvalues(std::vector<double> a, int n);
 
 } // namespace rest
-} // namespace brine
+} // namespace saltpan

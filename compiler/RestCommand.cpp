@@ -1,4 +1,4 @@
-// RestCommand.cpp - `brine rest`: every steady state of each compartment, its stability,
+// RestCommand.cpp - `saltpan rest`: every steady state of each compartment, its stability,
 // gates and currents (the analysis is in Rest.cpp).
 #include "Commands.h"
 
@@ -14,22 +14,22 @@
 #include <nlohmann/json.hpp>
 #include <optional>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *restHelp = R"(usage: brine rest [options] FILE
+const char *restHelp = R"(usage: saltpan rest [options] FILE
 
 Finds every steady state of each compartment with no injected current: the potentials V
 where, with every gate at its steady value at V, the total membrane current is zero. V is
 scanned on a 0.1 mV grid, each sign change of the current is refined to 1e-12 V, and each
 steady state is classified by the eigenvalues of the Jacobian of the model's equations
 (V and gates) there: stable when every eigenvalue has a negative real part. For each one
-it prints the gates' values and each mechanism's current density. For a compartment whose
+it prints the gates' values and each membrane entry's current density. For a compartment whose
 channels are all ungated permeabilities, it also prints the GHK resting potential.
 Conventions: V is inside minus outside; membrane current is positive outward.
 
@@ -42,11 +42,11 @@ options:
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), restHelp);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), restHelp);
   return Usage;
 }
 
@@ -54,7 +54,8 @@ int usage(const std::string &message) {
 std::optional<double> parseVoltage(const std::string &text) {
   char *end = nullptr;
   double number = std::strtod(text.c_str(), &end);
-  if (end != text.c_str() && std::isfinite(number) && text.find_first_not_of(' ', end - text.c_str()) == std::string::npos)
+  if (end != text.c_str() && std::isfinite(number) &&
+      text.find_first_not_of(' ', end - text.c_str()) == std::string::npos)
     return number * 1e-3;
   auto q = parseQuantity(text);
   if (!q || q->second != dims::voltage())
@@ -118,9 +119,9 @@ std::string text(const std::string &modelName, const std::vector<rest::Compartme
 std::string json(const std::string &modelName, const std::vector<rest::CompartmentRest> &result,
                  const rest::Options &o) {
   nlohmann::ordered_json doc;
-  doc["tool"] = "brine";
-  doc["version"] = BRINE_VERSION;
-  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+  doc["tool"] = "saltpan";
+  doc["version"] = SALTPAN_VERSION;
+  doc["caution"] = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
   doc["model"] = modelName;
   doc["range_mV"] = {o.from * 1e3, o.to * 1e3};
   doc["conventions"] = {{"membrane_potential", "inside minus outside"}, {"membrane_current", "positive outward"}};
@@ -176,7 +177,7 @@ int restCommand(const std::vector<std::string> &args) {
       std::fputs(restHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (value("--format", fmt)) {
       if (missing)
@@ -223,7 +224,7 @@ int restCommand(const std::vector<std::string> &args) {
   try {
     result = rest::findSteadyStates(model, &c.model, options);
   } catch (const std::exception &e) {
-    std::fprintf(stderr, "brine: internal error: %s\n", e.what());
+    std::fprintf(stderr, "saltpan: internal error: %s\n", e.what());
     return Internal;
   }
   std::string out = fmt == "json" ? json(model.name, result, options) : text(model.name, result, options);
@@ -237,4 +238,4 @@ int restCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -7,7 +7,7 @@
 #include <chrono>
 #include <optional>
 
-namespace brine {
+namespace saltpan {
 
 RunOutcome runModel(const ir::Model &model, const std::vector<double> &params, const KernelCompiler &compile) {
   RunOutcome out;
@@ -53,4 +53,4 @@ RunOutcome runModel(const ir::Model &model, const std::vector<double> &params, c
   return out;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
 // Run.h - one simulation of a lowered model, ready for any caller: fuses the exponential
 // Euler step when it can, compiles the kernel natively when given a compiler, and steps.
-// Used by `brine run`, `brine test` (expectations) and `brine snapshot`.
+// Used by `saltpan run`, `saltpan test` (expectations) and `saltpan snapshot`.
 #pragma once
 #include "IR.h"
 #include "Simulate.h"
@@ -8,7 +8,7 @@
 #include <functional>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// Compiles a kernel to native code, or returns nullptr (with `error`) to use the interpreter.
 using KernelCompiler = std::function<KernelFn(const ir::Kernel &, std::string &error)>;
@@ -25,4 +25,4 @@ struct RunOutcome {
 /// Simulates `model` with `params`; `compile` may be empty (the interpreter is used).
 RunOutcome runModel(const ir::Model &model, const std::vector<double> &params, const KernelCompiler &compile);
 
-} // namespace brine
+} // namespace saltpan

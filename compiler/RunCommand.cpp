@@ -1,4 +1,4 @@
-// RunCommand.cpp - `brine run`: lower a checked spec for one protocol, compile its kernel
+// RunCommand.cpp - `saltpan run`: lower a checked spec for one protocol, compile its kernel
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
 
@@ -11,7 +11,7 @@
 #include "RunSettings.h"
 #include "Simulate.h"
 #include "TraceOutput.h"
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
 
@@ -19,15 +19,15 @@
 #include <cmath>
 #include <cstdio>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *runHelp = R"(usage: brine run [options] FILE
+const char *runHelp = R"(usage: saltpan run [options] FILE
 
 Checks FILE, lowers it for one protocol, compiles the model to native code and simulates
 it, then writes the recorded quantities. Time is the first column; units are in the header.
@@ -37,7 +37,7 @@ current is positive into the cell.
 options:
   --protocol NAME      the protocol to run (default: the only one; needed when there are several)
   --set NAME=VALUE     override a parameter, e.g. --set axon.SquidSodium1952.density="100 mS/cm2"
-                       (repeatable; `brine check --emit ir FILE` lists the parameters)
+                       (repeatable; `saltpan check --emit ir FILE` lists the parameters)
   --duration T         override the protocol's duration, e.g. 50ms or "50 ms"
   --every T            override the recording interval
   --engine jit|interpreter   native code (default) or the reference interpreter
@@ -50,7 +50,7 @@ options:
 exit status: 0 success, 64 bad usage, 65 the spec has errors or the simulation failed,
              70 internal fault, 73 the output file could not be written
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 struct RunOptions {
@@ -62,7 +62,7 @@ struct RunOptions {
 };
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine: %s\n\n%s", message.c_str(), runHelp);
+  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), runHelp);
   return Usage;
 }
 
@@ -78,7 +78,7 @@ int runCommand(const std::vector<std::string> &args) {
       std::fputs(runHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--plot", o.plot) ||
                value("--duration", o.duration) || value("--every", o.every)) {
@@ -119,18 +119,18 @@ int runCommand(const std::vector<std::string> &args) {
       std::string names;
       for (auto *p : all)
         names += (names.empty() ? "" : ", ") + p->name;
-      std::fprintf(stderr, "brine: error: there is no protocol '%s' in '%s'%s%s\n", o.protocol.c_str(),
+      std::fprintf(stderr, "saltpan: error: there is no protocol '%s' in '%s'%s%s\n", o.protocol.c_str(),
                    o.file.c_str(), names.empty() ? "" : "; it has ", names.c_str());
       return Usage;
     }
   } else if (all.size() == 1) {
     protocol = all.front();
   } else if (all.size() > 1) {
-    std::fprintf(stderr, "brine: error: '%s' has %zu protocols; choose one with --protocol\n", o.file.c_str(),
+    std::fprintf(stderr, "saltpan: error: '%s' has %zu protocols; choose one with --protocol\n", o.file.c_str(),
                  all.size());
     return Usage;
   } else {
-    std::fprintf(stderr, "brine: error: '%s' has no protocol to run\n", o.file.c_str());
+    std::fprintf(stderr, "saltpan: error: '%s' has no protocol to run\n", o.file.c_str());
     return Usage;
   }
   ir::Model model;
@@ -142,56 +142,56 @@ int runCommand(const std::vector<std::string> &args) {
   std::vector<double> params = model.params;
   std::string settingError;
   for (const std::string &s : o.sets)
-    if (!applyParameterSetting(model, s, params, "`brine check --emit ir " + o.file + "` lists them", settingError))
+    if (!applyParameterSetting(model, s, params, "`saltpan check --emit ir " + o.file + "` lists them", settingError))
       return usage(settingError);
   if (!applyTiming(model.protocol, o.duration, o.every, settingError))
     return usage(settingError);
 
   KernelCompiler compile;
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   std::string jitError;
   if (o.engine == "jit") {
     jit = JIT::create(jitError);
     if (!jit) {
-      std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", jitError.c_str());
+      std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", jitError.c_str());
       return Internal;
     }
     compile = [&jit](const ir::Kernel &k, std::string &error) { return jit->compile(k, error); };
   }
 #else
   if (o.engine == "jit")
-    std::fprintf(stderr, "brine: note: this build has no JIT; using the reference interpreter\n");
+    std::fprintf(stderr, "saltpan: note: this build has no JIT; using the reference interpreter\n");
 #endif
   RunOutcome outcome = runModel(model, params, compile);
   if (compile && !outcome.native) {
-    std::fprintf(stderr, "brine: internal error: the JIT failed: %s\n", outcome.compileError.c_str());
+    std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", outcome.compileError.c_str());
     return Internal;
   }
   const SimulationFailure &failure = outcome.failure;
   const SimulationStats &stats = outcome.stats;
   Trace &trace = outcome.trace;
   if (failure.failed) {
-    std::fprintf(stderr, "brine: error: the simulation failed at t = %.6g ms: '%s' %s\n", failure.time * 1e3,
+    std::fprintf(stderr, "saltpan: error: the simulation failed at t = %.6g ms: '%s' %s\n", failure.time * 1e3,
                  failure.variable.c_str(), failure.reason.c_str());
     std::fprintf(stderr, "note: no output was written\n");
     return SpecErrors;
   }
   std::string text =
-      isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), BRINE_VERSION) : traceCsv(trace);
+      isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION) : traceCsv(trace);
   if (o.output.empty()) {
     std::fputs(text.c_str(), stdout);
   } else {
     std::string error;
     if (!writeFileAtomically(o.output, text, error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
   }
   if (!o.plot.empty()) {
     std::string error;
     if (!writeFileAtomically(o.plot, plotSvg(trace, model.name + ": " + model.protocol.name), error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
   }
@@ -222,4 +222,4 @@ int runCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -9,18 +9,18 @@
 #include <cstdio>
 #include <nlohmann/json.hpp>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 using json = nlohmann::ordered_json;
 
 namespace {
 
-const char *caution = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+const char *caution = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
 
 // 15 significant digits: unit scaling (0.009 F/m2 -> 0.9 uF/cm2) leaves no 0.8999999999999999.
 double tidy(double v) {
@@ -76,7 +76,7 @@ json compartmentJson(const CompartmentValues &c, const Model &m) {
   }
   json membrane = json::array();
   for (const Placement &p : c.placements) {
-    json entry{{"mechanism", p.entry->mechanism},
+    json entry{{"entry", p.entry->name},
                {"kind", p.channel ? "channel" : p.pump ? (p.pump->exchanger ? "exchanger" : "pump") : "unknown"},
                {"density", optional(p.density, densityScale(p.densityKind))},
                {"density_unit", densityUnit(p.densityKind)}};
@@ -110,8 +110,8 @@ json compartmentJson(const CompartmentValues &c, const Model &m) {
 std::string showJson(const Compilation &c) {
   const Model &m = c.model;
   json doc;
-  doc["tool"] = "brine";
-  doc["version"] = BRINE_VERSION;
+  doc["tool"] = "saltpan";
+  doc["version"] = SALTPAN_VERSION;
   doc["model_hash"] = modelHash(c.program);
   doc["caution"] = caution;
   doc["model"] = m.header ? json(m.header->name) : json(nullptr);
@@ -132,7 +132,8 @@ std::string showJson(const Compilation &c) {
   for (auto &[pump, values] : sorted) {
     json cycle = json::array();
     for (const StoichTerm &t : pump->cycle)
-      cycle.push_back({{"ion", t.ion}, {"count", t.count.value}, {"direction", t.direction == Direction::In ? "in" : "out"}});
+      cycle.push_back(
+          {{"ion", t.ion}, {"count", t.count.value}, {"direction", t.direction == Direction::In ? "in" : "out"}});
     pumps.push_back({{"name", pump->name},
                      {"kind", pump->exchanger ? "exchanger" : "pump"},
                      {"cycle", cycle},
@@ -159,7 +160,8 @@ std::string showText(const Compilation &c) {
   line("model " + std::string(m.header ? m.header->name : "(unnamed)") +
        (m.header && !m.header->title.empty() ? " - " + m.header->title : ""));
   line("temperature " + num("%.2f K", m.temperature) + " (" +
-       num("%.2f degC", m.temperature ? std::optional<double>(*m.temperature - physics::zeroCelsius) : std::nullopt) + ")");
+       num("%.2f degC", m.temperature ? std::optional<double>(*m.temperature - physics::zeroCelsius) : std::nullopt) +
+       ")");
   line("conventions: V is inside minus outside; membrane current is positive outward");
   for (const CompartmentValues &cv : m.compartments) {
     line("");
@@ -186,7 +188,7 @@ std::string showText(const Compilation &c) {
       line("  GHK resting potential " + num("%.3f mV", cv.ghkRest, 1e3) + " (from " + std::to_string(cv.ghkChannels) +
            " ungated permeability channel" + (cv.ghkChannels == 1 ? "" : "s") + ")");
     for (const Placement &p : cv.placements) {
-      std::string s = "  " + p.entry->mechanism + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
+      std::string s = "  " + p.entry->name + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
                       densityUnit(p.densityKind);
       if (p.channel)
         s += ", reversal " + num("%.3f mV", p.reversal, 1e3) + " (" + reversalSource(p.reversalKind) + ")";
@@ -202,9 +204,9 @@ std::string showText(const Compilation &c) {
            (values.chargeKnown ? num("%+.0f", double(values.netOutwardCharge)) : "?"));
   }
   line("");
-  line("brine " + std::string(BRINE_VERSION) + ", model " + modelHash(c.program));
+  line("saltpan " + std::string(SALTPAN_VERSION) + ", model " + modelHash(c.program));
   line(std::string("note: ") + caution);
   return out;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,12 +1,12 @@
-// Show.h - the resolved model as text or JSON (`brine show`). Reads Analyze's Model only.
+// Show.h - the resolved model as text or JSON (`saltpan show`). Reads Analyze's Model only.
 #pragma once
 #include <string>
 
-namespace brine {
+namespace saltpan {
 struct Compilation;
 
-/// JSON document; keys are documented in docs/language.md ("brine show").
+/// JSON document; keys are documented in docs/language.md ("saltpan show").
 std::string showJson(const Compilation &c);
 /// A readable summary with the same content.
 std::string showText(const Compilation &c);
-} // namespace brine
+} // namespace saltpan

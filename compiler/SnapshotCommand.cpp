@@ -1,4 +1,4 @@
-// SnapshotCommand.cpp - `brine snapshot`: records a model's protocols into reference files
+// SnapshotCommand.cpp - `saltpan snapshot`: records a model's protocols into reference files
 // that expectations compare later runs with (snapshot_max_error, snapshot_rms_error).
 #include "Commands.h"
 
@@ -6,22 +6,22 @@
 #include "Pipeline.h"
 #include "ModelHash.h"
 #include "Run.h"
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
 
 #include <cstdio>
 #include <filesystem>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *snapshotHelp = R"(usage: brine snapshot [options] FILE
+const char *snapshotHelp = R"(usage: saltpan snapshot [options] FILE
 
 Runs each protocol declared in FILE (or the one named, which may come from a used file) and
 writes its recorded quantities to
@@ -52,23 +52,23 @@ int snapshotCommand(const std::vector<std::string> &args) {
       std::fputs(snapshotHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if ((a == "--protocol" || a == "--engine") && i + 1 < args.size()) {
       (a == "--protocol" ? only : engine) = args[++i];
     } else if (a.size() > 1 && a[0] == '-') {
-      std::fprintf(stderr, "brine: unknown option '%s'\n\n%s", a.c_str(), snapshotHelp);
+      std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), snapshotHelp);
       return Usage;
     } else if (file.empty()) {
       file = a;
     } else {
-      std::fprintf(stderr, "brine: snapshot takes one spec file\n\n%s", snapshotHelp);
+      std::fprintf(stderr, "saltpan: snapshot takes one spec file\n\n%s", snapshotHelp);
       return Usage;
     }
   }
   if (file.empty() || (engine != "jit" && engine != "interpreter")) {
-    std::fprintf(stderr, "brine: %s\n\n%s", file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'",
-                 snapshotHelp);
+    std::fprintf(stderr, "saltpan: %s\n\n%s",
+                 file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'", snapshotHelp);
     return Usage;
   }
   Compilation c;
@@ -78,7 +78,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
   if (c.diags.errorCount() > 0)
     return SpecErrors;
   KernelCompiler compile;
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   if (engine == "jit")
     compile = [&jit](const ir::Kernel &k, std::string &error) -> KernelFn {
@@ -99,16 +99,16 @@ int snapshotCommand(const std::vector<std::string> &args) {
     const ir::Model &model = c.lowered.at(p);
     RunOutcome run = runModel(model, model.params, compile);
     if (run.failure.failed) {
-      std::fprintf(stderr, "brine: error: protocol '%s' failed at t = %.6g ms: '%s' %s\n", p->name.c_str(),
+      std::fprintf(stderr, "saltpan: error: protocol '%s' failed at t = %.6g ms: '%s' %s\n", p->name.c_str(),
                    run.failure.time * 1e3, run.failure.variable.c_str(), run.failure.reason.c_str());
       return SpecErrors;
     }
     const Trace &t = run.trace;
     char buf[160];
-    std::string text = "# brine " + std::string(BRINE_VERSION) + " snapshot of model " + model.name + ", protocol " +
-                       p->name + "\n";
-    std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n", ir::methodName(model.protocol.method),
-                  model.protocol.step * 1e3, model.protocol.duration * 1e3);
+    std::string text = "# saltpan " + std::string(SALTPAN_VERSION) + " snapshot of model " + model.name +
+                       ", protocol " + p->name + "\n";
+    std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n",
+                  ir::methodName(model.protocol.method), model.protocol.step * 1e3, model.protocol.duration * 1e3);
     text += buf;
     text += "# model " + modelHash(c.program) + "\n";
     text += "# research modelling output; not for clinical or diagnostic decisions\n";
@@ -128,18 +128,19 @@ int snapshotCommand(const std::vector<std::string> &args) {
     std::filesystem::path out = spec.parent_path() / (spec.stem().string() + "." + p->name + ".snapshot.csv");
     std::string error;
     if (!writeFileAtomically(out.string(), text, error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
-    std::fprintf(stderr, "wrote %s (%zu samples of %zu quantities)\n", out.string().c_str(), t.time.size(), t.columns());
+    std::fprintf(stderr, "wrote %s (%zu samples of %zu quantities)\n", out.string().c_str(), t.time.size(),
+                 t.columns());
     ++written;
   }
   if (written == 0) {
-    std::fprintf(stderr, "brine: error: '%s' has %s\n", file.c_str(),
+    std::fprintf(stderr, "saltpan: error: '%s' has %s\n", file.c_str(),
                  only.empty() ? "no protocol" : ("no protocol '" + only + "'").c_str());
     return Usage;
   }
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

@@ -5,7 +5,7 @@
 #include <fstream>
 #include <sstream>
 
-namespace brine {
+namespace saltpan {
 
 namespace {
 bool isContinuation(unsigned char c) { return (c & 0xC0) == 0x80; }
@@ -120,4 +120,4 @@ const SourceFile *SourceManager::find(const std::string &path) const {
   return nullptr;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -10,7 +10,7 @@
 #include <string_view>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 class SourceFile;
 
@@ -67,4 +67,4 @@ private:
 /// Returns the byte offset of the first invalid UTF-8 sequence, or nullopt if valid.
 std::optional<size_t> findInvalidUtf8(std::string_view text);
 
-} // namespace brine
+} // namespace saltpan

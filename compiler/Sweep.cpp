@@ -16,7 +16,7 @@
 #include <optional>
 #include <set>
 
-namespace brine {
+namespace saltpan {
 
 using namespace ast;
 
@@ -416,7 +416,8 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
   if (im.engine == SweepEngine::Interpreter)
     im.description = "interpreter";
   else if (anyLanes)
-    im.description = "batched, " + std::to_string(im.lanes) + " lanes" + (anyScalar ? " (scalar where the method is adaptive or a clamp is used)" : "");
+    im.description = "batched, " + std::to_string(im.lanes) + " lanes" +
+                     (anyScalar ? " (scalar where the method is adaptive or a clamp is used)" : "");
   else
     im.description = "scalar";
 }
@@ -449,4 +450,4 @@ void SweepEvaluator::evaluate(const std::vector<size_t> &indices, std::vector<sw
       im.evaluateRest(indices[k], out[k]);
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,4 +1,4 @@
-// Sweep.h - Stage 12: sweeps. checkSweeps (run by every `brine check`) validates each
+// Sweep.h - Stage 12: sweeps. checkSweeps (run by every `saltpan check`) validates each
 // sweep declaration against the lowered model: parameters that exist, values in their
 // dimensions, a grid or a sample design that makes sense, measures a run or a steady state
 // can give. planSweep turns a valid declaration into its points and columns, and
@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 struct Compilation;
 
@@ -77,4 +77,4 @@ private:
   std::unique_ptr<Impl> impl_;
 };
 
-} // namespace brine
+} // namespace saltpan

@@ -1,4 +1,4 @@
-// SweepCommand.cpp - `brine sweep`: many runs of one model, one per point of a grid or a
+// SweepCommand.cpp - `saltpan sweep`: many runs of one model, one per point of a grid or a
 // sample, on every core, in SIMD lanes, checkpointed; `--shard` splits it across machines.
 #include "Commands.h"
 
@@ -10,7 +10,7 @@
 #include "SweepRun.h"
 #include "SweepSupport.h"
 #include "TraceOutput.h"
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
 
@@ -20,15 +20,15 @@
 #include <filesystem>
 #include <thread>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
-const char *sweepHelp = R"(usage: brine sweep [options] FILE
+const char *sweepHelp = R"(usage: saltpan sweep [options] FILE
 
 Runs a sweep: the model once per point, each point a set of parameter values, and writes one
 row per point (the point's index, its parameters, then its measures, each with its unit, and
@@ -53,10 +53,10 @@ options:
   --seed S                the sample's seed (default 1)
   --measure TEXT          a measure, e.g. 'step10: spike_count(axon.V)' or 'rest(axon)' (repeatable)
   -o FILE                 write FILE (.csv or .json; repeatable) when the sweep is complete
-  --shard I/N             compute only shard I (0 to N-1) of N; `brine merge` joins the JSON files
+  --shard I/N             compute only shard I (0 to N-1) of N; `saltpan merge` joins the JSON files
   --shard env[/N]         take I (and N) from a batch scheduler's array-task variables
   --threads N             worker threads (default: every core)
-  --engine E              batched (default), scalar (one point at a time, as `brine run`) or interpreter
+  --engine E              batched (default), scalar (one point at a time, as `saltpan run`) or interpreter
   --lanes N               points per lockstep batch: 2, 4 or 8 (default: the CPU's widest)
   --checkpoint N          points per journal entry (default 256; an entry is also written each second)
   --restart               discard an existing journal and start again
@@ -67,7 +67,7 @@ options:
 exit status: 0 success (failed points are reported in the output), 64 bad usage, 65 the spec has
              errors, 70 internal fault, 73 an output could not be written
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 struct SweepOptions {
@@ -81,7 +81,7 @@ struct SweepOptions {
 };
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "brine sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
+  std::fprintf(stderr, "saltpan sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
   return Usage;
 }
 
@@ -140,7 +140,7 @@ int sweepCommand(const std::vector<std::string> &args) {
       std::fputs(sweepHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (a == "--restart") {
       o.restart = true;
@@ -203,7 +203,8 @@ int sweepCommand(const std::vector<std::string> &args) {
     return usage("no spec file given");
   bool onCommandLine = !o.axes.empty() || !o.measures.empty() || !o.sample.empty();
   if (onCommandLine && !o.sweep.empty())
-    return usage("--sweep names a sweep of the file; it cannot be combined with --vary, --values, --sample or --measure");
+    return usage(
+        "--sweep names a sweep of the file; it cannot be combined with --vary, --values, --sample or --measure");
   for (const std::string &out : o.outputs)
     if (!isJsonPath(out) && (out.size() < 4 || out.substr(out.size() - 4) != ".csv"))
       return usage("-o takes a .csv or .json file, not '" + out + "'");
@@ -218,7 +219,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   if (onCommandLine) {
     std::error_code ec;
     if (!std::filesystem::is_regular_file(o.file, ec)) {
-      std::fprintf(stderr, "brine sweep: error: cannot read '%s'\n", o.file.c_str());
+      std::fprintf(stderr, "saltpan sweep: error: cannot read '%s'\n", o.file.c_str());
       return SpecErrors;
     }
     compileText("<command line>", commandLineSpec(o), c);
@@ -239,13 +240,13 @@ int sweepCommand(const std::vector<std::string> &args) {
     for (const ast::SweepDecl *s : sweeps)
       names += (names.empty() ? "" : ", ") + s->name;
     if (sweeps.empty())
-      std::fprintf(stderr, "brine sweep: error: '%s' declares no sweep; write one, or use --vary and --measure\n",
+      std::fprintf(stderr, "saltpan sweep: error: '%s' declares no sweep; write one, or use --vary and --measure\n",
                    o.file.c_str());
     else if (o.sweep.empty())
-      std::fprintf(stderr, "brine sweep: error: '%s' has %zu sweeps (%s); choose one with --sweep\n", o.file.c_str(),
+      std::fprintf(stderr, "saltpan sweep: error: '%s' has %zu sweeps (%s); choose one with --sweep\n", o.file.c_str(),
                    sweeps.size(), names.c_str());
     else
-      std::fprintf(stderr, "brine sweep: error: there is no sweep '%s' in '%s'; it has %s\n", o.sweep.c_str(),
+      std::fprintf(stderr, "saltpan sweep: error: there is no sweep '%s' in '%s'; it has %s\n", o.sweep.c_str(),
                    o.file.c_str(), names.c_str());
     return Usage;
   }
@@ -254,7 +255,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   // The table of this shard's points.
   sweep::Table table;
   table.sweep = chosen->name;
-  table.version = BRINE_VERSION;
+  table.version = SALTPAN_VERSION;
   table.modelHash = modelHash(c.program);
   table.design = plan.design;
   for (size_t a = 0; a < plan.parameters.size(); ++a)
@@ -268,13 +269,13 @@ int sweepCommand(const std::vector<std::string> &args) {
                        : o.engine == "interpreter" ? SweepEngine::Interpreter : SweepEngine::Batched;
   LaneCompiler compile;
   int lanes = o.lanes;
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   if (engine != SweepEngine::Interpreter) {
     std::string jitError;
     jit = JIT::create(jitError);
     if (!jit) {
-      std::fprintf(stderr, "brine sweep: internal error: the JIT failed: %s\n", jitError.c_str());
+      std::fprintf(stderr, "saltpan sweep: internal error: the JIT failed: %s\n", jitError.c_str());
       return Internal;
     }
     if (lanes > jit->nativeLanes())
@@ -289,7 +290,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   SweepEvaluator evaluator(c, plan, engine, compile, lanes, threads);
   std::string error;
   if (!evaluator.ready(error)) {
-    std::fprintf(stderr, "brine sweep: internal error: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan sweep: internal error: %s\n", error.c_str());
     return Internal;
   }
   table.engine = evaluator.description();
@@ -314,12 +315,12 @@ int sweepCommand(const std::vector<std::string> &args) {
     evaluator.evaluate(global, out, worker);
   };
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
-    std::fprintf(stderr, "brine sweep: error: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan sweep: error: %s\n", error.c_str());
     return sweep::cannotWriteJournal(error) ? CannotWrite : Usage;
   }
 
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
-    std::fprintf(stderr, "brine sweep: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan sweep: %s\n", error.c_str());
     std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
     return CannotWrite;
   }
@@ -327,4 +328,4 @@ int sweepCommand(const std::vector<std::string> &args) {
   return Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

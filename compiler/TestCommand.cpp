@@ -1,11 +1,11 @@
-// TestCommand.cpp - `brine test`: finds specs with expectations, measures every one (in
+// TestCommand.cpp - `saltpan test`: finds specs with expectations, measures every one (in
 // parallel across files), reports measured vs expected, and writes JUnit XML and JSON.
 #include "Commands.h"
 
 #include "Expect.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
 
@@ -16,19 +16,19 @@
 #include <nlohmann/json.hpp>
 #include <thread>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
-namespace brine::cli {
+namespace saltpan::cli {
 
 namespace {
 
 namespace fs = std::filesystem;
 
-const char *testHelp = R"(usage: brine test [options] PATH...
+const char *testHelp = R"(usage: saltpan test [options] PATH...
 
-Finds every .brine file under the PATHs (files starting with '_' are helpers and are skipped),
+Finds every .saltpan file under the PATHs (files starting with '_' are helpers and are skipped),
 checks each, and measures each of its expectations:
 
   expect reversal(K, soma) == -91.49 mV within 0.01 mV source "Hille 2001, Table 1.1"
@@ -49,7 +49,7 @@ options:
 exit status: 0 every expectation passed, 1 some failed, 64 bad usage, 65 a spec has errors,
              70 internal fault, 73 an output file could not be written
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 struct FileResult {
@@ -67,7 +67,7 @@ std::vector<std::string> discover(const std::vector<std::string> &paths, std::st
     std::error_code ec;
     if (fs::is_directory(p, ec)) {
       for (auto &entry : fs::recursive_directory_iterator(p, ec))
-        if (entry.is_regular_file() && entry.path().extension() == ".brine" &&
+        if (entry.is_regular_file() && entry.path().extension() == ".saltpan" &&
             entry.path().filename().string()[0] != '_')
           files.push_back(entry.path().lexically_normal().string());
     } else if (fs::is_regular_file(p, ec)) {
@@ -96,7 +96,7 @@ void runFile(FileResult &f, bool jit) {
     return;
   f.hash = modelHash(c.program);
   KernelCompiler compile;
-#ifdef BRINE_HAVE_JIT
+#ifdef SALTPAN_HAVE_JIT
   std::shared_ptr<JIT> engine;
   if (jit)
     compile = [&engine](const ir::Kernel &k, std::string &error) -> KernelFn {
@@ -138,36 +138,36 @@ int testCommand(const std::vector<std::string> &args) {
       std::fputs(testHelp, stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
     } else if (value("--junit", junit) || value("--json", jsonPath)) {
     } else if (value("--engine", engine)) {
       if (engine != "jit" && engine != "interpreter") {
-        std::fprintf(stderr, "brine: --engine must be 'jit' or 'interpreter'\n\n%s", testHelp);
+        std::fprintf(stderr, "saltpan: --engine must be 'jit' or 'interpreter'\n\n%s", testHelp);
         return Usage;
       }
     } else if (value("--jobs", v)) {
       int n = std::atoi(v.c_str());
       if (n < 1) {
-        std::fprintf(stderr, "brine: --jobs needs a positive number\n\n%s", testHelp);
+        std::fprintf(stderr, "saltpan: --jobs needs a positive number\n\n%s", testHelp);
         return Usage;
       }
       jobs = static_cast<unsigned>(n);
     } else if (a.size() > 1 && a[0] == '-') {
-      std::fprintf(stderr, "brine: unknown option '%s'\n\n%s", a.c_str(), testHelp);
+      std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), testHelp);
       return Usage;
     } else {
       paths.push_back(a);
     }
   }
   if (paths.empty()) {
-    std::fprintf(stderr, "brine: no path given\n\n%s", testHelp);
+    std::fprintf(stderr, "saltpan: no path given\n\n%s", testHelp);
     return Usage;
   }
   std::string error;
   std::vector<std::string> files = discover(paths, error);
   if (!error.empty()) {
-    std::fprintf(stderr, "brine: error: %s\n", error.c_str());
+    std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
     return Usage;
   }
   std::vector<FileResult> results(files.size());
@@ -199,7 +199,8 @@ int testCommand(const std::vector<std::string> &args) {
     for (const ExpectResult &r : f.results) {
       (r.passed ? passed : failed)++;
       out += std::string("  ") + (r.passed ? "PASS" : "FAIL") + "  line " + std::to_string(r.decl->range.begin.line) +
-             "  " + r.decl->text + ": measured " + r.measuredText + (r.expectedText.empty() ? "" : "; expected " + r.expectedText);
+             "  " + r.decl->text + ": measured " + r.measuredText +
+             (r.expectedText.empty() ? "" : "; expected " + r.expectedText);
       if (!r.decl->source.empty())
         out += "  [" + r.decl->source + "]";
       out += "\n";
@@ -212,7 +213,7 @@ int testCommand(const std::vector<std::string> &args) {
   std::fputs(out.c_str(), stdout);
 
   if (!junit.empty()) {
-    std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"brine\" tests=\"" +
+    std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"saltpan\" tests=\"" +
                       std::to_string(passed + failed) + "\" failures=\"" + std::to_string(failed) + "\" errors=\"" +
                       std::to_string(broken) + "\">\n";
     for (const FileResult &f : results) {
@@ -225,7 +226,7 @@ int testCommand(const std::vector<std::string> &args) {
              "\" failures=\"" + std::to_string(fails) + "\" errors=\"" + (f.specErrors ? "1" : "0") + "\">\n";
       if (!f.hash.empty())
         xml += "    <properties>\n      <property name=\"model_hash\" value=\"" + xmlEscape(f.hash) +
-               "\"/>\n      <property name=\"brine_version\" value=\"" BRINE_VERSION "\"/>\n    </properties>\n";
+               "\"/>\n      <property name=\"saltpan_version\" value=\"" SALTPAN_VERSION "\"/>\n    </properties>\n";
       if (f.specErrors)
         xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"check\">\n      <error message=\"the spec has errors\">" +
                xmlEscape(f.diagnostics) + "</error>\n    </testcase>\n";
@@ -244,33 +245,34 @@ int testCommand(const std::vector<std::string> &args) {
     }
     xml += "</testsuites>\n";
     if (!writeFileAtomically(junit, xml, error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
   }
   if (!jsonPath.empty()) {
     nlohmann::ordered_json doc;
-    doc["tool"] = "brine";
-    doc["version"] = BRINE_VERSION;
-    doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+    doc["tool"] = "saltpan";
+    doc["version"] = SALTPAN_VERSION;
+    doc["caution"] = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
     doc["passed"] = passed;
     doc["failed"] = failed;
     doc["files_with_errors"] = broken;
     nlohmann::ordered_json list = nlohmann::ordered_json::array();
     for (const FileResult &f : results)
       for (const ExpectResult &r : f.results)
-        list.push_back({{"file", f.path},
-                        {"model_hash", f.hash},
-                        {"line", r.decl->range.begin.line},
-                        {"expectation", r.decl->text},
-                        {"passed", r.passed},
-                        {"measured", r.measuredText},
-                        {"measured_si", r.measured ? nlohmann::ordered_json(*r.measured) : nlohmann::ordered_json(nullptr)},
-                        {"expected", r.expectedText},
-                        {"source", r.decl->source}});
+        list.push_back(
+            {{"file", f.path},
+             {"model_hash", f.hash},
+             {"line", r.decl->range.begin.line},
+             {"expectation", r.decl->text},
+             {"passed", r.passed},
+             {"measured", r.measuredText},
+             {"measured_si", r.measured ? nlohmann::ordered_json(*r.measured) : nlohmann::ordered_json(nullptr)},
+             {"expected", r.expectedText},
+             {"source", r.decl->source}});
     doc["expectations"] = list;
     if (!writeFileAtomically(jsonPath, doc.dump(2) + "\n", error)) {
-      std::fprintf(stderr, "brine: %s\n", error.c_str());
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
   }
@@ -279,4 +281,4 @@ int testCommand(const std::vector<std::string> &args) {
   return failed ? ExpectationsFailed : Ok;
 }
 
-} // namespace brine::cli
+} // namespace saltpan::cli

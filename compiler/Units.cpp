@@ -6,7 +6,7 @@
 #include <utility>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 Dimension Dimension::base(Base b, int power) {
   Dimension d;
@@ -247,4 +247,4 @@ std::string describeDimension(const Dimension &d) {
   return "a quantity in " + formatDimension(d);
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -9,7 +9,7 @@
 #include <string>
 #include <string_view>
 
-namespace brine {
+namespace saltpan {
 
 /// Exponents over the SI base dimensions used in membrane models.
 class Dimension {
@@ -75,4 +75,4 @@ std::string describeDimension(const Dimension &d);
 /// SI form using V, A, s, m, K, mol: "V·s⁻¹", "m³·mol⁻¹", "1".
 std::string formatDimension(const Dimension &d);
 
-} // namespace brine
+} // namespace saltpan

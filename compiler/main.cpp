@@ -1,4 +1,4 @@
-// main.cpp - the brine command line: dispatches to a subcommand.
+// main.cpp - the saltpan command line: dispatches to a subcommand.
 #include "Commands.h"
 
 #include <cstdio>
@@ -6,15 +6,15 @@
 #include <string>
 #include <vector>
 
-#ifndef BRINE_VERSION
-#define BRINE_VERSION "unknown"
+#ifndef SALTPAN_VERSION
+#define SALTPAN_VERSION "unknown"
 #endif
 
 namespace {
 
-const char *usage = R"(brine - checked specs of biophysical membrane models
+const char *usage = R"(saltpan - checked specs of biophysical membrane models
 
-usage: brine <command> [options] FILE...
+usage: saltpan <command> [options] FILE...
 
 commands:
   check FILE...   check specs for syntax, units, charge and physical plausibility
@@ -32,14 +32,14 @@ commands:
   help [COMMAND]  show this help, or a command's help
 
 options:
-  --help          show help (also after a command: brine check --help)
+  --help          show help (also after a command: saltpan check --help)
   --version       print the version
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors (or a run failed), 70 internal fault,
-             73 an output file could not be written; 1 from `brine test` when expectations failed
-             and from `brine fmt --check` when a file is not in canonical layout
+             73 an output file could not be written; 1 from `saltpan test` when expectations failed
+             and from `saltpan fmt --check` when a file is not in canonical layout
 
-brine is a research modelling tool; it is not for clinical or diagnostic decisions.
+saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
 } // namespace
@@ -49,57 +49,57 @@ int main(int argc, char **argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     if (args.empty()) {
       std::fputs(usage, stderr);
-      return brine::cli::Usage;
+      return saltpan::cli::Usage;
     }
     std::string command = args.front();
     std::vector<std::string> rest(args.begin() + 1, args.end());
     if (command == "--help" || command == "-h") {
       std::fputs(usage, stdout);
-      return brine::cli::Ok;
+      return saltpan::cli::Ok;
     }
     if (command == "--version") {
-      std::printf("brine %s\n", BRINE_VERSION);
-      return brine::cli::Ok;
+      std::printf("saltpan %s\n", SALTPAN_VERSION);
+      return saltpan::cli::Ok;
     }
     if (command == "help") {
       if (rest.empty()) {
         std::fputs(usage, stdout);
-        return brine::cli::Ok;
+        return saltpan::cli::Ok;
       }
       command = rest.front();
       rest = {"--help"};
     }
     if (command == "check")
-      return brine::cli::checkCommand(rest);
+      return saltpan::cli::checkCommand(rest);
     if (command == "show")
-      return brine::cli::showCommand(rest);
+      return saltpan::cli::showCommand(rest);
     if (command == "run")
-      return brine::cli::runCommand(rest);
+      return saltpan::cli::runCommand(rest);
     if (command == "test")
-      return brine::cli::testCommand(rest);
+      return saltpan::cli::testCommand(rest);
     if (command == "snapshot")
-      return brine::cli::snapshotCommand(rest);
+      return saltpan::cli::snapshotCommand(rest);
     if (command == "rest")
-      return brine::cli::restCommand(rest);
+      return saltpan::cli::restCommand(rest);
     if (command == "fmt")
-      return brine::cli::fmtCommand(rest);
+      return saltpan::cli::fmtCommand(rest);
     if (command == "hash")
-      return brine::cli::hashCommand(rest);
+      return saltpan::cli::hashCommand(rest);
     if (command == "methods")
-      return brine::cli::methodsCommand(rest);
+      return saltpan::cli::methodsCommand(rest);
     if (command == "sweep")
-      return brine::cli::sweepCommand(rest);
+      return saltpan::cli::sweepCommand(rest);
     if (command == "merge")
-      return brine::cli::mergeCommand(rest);
+      return saltpan::cli::mergeCommand(rest);
     if (command == "build")
-      return brine::cli::buildCommand(rest);
-    std::fprintf(stderr, "brine: unknown command '%s'\n\n%s", command.c_str(), usage);
-    return brine::cli::Usage;
+      return saltpan::cli::buildCommand(rest);
+    std::fprintf(stderr, "saltpan: unknown command '%s'\n\n%s", command.c_str(), usage);
+    return saltpan::cli::Usage;
   } catch (const std::exception &e) {
-    std::fprintf(stderr, "brine: internal error: %s\n", e.what());
-    return brine::cli::Internal;
+    std::fprintf(stderr, "saltpan: internal error: %s\n", e.what());
+    return saltpan::cli::Internal;
   } catch (...) {
-    std::fprintf(stderr, "brine: internal error\n");
-    return brine::cli::Internal;
+    std::fprintf(stderr, "saltpan: internal error\n");
+    return saltpan::cli::Internal;
   }
 }

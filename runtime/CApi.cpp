@@ -1,9 +1,9 @@
-// CApi.cpp - brine_model.h: a built model stepped from C, one fixed step at a time.
+// CApi.cpp - saltpan_model.h: a built model stepped from C, one fixed step at a time.
 //
-// Exponential Euler runs the fused step kernel (Fuse.h) exactly as `brine run` does, so the
+// Exponential Euler runs the fused step kernel (Fuse.h) exactly as `saltpan run` does, so the
 // states agree with its output bit for bit; RK4, and exponential Euler under a voltage clamp,
 // follow Simulate.cpp's fixed-step loop (evaluate, hold clamps, step).
-#include "brine_model.h"
+#include "saltpan_model.h"
 
 #include "Fuse.h"
 #include "Simulate.h"
@@ -16,7 +16,7 @@
 
 namespace {
 
-using namespace brine;
+using namespace saltpan;
 
 constexpr double maxPotential = 2.0; // volts, as in Simulate.cpp
 
@@ -35,7 +35,7 @@ const ModelBundle *bundle() {
 
 } // namespace
 
-struct brine_model {
+struct saltpan_model {
   ir::Model model;
   std::vector<double> params, y, out, buffer;
   std::vector<double> k1, k2, k3, k4, tmp, scratch;
@@ -62,7 +62,7 @@ struct brine_model {
       evaluate(y.data(), t, out.data());
   }
 
-  // A state as `brine run` records it at the current time: clamps already applied.
+  // A state as `saltpan run` records it at the current time: clamps already applied.
   void settle() {
     if (!fused) {
       evaluate(y.data(), time(), out.data());
@@ -162,7 +162,7 @@ struct brine_model {
 namespace {
 
 // Every entry point catches: no C++ exception may cross into C.
-template <class F> auto guarded(brine_model *m, F body, decltype(body()) onFailure) {
+template <class F> auto guarded(saltpan_model *m, F body, decltype(body()) onFailure) {
   try {
     return body();
   } catch (const std::exception &e) {
@@ -173,9 +173,9 @@ template <class F> auto guarded(brine_model *m, F body, decltype(body()) onFailu
   return onFailure;
 }
 
-int parameterIndex(const brine_model *m, const char *name) { return name ? m->model.findParam(name) : -1; }
+int parameterIndex(const saltpan_model *m, const char *name) { return name ? m->model.findParam(name) : -1; }
 
-int stateIndex(const brine_model *m, const char *name) {
+int stateIndex(const saltpan_model *m, const char *name) {
   if (!name)
     return -1;
   for (size_t i = 0; i < m->model.stateNames.size(); ++i)
@@ -184,8 +184,8 @@ int stateIndex(const brine_model *m, const char *name) {
   return -1;
 }
 
-int refuse(const brine_model *m, std::string message) {
-  const_cast<brine_model *>(m)->error = std::move(message); // the message is not model state
+int refuse(const saltpan_model *m, std::string message) {
+  const_cast<saltpan_model *>(m)->error = std::move(message); // the message is not model state
   return -1;
 }
 
@@ -193,38 +193,38 @@ int refuse(const brine_model *m, std::string message) {
 
 extern "C" {
 
-const char *brine_model_name(void) {
+const char *saltpan_model_name(void) {
   const ModelBundle *b = bundle();
   return b && !b->protocols.empty() ? b->protocols.front().name.c_str() : nullptr;
 }
 
-const char *brine_model_hash(void) {
+const char *saltpan_model_hash(void) {
   const ModelBundle *b = bundle();
   return b ? b->modelHash.c_str() : nullptr;
 }
 
-const char *brine_model_tool_version(void) {
+const char *saltpan_model_tool_version(void) {
   const ModelBundle *b = bundle();
   return b ? b->toolVersion.c_str() : nullptr;
 }
 
-int brine_model_protocol_count(void) {
+int saltpan_model_protocol_count(void) {
   const ModelBundle *b = bundle();
   return b ? static_cast<int>(b->protocols.size()) : -1;
 }
 
-const char *brine_model_protocol_name(int index) {
+const char *saltpan_model_protocol_name(int index) {
   const ModelBundle *b = bundle();
   if (!b || index < 0 || static_cast<size_t>(index) >= b->protocols.size())
     return nullptr;
   return b->protocols[index].protocol.name.c_str();
 }
 
-brine_model *brine_model_create(const char *protocol) {
+saltpan_model *saltpan_model_create(const char *protocol) {
   createError.clear();
   return guarded(
       nullptr,
-      [&]() -> brine_model * {
+      [&]() -> saltpan_model * {
         const ModelBundle *b = bundle();
         if (!b)
           return nullptr;
@@ -249,10 +249,10 @@ brine_model *brine_model_create(const char *protocol) {
                         "; the C interface steps fixed-step methods only (exponential_euler, rk4)";
           return nullptr;
         }
-        auto m = std::make_unique<brine_model>();
+        auto m = std::make_unique<saltpan_model>();
         m->model = *chosen;
         std::string error;
-        // The same kernel `brine run` picks: the fused step when there is one.
+        // The same kernel `saltpan run` picks: the fused step when there is one.
         std::optional<ir::Kernel> fusedKernel;
         if (method == ir::Method::ExponentialEuler)
           fusedKernel = fuseExponentialEuler(m->model, m->model.protocol.step);
@@ -278,13 +278,13 @@ brine_model *brine_model_create(const char *protocol) {
       nullptr);
 }
 
-void brine_model_destroy(brine_model *model) { delete model; }
+void saltpan_model_destroy(saltpan_model *model) { delete model; }
 
-const char *brine_model_last_error(const brine_model *model) {
+const char *saltpan_model_last_error(const saltpan_model *model) {
   return model ? model->error.c_str() : createError.c_str();
 }
 
-int brine_model_reset(brine_model *model) {
+int saltpan_model_reset(saltpan_model *model) {
   if (!model)
     return -1;
   return guarded(
@@ -301,21 +301,21 @@ int brine_model_reset(brine_model *model) {
       -1);
 }
 
-int brine_model_parameter_count(const brine_model *model) {
+int saltpan_model_parameter_count(const saltpan_model *model) {
   return model ? static_cast<int>(model->params.size()) : -1;
 }
 
-const char *brine_model_parameter_name(const brine_model *model, int index) {
+const char *saltpan_model_parameter_name(const saltpan_model *model, int index) {
   if (!model || index < 0 || static_cast<size_t>(index) >= model->params.size())
     return nullptr;
   return model->model.paramNames[index].c_str();
 }
 
-int brine_model_parameter_index(const brine_model *model, const char *name) {
+int saltpan_model_parameter_index(const saltpan_model *model, const char *name) {
   return model ? parameterIndex(model, name) : -1;
 }
 
-int brine_model_get_parameter(const brine_model *model, const char *name, double *si_value) {
+int saltpan_model_get_parameter(const saltpan_model *model, const char *name, double *si_value) {
   if (!model || !si_value)
     return -1;
   int i = parameterIndex(model, name);
@@ -325,7 +325,7 @@ int brine_model_get_parameter(const brine_model *model, const char *name, double
   return 0;
 }
 
-int brine_model_set_parameter(brine_model *model, const char *name, double si_value) {
+int saltpan_model_set_parameter(saltpan_model *model, const char *name, double si_value) {
   if (!model)
     return -1;
   int i = parameterIndex(model, name);
@@ -343,23 +343,25 @@ int brine_model_set_parameter(brine_model *model, const char *name, double si_va
       -1);
 }
 
-int brine_model_state_count(const brine_model *model) { return model ? static_cast<int>(model->y.size()) : -1; }
+int saltpan_model_state_count(const saltpan_model *model) { return model ? static_cast<int>(model->y.size()) : -1; }
 
-const char *brine_model_state_name(const brine_model *model, int index) {
+const char *saltpan_model_state_name(const saltpan_model *model, int index) {
   if (!model || index < 0 || static_cast<size_t>(index) >= model->y.size())
     return nullptr;
   return model->model.stateNames[index].c_str();
 }
 
-int brine_model_state_index(const brine_model *model, const char *name) { return model ? stateIndex(model, name) : -1; }
+int saltpan_model_state_index(const saltpan_model *model, const char *name) {
+  return model ? stateIndex(model, name) : -1;
+}
 
-double brine_model_state(const brine_model *model, int index) {
+double saltpan_model_state(const saltpan_model *model, int index) {
   if (!model || index < 0 || static_cast<size_t>(index) >= model->y.size())
     return NAN;
   return model->y[index];
 }
 
-int brine_model_get_state(const brine_model *model, const char *name, double *si_value) {
+int saltpan_model_get_state(const saltpan_model *model, const char *name, double *si_value) {
   if (!model || !si_value)
     return -1;
   int i = stateIndex(model, name);
@@ -369,11 +371,11 @@ int brine_model_get_state(const brine_model *model, const char *name, double *si
   return 0;
 }
 
-double brine_model_time(const brine_model *model) { return model ? model->time() : NAN; }
+double saltpan_model_time(const saltpan_model *model) { return model ? model->time() : NAN; }
 
-double brine_model_step_size(const brine_model *model) { return model ? model->model.protocol.step : NAN; }
+double saltpan_model_step_size(const saltpan_model *model) { return model ? model->model.protocol.step : NAN; }
 
-int brine_model_step(brine_model *model, long count) {
+int saltpan_model_step(saltpan_model *model, long count) {
   if (!model)
     return -1;
   if (count < 0)
@@ -391,13 +393,13 @@ int brine_model_step(brine_model *model, long count) {
       -1);
 }
 
-int brine_model_advance(brine_model *model, double seconds) {
+int saltpan_model_advance(saltpan_model *model, double seconds) {
   if (!model)
     return -1;
   double ratio = seconds / model->model.protocol.step;
   if (!std::isfinite(ratio) || ratio < 0 || std::fabs(ratio - std::round(ratio)) > 1e-9 * std::max(ratio, 1.0))
     return refuse(model, "advance needs a time that is a whole, non-negative number of steps");
-  return brine_model_step(model, std::lround(ratio));
+  return saltpan_model_step(model, std::lround(ratio));
 }
 
 } // extern "C"

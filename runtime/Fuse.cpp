@@ -3,7 +3,7 @@
 
 #include <cmath>
 
-namespace brine {
+namespace saltpan {
 
 using ir::NodeId;
 using ir::Op;
@@ -151,4 +151,4 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
   return k;
 }
 
-} // namespace brine
+} // namespace saltpan

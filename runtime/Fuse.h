@@ -9,7 +9,7 @@
 
 #include <optional>
 
-namespace brine {
+namespace saltpan {
 
 /// The fused step kernel, or nullopt when the model needs the general stepper (a voltage
 /// clamp, whose command replaces V, is handled there).
@@ -21,4 +21,4 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt
 /// t + dt/2 twice and t + dt), in the same output layout; sweeps step lanes with it.
 std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &model, double dt, bool withOutputs = true);
 
-} // namespace brine
+} // namespace saltpan

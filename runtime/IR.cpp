@@ -5,7 +5,7 @@
 #include <cstring>
 #include <sstream>
 
-namespace brine::ir {
+namespace saltpan::ir {
 
 const char *opName(Op op) {
   switch (op) {
@@ -110,9 +110,9 @@ int Model::findParam(const std::string &wanted) const {
   return -1;
 }
 
-int Model::findRecordable(const std::string &wanted) const {
-  for (size_t i = 0; i < recordables.size(); ++i)
-    if (recordables[i].name == wanted)
+int Model::findProbe(const std::string &wanted) const {
+  for (size_t i = 0; i < probes.size(); ++i)
+    if (probes[i].name == wanted)
       return static_cast<int>(i);
   return -1;
 }
@@ -134,8 +134,8 @@ std::string dump(const Model &m) {
         << num(c.area) << " G=out" << c.gOutput << " GE=out" << c.geOutput << " Iother=out" << c.iOtherOutput << "\n";
   for (const Gate &g : m.gates)
     out << "gate " << g.name << " y" << g.state << " inf=out" << g.infOutput << " tau=out" << g.tauOutput << "\n";
-  for (const Recordable &r : m.recordables)
-    out << "recordable " << r.name << " [" << r.unit << "] " << (r.state >= 0 ? "y" + std::to_string(r.state)
+  for (const Probe &r : m.probes)
+    out << "probe " << r.name << " [" << r.unit << "] " << (r.state >= 0 ? "y" + std::to_string(r.state)
                                                                              : "out" + std::to_string(r.output))
         << "\n";
   const Protocol &p = m.protocol;
@@ -161,4 +161,4 @@ std::string dump(const Model &m) {
   return out.str();
 }
 
-} // namespace brine::ir
+} // namespace saltpan::ir

@@ -14,7 +14,7 @@
 #include <unordered_map>
 #include <vector>
 
-namespace brine::ir {
+namespace saltpan::ir {
 
 enum class Op : uint8_t {
 #define IR_OP(Name, Arity) Name,
@@ -95,13 +95,13 @@ struct Pool {
 };
 
 /// A quantity that can be recorded: a state or a kernel output.
-struct Recordable {
+struct Probe {
   std::string name; // "soma.V", "soma.KLeak.current", "soma.NaSpike.m"
   std::string unit; // display unit, e.g. "mV", "uA/cm2"
   double scale = 1; // SI value * scale = value in the display unit
   int state = -1;   // one of state / output is set
   int output = -1;
-  bool mechanismCurrent = false; // the current of one channel or pump (not a per-ion sum)
+  bool entryCurrent = false; // the current of one channel or pump (not a per-ion sum)
 };
 
 enum class Method { ExponentialEuler, RungeKutta4, DormandPrince, Rosenbrock };
@@ -115,7 +115,7 @@ struct Protocol {
   double duration = 0.1;   // s
   double every = 1e-4;     // s between recorded samples
   double rtol = 1e-8, atol = 1e-10; // adaptive methods
-  std::vector<int> record; // indices into Model::recordables
+  std::vector<int> record; // indices into Model::probes
 };
 
 struct Model {
@@ -129,15 +129,15 @@ struct Model {
   std::vector<Compartment> compartments;
   std::vector<Gate> gates;
   std::vector<Pool> pools;
-  std::vector<Recordable> recordables;
+  std::vector<Probe> probes;
   Protocol protocol; // the one this model was lowered for (stimuli live in the kernel)
   Kernel kernel;
 
   int findParam(const std::string &name) const;
-  int findRecordable(const std::string &name) const;
+  int findProbe(const std::string &name) const;
 };
 
-/// Text form of the IR (`brine check --emit ir`), stable enough to diff.
+/// Text form of the IR (`saltpan check --emit ir`), stable enough to diff.
 std::string dump(const Model &m);
 
-} // namespace brine::ir
+} // namespace saltpan::ir

@@ -3,7 +3,7 @@
 
 #include <cmath>
 
-namespace brine {
+namespace saltpan {
 
 using ir::Op;
 
@@ -51,4 +51,4 @@ void Interpreter::run(const double *y, const double *p, double t, double *out) {
     out[i] = v[kernel_.outputs[i]];
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -7,7 +7,7 @@
 
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 class Interpreter {
 public:
@@ -20,4 +20,4 @@ private:
   std::vector<double> values_;
 };
 
-} // namespace brine
+} // namespace saltpan

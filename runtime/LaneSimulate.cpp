@@ -4,7 +4,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace brine {
+namespace saltpan {
 
 LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>> &params, const LaneKernels &kernels) {
   const size_t lanes = static_cast<size_t>(kernels.lanes);
@@ -15,8 +15,8 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
   run.traces.resize(lanes);
   for (Trace &t : run.traces)
     for (int r : proto.record) {
-      t.names.push_back(m.recordables[r].name);
-      t.units.push_back(m.recordables[r].unit);
+      t.names.push_back(m.probes[r].name);
+      t.units.push_back(m.probes[r].unit);
     }
   // Interleave: slot-major, lane-minor.
   std::vector<double> y(n * lanes), p(m.params.size() * lanes), buffer((n + outputs) * lanes);
@@ -29,7 +29,7 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
   // Recording from the state alone lets every step use the smaller state-only kernel.
   bool statesOnly = kernels.stateOnly != nullptr;
   for (int r : proto.record)
-    statesOnly = statesOnly && m.recordables[r].state >= 0;
+    statesOnly = statesOnly && m.probes[r].state >= 0;
 
   double dt = proto.step;
   long steps = std::lround(proto.duration / dt);
@@ -50,7 +50,7 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
         Trace &trace = run.traces[l];
         trace.time.push_back(t);
         for (int r : proto.record) {
-          const ir::Recordable &q = m.recordables[r];
+          const ir::Probe &q = m.probes[r];
           double si = q.state >= 0 ? y[static_cast<size_t>(q.state) * lanes + l]
                                    : buffer[(n + static_cast<size_t>(q.output)) * lanes + l];
           trace.values.push_back(si * q.scale);
@@ -72,4 +72,4 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
   return run;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -10,7 +10,7 @@
 
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 struct LaneKernels {
   int lanes = 0;
@@ -29,4 +29,4 @@ struct LaneRun {
 LaneRun simulateLanes(const ir::Model &model, const std::vector<std::vector<double>> &params,
                       const LaneKernels &kernels);
 
-} // namespace brine
+} // namespace saltpan

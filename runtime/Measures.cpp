@@ -4,7 +4,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace brine::measures {
+namespace saltpan::measures {
 
 std::vector<double> spikeTimes(const std::vector<double> &time, const std::vector<double> &values, double threshold) {
   std::vector<double> out;
@@ -54,7 +54,7 @@ std::optional<double> ofTrace(const std::string &name, const std::string &record
     why = "nothing was recorded";
     return std::nullopt;
   }
-  double scale = model.recordables[model.findRecordable(recorded)].scale;
+  double scale = model.probes[model.findProbe(recorded)].scale;
   std::vector<double> values(t.time.size());
   for (size_t i = 0; i < t.time.size(); ++i)
     values[i] = t.at(i, column) / scale; // back to SI
@@ -100,4 +100,4 @@ std::optional<double> ofTrace(const std::string &name, const std::string &record
   return std::nullopt;
 }
 
-} // namespace brine::measures
+} // namespace saltpan::measures

@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-namespace brine::measures {
+namespace saltpan::measures {
 
 /// Times where `values` crosses `threshold` upwards, linearly interpolated between samples.
 std::vector<double> spikeTimes(const std::vector<double> &time, const std::vector<double> &values, double threshold);
@@ -26,4 +26,4 @@ double mean(const std::vector<double> &time, const std::vector<double> &values);
 std::optional<double> ofTrace(const std::string &measure, const std::string &recorded, double argument,
                               const ir::Model &model, const Trace &t, std::string &why);
 
-} // namespace brine::measures
+} // namespace saltpan::measures

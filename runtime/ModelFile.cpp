@@ -5,13 +5,13 @@
 #include <cstring>
 #include <nlohmann/json.hpp>
 
-namespace brine {
+namespace saltpan {
 
 using nlohmann::json;
 
 namespace {
 
-constexpr const char *formatName = "brine-model-bundle 2";
+constexpr const char *formatName = "saltpan-model-bundle 2";
 
 // JSON has no infinities or NaN; a folded constant may be one, so those go as strings.
 json number(double v) {
@@ -122,7 +122,7 @@ ir::Kernel readKernel(const json &j) {
 }
 
 json model(const ir::Model &m) {
-  json compartments = json::array(), gates = json::array(), pools = json::array(), recordables = json::array(),
+  json compartments = json::array(), gates = json::array(), pools = json::array(), probes = json::array(),
        dims = json::array();
   for (const ir::Compartment &c : m.compartments)
     compartments.push_back({{"name", c.name},
@@ -145,13 +145,13 @@ json model(const ir::Model &m) {
                      {"derivative_output", p.derivativeOutput},
                      {"valence", p.valence},
                      {"area_per_volume", number(p.areaPerVolume)}});
-  for (const ir::Recordable &r : m.recordables)
-    recordables.push_back({{"name", r.name},
+  for (const ir::Probe &r : m.probes)
+    probes.push_back({{"name", r.name},
                            {"unit", r.unit},
                            {"scale", number(r.scale)},
                            {"state", r.state},
                            {"output", r.output},
-                           {"mechanism_current", r.mechanismCurrent}});
+                           {"entry_current", r.entryCurrent}});
   for (const Dimension &d : m.paramDims)
     dims.push_back(dimension(d));
   const ir::Protocol &p = m.protocol;
@@ -169,7 +169,7 @@ json model(const ir::Model &m) {
           {"compartments", compartments},
           {"gates", gates},
           {"pools", pools},
-          {"recordables", recordables},
+          {"probes", probes},
           {"protocol", protocol},
           {"kernel", kernel(m.kernel)}};
 }
@@ -197,10 +197,10 @@ ir::Model readModel(const json &j) {
     m.pools.push_back({p.at("name").get<std::string>(), p.at("compartment").get<int>(), p.at("state").get<int>(),
                        p.at("derivative_output").get<int>(), p.at("valence").get<int>(),
                        readNumber(p.at("area_per_volume"))});
-  for (const json &r : j.at("recordables"))
-    m.recordables.push_back({r.at("name").get<std::string>(), r.at("unit").get<std::string>(),
+  for (const json &r : j.at("probes"))
+    m.probes.push_back({r.at("name").get<std::string>(), r.at("unit").get<std::string>(),
                              readNumber(r.at("scale")), r.at("state").get<int>(), r.at("output").get<int>(),
-                             r.at("mechanism_current").get<bool>()});
+                             r.at("entry_current").get<bool>()});
   const json &p = j.at("protocol");
   m.protocol.name = p.at("name").get<std::string>();
   m.protocol.method = readMethod(p.at("method").get<std::string>());
@@ -260,8 +260,8 @@ BundledSweep readSweep(const json &j, const std::vector<ir::Model> &models) {
     BundledSweep::Measure x{readColumn(m.at("column")), protocolIndex(m.at("protocol")),
                             m.at("measure").get<std::string>(), m.at("recorded").get<std::string>(),
                             readNumber(m.at("argument"))};
-    if (models[static_cast<size_t>(x.protocol)].findRecordable(x.recorded) < 0)
-      throw std::runtime_error("sweep '" + s.name + "' reads '" + x.recorded + "', which is not recordable");
+    if (models[static_cast<size_t>(x.protocol)].findProbe(x.recorded) < 0)
+      throw std::runtime_error("sweep '" + s.name + "' reads '" + x.recorded + "', which is not a probe");
     s.measures.push_back(std::move(x));
   }
   for (const json &p : j.at("protocols")) {
@@ -312,14 +312,14 @@ void checkIndices(const ir::Model &m) {
     within(p.state, states, false, "state");
     within(p.derivativeOutput, outputs, false, "output");
   }
-  for (const ir::Recordable &r : m.recordables) {
+  for (const ir::Probe &r : m.probes) {
     within(r.state, states, true, "state");
     within(r.output, outputs, true, "output");
     if ((r.state < 0) == (r.output < 0))
-      throw std::runtime_error("recordable '" + r.name + "' needs exactly one of a state and an output");
+      throw std::runtime_error("probe '" + r.name + "' needs exactly one of a state and an output");
   }
   for (int r : m.protocol.record)
-    within(r, m.recordables.size(), false, "recordable");
+    within(r, m.probes.size(), false, "probe");
 }
 
 } // namespace
@@ -341,7 +341,7 @@ bool readModelBundle(const std::string &text, ModelBundle &bundle, std::string &
   try {
     json doc = json::parse(text);
     if (doc.at("format") != formatName) {
-      error = "not a model bundle of this brine ('" + doc.at("format").dump() + "')";
+      error = "not a model bundle of this saltpan ('" + doc.at("format").dump() + "')";
       return false;
     }
     bundle.toolVersion = doc.at("tool_version").get<std::string>();
@@ -382,4 +382,4 @@ uint64_t kernelFingerprint(const ir::Kernel &kernel) {
   return h;
 }
 
-} // namespace brine
+} // namespace saltpan

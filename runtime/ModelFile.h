@@ -1,8 +1,8 @@
-// ModelFile.h - lowered models as JSON, for the executables and libraries `brine build` writes.
+// ModelFile.h - lowered models as JSON, for the executables and libraries `saltpan build` writes.
 //
 // A bundle holds every protocol's ir::Model (kernel nodes included, so the runtime has sizes,
 // names and an interpreter-checkable kernel) with the model hash and the version that built it,
-// and the spec's sweeps that need only protocol runs, planned (points in SI) by brine.
+// and the spec's sweeps that need only protocol runs, planned (points in SI) by saltpan.
 #pragma once
 #include "IR.h"
 #include "SweepTable.h"
@@ -12,15 +12,15 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 /// A planned sweep: its points and, per measure, what to read from which protocol's run.
 struct BundledSweep {
   struct Measure {
-    sweep::Column column;  // as `brine sweep` heads it
+    sweep::Column column;  // as `saltpan sweep` heads it
     int protocol = 0;      // index into ModelBundle::protocols
     std::string measure;   // spike_count, peak, ...
-    std::string recorded;  // the recordable it reads
+    std::string recorded;  // the probe it reads
     double argument = NAN; // the threshold or time (SI); NaN when not given
   };
   struct Protocol {
@@ -35,7 +35,7 @@ struct BundledSweep {
 };
 
 struct ModelBundle {
-  std::string toolVersion;          // brine's version at build time
+  std::string toolVersion;          // saltpan's version at build time
   std::string modelHash;            // "sha256:..."
   std::string source;               // the spec's file name
   std::vector<ir::Model> protocols; // in declaration order
@@ -51,4 +51,4 @@ bool readModelBundle(const std::string &text, ModelBundle &bundle, std::string &
 /// the native code compiled for it, so a runtime can find the code of a kernel it rebuilt.
 uint64_t kernelFingerprint(const ir::Kernel &kernel);
 
-} // namespace brine
+} // namespace saltpan

@@ -4,7 +4,7 @@
 #include <cmath>
 #include <cstdlib>
 
-namespace brine {
+namespace saltpan {
 
 std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &text) {
   const char *begin = text.c_str();
@@ -95,4 +95,4 @@ bool applyTiming(ir::Protocol &protocol, const std::string &duration, const std:
   return true;
 }
 
-} // namespace brine
+} // namespace saltpan

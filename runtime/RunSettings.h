@@ -1,4 +1,4 @@
-// RunSettings.h - the run options shared by `brine run` and the executables `brine build`
+// RunSettings.h - the run options shared by `saltpan run` and the executables `saltpan build`
 // writes: quantities with units ("100 mS/cm2"), --set NAME=VALUE, --duration and --every.
 //
 // One implementation, so both accept the same text and refuse it with the same messages.
@@ -11,7 +11,7 @@
 #include <utility>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 
 /// "100 mS/cm2", "50ms", "-20 mV" -> SI value and dimension; nullopt if it cannot be read.
 std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &text);
@@ -25,4 +25,4 @@ bool applyParameterSetting(const ir::Model &model, const std::string &assignment
 /// checks that a fixed-step recording interval is a whole number of steps.
 bool applyTiming(ir::Protocol &protocol, const std::string &duration, const std::string &every, std::string &error);
 
-} // namespace brine
+} // namespace saltpan

@@ -1,11 +1,11 @@
-// Sha256.h - a small SHA-256 (FIPS 180-4) for `brine hash` and sweep hashes; no external crypto library.
+// Sha256.h - a small SHA-256 (FIPS 180-4) for `saltpan hash` and sweep hashes; no external crypto library.
 #pragma once
 #include <array>
 #include <cstdint>
 #include <string>
 #include <string_view>
 
-namespace brine {
+namespace saltpan {
 
 /// Incremental SHA-256: update() any number of times, then digest() once.
 class Sha256 {
@@ -28,4 +28,4 @@ std::string sha256Hex(std::string_view bytes);
 /// 32 digest bytes as 64 lowercase hex digits.
 std::string toHex(const std::array<uint8_t, 32> &digest);
 
-} // namespace brine
+} // namespace saltpan

@@ -4,7 +4,7 @@
 #include <cstdlib>
 #include <optional>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 namespace {
 
@@ -89,4 +89,4 @@ bool parseShard(const std::string &text, ShardChoice &shard, std::string &error)
   return true;
 }
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -3,7 +3,7 @@
 #pragma once
 #include <string>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 struct ShardChoice {
   int index = 0; // from 0
@@ -17,4 +17,4 @@ struct ShardChoice {
 /// say which shard this is.
 bool parseShard(const std::string &text, ShardChoice &shard, std::string &error);
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -6,7 +6,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace brine {
+namespace saltpan {
 
 void KernelRef::operator()(const double *y, const double *p, double t, double *out) const {
   if (native)
@@ -58,8 +58,8 @@ public:
         out_(m.kernel.outputs.size()) {
     const ir::Protocol &proto = m.protocol;
     for (int r : proto.record) {
-      trace_.names.push_back(m.recordables[r].name);
-      trace_.units.push_back(m.recordables[r].unit);
+      trace_.names.push_back(m.probes[r].name);
+      trace_.units.push_back(m.probes[r].unit);
     }
   }
 
@@ -162,7 +162,7 @@ private:
   void record(double t) {
     trace_.time.push_back(t);
     for (int r : m_.protocol.record) {
-      const ir::Recordable &q = m_.recordables[r];
+      const ir::Probe &q = m_.probes[r];
       double si = q.state >= 0 ? y_[q.state] : out_[q.output];
       trace_.values.push_back(si * q.scale);
     }
@@ -463,7 +463,8 @@ private:
       double target = std::min(recordIndex * proto.every, proto.duration);
       bool hitsTarget = t + h >= target;
       double step = hitsTarget ? target - t : h;
-      auto stage = [&](std::vector<double> &k, double ct, std::initializer_list<std::pair<double, const double *>> terms) {
+      auto stage = [&](std::vector<double> &k, double ct,
+                       std::initializer_list<std::pair<double, const double *>> terms) {
         for (size_t i = 0; i < n; ++i) {
           double s = y_[i];
           for (auto &[a, kj] : terms)
@@ -508,4 +509,4 @@ Trace simulate(const ir::Model &model, const std::vector<double> &params, Kernel
   return Stepper(model, params, kernel, failure, stats ? *stats : local, fused).run();
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-namespace brine {
+namespace saltpan {
 class Interpreter;
 
 using KernelFn = void (*)(const double *y, const double *p, double t, double *out);
@@ -70,4 +70,4 @@ bool healthyState(const ir::Model &model, const double *y, size_t stride, double
 Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel,
                SimulationFailure &failure, SimulationStats *stats = nullptr, FusedStep fused = {});
 
-} // namespace brine
+} // namespace saltpan

@@ -1,5 +1,5 @@
-// Standalone.cpp - main() of the executables `brine build` writes: runs one of the compiled-in
-// protocols with the options of `brine run` and writes the same CSV or JSON bytes, or with
+// Standalone.cpp - main() of the executables `saltpan build` writes: runs one of the compiled-in
+// protocols with the options of `saltpan run` and writes the same CSV or JSON bytes, or with
 // `sweep` first, one of the compiled-in sweeps (StandaloneSweep.cpp).
 #include "Run.h"
 #include "RunSettings.h"
@@ -13,7 +13,7 @@
 #include <string>
 #include <vector>
 
-namespace brine::standalone {
+namespace saltpan::standalone {
 
 bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into) {
   const std::string &a = args[i];
@@ -33,27 +33,27 @@ int usage(const std::string &program, const std::string &message, const std::str
   return Usage;
 }
 
-} // namespace brine::standalone
+} // namespace saltpan::standalone
 
 namespace {
 
-using namespace brine;
-using namespace brine::standalone;
+using namespace saltpan;
+using namespace saltpan::standalone;
 
 std::string program = "model"; // argv[0] without its directory, for messages
 
 std::string helpText(const ModelBundle &b) {
   const ir::Model &first = b.protocols.front();
   std::string text = "usage: " + program + " [options]\n       " + program + " sweep [sweep options]\n\n";
-  text += "Runs the model '" + first.name + "' from " + b.source + "\n(" + b.modelHash + "),\ncompiled by brine " +
+  text += "Runs the model '" + first.name + "' from " + b.source + "\n(" + b.modelHash + "),\ncompiled by saltpan " +
           b.toolVersion +
           " to native code for the CPU it was built on, and writes the recorded\n"
-          "quantities: time first, units in the header. The options are those of `brine run`, and the\n"
-          "output is byte for byte what `brine run` writes for the same options.\n"
+          "quantities: time first, units in the header. The options are those of `saltpan run`, and the\n"
+          "output is byte for byte what `saltpan run` writes for the same options.\n"
           "Conventions: V is inside minus outside; membrane current is positive outward; injected\n"
           "current is positive into the cell.\n"
           "With `sweep` first it runs one of the sweeps below instead and writes what\n"
-          "`brine sweep --engine scalar` writes; `" +
+          "`saltpan sweep --engine scalar` writes; `" +
           program +
           " sweep --help` lists its options.\n\n"
           "options:\n"
@@ -81,7 +81,7 @@ std::string helpText(const ModelBundle &b) {
   text += "\n" + sweepList(b);
   text += "\nexit status: 0 success, 64 bad usage, 65 the simulation failed, 70 internal fault,\n"
           "             73 the output file could not be written\n\n"
-          "brine is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
+          "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
   return text;
 }
 
@@ -112,7 +112,7 @@ int run(const std::vector<std::string> &args) {
       std::fputs(helpText(bundle).c_str(), stdout);
       return Ok;
     } else if (a == "--version") {
-      std::printf("%s: model %s (%s), built by brine %s\n", program.c_str(), bundle.protocols.front().name.c_str(),
+      std::printf("%s: model %s (%s), built by saltpan %s\n", program.c_str(), bundle.protocols.front().name.c_str(),
                   bundle.modelHash.c_str(), bundle.toolVersion.c_str());
       return Ok;
     } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--duration", o.duration) ||
@@ -149,7 +149,7 @@ int run(const std::vector<std::string> &args) {
   if (!applyTiming(model.protocol, o.duration, o.every, error))
     return usage(error);
 
-  // runModel fuses and picks kernels exactly as for `brine run`; each one it asks for is
+  // runModel fuses and picks kernels exactly as for `saltpan run`; each one it asks for is
   // found among the compiled-in kernels by fingerprint.
   KernelCompiler compile = [](const ir::Kernel &k, std::string &e) { return embeddedKernel(k, e); };
   RunOutcome outcome = runModel(model, params, compile);

@@ -5,18 +5,18 @@
 #include <string>
 #include <vector>
 
-namespace brine::standalone {
+namespace saltpan::standalone {
 
 enum ExitCode { Ok = 0, Usage = 64, Failed = 65, Internal = 70, CannotWrite = 73 };
 
-/// "--name=VALUE" or "--name VALUE" at args[i], as brine's own options; advances i past VALUE.
+/// "--name=VALUE" or "--name VALUE" at args[i], as saltpan's own options; advances i past VALUE.
 bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
 /// Prints "PROGRAM: error: MESSAGE" and `hint` (where the options are listed); returns Usage.
 int usage(const std::string &program, const std::string &message, const std::string &hint);
 
-/// `PROGRAM sweep ARGS`: runs a built-in sweep as `brine sweep --engine scalar` would.
+/// `PROGRAM sweep ARGS`: runs a built-in sweep as `saltpan sweep --engine scalar` would.
 int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, const std::string &program);
 /// The lines of the main help that list the built-in sweeps.
 std::string sweepList(const ModelBundle &bundle);
 
-} // namespace brine::standalone
+} // namespace saltpan::standalone

@@ -1,29 +1,29 @@
-// StandaloneModel.cpp - reads the model and kernel table that `brine build` compiled in.
+// StandaloneModel.cpp - reads the model and kernel table that `saltpan build` compiled in.
 #include "StandaloneModel.h"
 
-// Defined by the object file `brine build` emits (hidden, so two models loaded into one
+// Defined by the object file `saltpan build` emits (hidden, so two models loaded into one
 // process do not see each other's).
 extern "C" {
-__attribute__((visibility("hidden"))) extern const char brine_embedded_model[];
-__attribute__((visibility("hidden"))) extern const uint64_t brine_embedded_model_size;
-__attribute__((visibility("hidden"))) extern const brine::EmbeddedKernel brine_embedded_kernels[];
-__attribute__((visibility("hidden"))) extern const uint64_t brine_embedded_kernel_count;
+__attribute__((visibility("hidden"))) extern const char saltpan_embedded_model[];
+__attribute__((visibility("hidden"))) extern const uint64_t saltpan_embedded_model_size;
+__attribute__((visibility("hidden"))) extern const saltpan::EmbeddedKernel saltpan_embedded_kernels[];
+__attribute__((visibility("hidden"))) extern const uint64_t saltpan_embedded_kernel_count;
 }
 
-namespace brine {
+namespace saltpan {
 
 bool loadEmbeddedBundle(ModelBundle &bundle, std::string &error) {
-  std::string text(brine_embedded_model, brine_embedded_model_size);
+  std::string text(saltpan_embedded_model, saltpan_embedded_model_size);
   return readModelBundle(text, bundle, error);
 }
 
 KernelFn embeddedKernel(const ir::Kernel &kernel, std::string &error) {
   uint64_t wanted = kernelFingerprint(kernel);
-  for (uint64_t i = 0; i < brine_embedded_kernel_count; ++i)
-    if (brine_embedded_kernels[i].fingerprint == wanted)
-      return brine_embedded_kernels[i].function;
+  for (uint64_t i = 0; i < saltpan_embedded_kernel_count; ++i)
+    if (saltpan_embedded_kernels[i].fingerprint == wanted)
+      return saltpan_embedded_kernels[i].function;
   error = "no native code was compiled for this kernel (" + std::to_string(kernel.nodes().size()) + " nodes)";
   return nullptr;
 }
 
-} // namespace brine
+} // namespace saltpan

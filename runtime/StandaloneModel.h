@@ -1,6 +1,6 @@
-// StandaloneModel.h - the model compiled into an executable or shared library by `brine build`.
+// StandaloneModel.h - the model compiled into an executable or shared library by `saltpan build`.
 //
-// `brine build` emits an object file (compiler/EmitObject.cpp) that defines the symbols named
+// `saltpan build` emits an object file (compiler/EmitObject.cpp) that defines the symbols named
 // here: the model bundle (ModelFile.h) as JSON text, and a table of the kernels it compiled,
 // each with its fingerprint. The runtime rebuilds the models from the text and finds a
 // kernel's native code by fingerprint, so a kernel it did not expect is an error, never a
@@ -12,7 +12,7 @@
 #include <cstdint>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// One row of the embedded kernel table; laid out as the LLVM struct {i64, ptr}.
 struct EmbeddedKernel {
@@ -20,14 +20,14 @@ struct EmbeddedKernel {
   KernelFn function;
 };
 
-inline constexpr const char *embeddedModelSymbol = "brine_embedded_model";              // char[], NUL-terminated
-inline constexpr const char *embeddedModelSizeSymbol = "brine_embedded_model_size";     // uint64_t, without the NUL
-inline constexpr const char *embeddedKernelsSymbol = "brine_embedded_kernels";          // EmbeddedKernel[]
-inline constexpr const char *embeddedKernelCountSymbol = "brine_embedded_kernel_count"; // uint64_t
+inline constexpr const char *embeddedModelSymbol = "saltpan_embedded_model";              // char[], NUL-terminated
+inline constexpr const char *embeddedModelSizeSymbol = "saltpan_embedded_model_size";     // uint64_t, without the NUL
+inline constexpr const char *embeddedKernelsSymbol = "saltpan_embedded_kernels";          // EmbeddedKernel[]
+inline constexpr const char *embeddedKernelCountSymbol = "saltpan_embedded_kernel_count"; // uint64_t
 
 /// The bundle compiled into this program; false with `error` set when it is damaged.
 bool loadEmbeddedBundle(ModelBundle &bundle, std::string &error);
 /// The native code compiled for `kernel`, or nullptr (with `error`) when none was.
 KernelFn embeddedKernel(const ir::Kernel &kernel, std::string &error);
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
-// StandaloneSweep.cpp - the `sweep` mode of the executables `brine build` writes: a sweep of
-// the spec, planned by brine at build time, run with the compiled-in kernels one point per
-// run, written byte for byte as `brine sweep --engine scalar` writes it.
+// StandaloneSweep.cpp - the `sweep` mode of the executables `saltpan build` writes: a sweep of
+// the spec, planned by saltpan at build time, run with the compiled-in kernels one point per
+// run, written byte for byte as `saltpan sweep --engine scalar` writes it.
 #include "Measures.h"
 #include "Run.h"
 #include "StandaloneMain.h"
@@ -13,7 +13,7 @@
 #include <filesystem>
 #include <thread>
 
-namespace brine::standalone {
+namespace saltpan::standalone {
 
 namespace {
 
@@ -23,16 +23,16 @@ std::string helpText(const ModelBundle &b, const std::string &program) {
          "Runs one of the sweeps compiled in: the model once per point, each point a set of parameter\n"
          "values, and writes one row per point (the point's index, its parameters, then its measures,\n"
          "each with its unit, and why the point's run failed if it did). The points were planned by\n"
-         "brine when it built this program; each is run with the native kernels compiled in, one point\n"
-         "at a time, and the outputs are byte for byte those of `brine sweep --engine scalar` for the\n"
-         "same sweep and shard, so `brine merge` joins shards from either. With -o, finished points are\n"
+         "saltpan when it built this program; each is run with the native kernels compiled in, one point\n"
+         "at a time, and the outputs are byte for byte those of `saltpan sweep --engine scalar` for the\n"
+         "same sweep and shard, so `saltpan merge` joins shards from either. With -o, finished points are\n"
          "checkpointed to FILE.journal: run the same command again after a crash or a kill and only\n"
          "unfinished points are computed.\n\n"
          "options:\n"
          "  --sweep NAME         the sweep to run (default: the only one)\n"
          "  -o FILE              write FILE (.csv or .json; repeatable) when the sweep is complete;\n"
          "                       without -o, CSV on standard output\n"
-         "  --shard I/N          compute only shard I (0 to N-1) of N; `brine merge` joins the JSON files\n"
+         "  --shard I/N          compute only shard I (0 to N-1) of N; `saltpan merge` joins the JSON files\n"
          "  --shard env[/N]      take I (and N) from a batch scheduler's array-task variables\n"
          "  --threads N          worker threads (default: every core)\n"
          "  --checkpoint N       points per journal entry (default 256; an entry is also written each second)\n"
@@ -42,7 +42,7 @@ std::string helpText(const ModelBundle &b, const std::string &program) {
          sweepList(b) +
          "\nexit status: 0 success (failed points are reported in the output), 64 bad usage,\n"
          "             70 internal fault, 73 an output could not be written\n\n"
-         "brine is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
+         "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
 }
 
 bool wholeNumber(const std::string &s, long low, long high, long &into) {
@@ -126,12 +126,12 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   }
   if (!chosen) {
     if (bundle.sweeps.empty())
-      return bad("no sweep was built in (brine builds in the sweeps whose measures are all protocol runs)");
+      return bad("no sweep was built in (saltpan builds in the sweeps whose measures are all protocol runs)");
     if (o.sweep.empty())
       return bad(std::to_string(bundle.sweeps.size()) + " sweeps are built in (" + names +
                  "); choose one with --sweep");
     return bad("there is no built-in sweep '" + o.sweep + "'; the built-in sweeps are " + names +
-               " (`brine build` leaves out sweeps with rest or input_resistance measures)");
+               " (`saltpan build` leaves out sweeps with rest or input_resistance measures)");
   }
 
   sweep::Table table;
@@ -139,14 +139,14 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   table.version = bundle.toolVersion;
   table.modelHash = bundle.modelHash;
   table.design = chosen->design;
-  table.engine = "scalar"; // one point per run, as `brine sweep --engine scalar`
+  table.engine = "scalar"; // one point per run, as `saltpan sweep --engine scalar`
   table.parameters = chosen->parameters;
   for (const BundledSweep::Measure &m : chosen->measures)
     table.measures.push_back(m.column);
   sweep::setUpTable(table, chosen->points, shard);
   table.sweepHash = sweep::sweepHash(table);
 
-  // Each protocol records only what its measures read, as in brine: the same kernels run.
+  // Each protocol records only what its measures read, as in saltpan: the same kernels run.
   std::vector<ir::Model> models;
   for (const BundledSweep::Protocol &p : chosen->protocols) {
     std::vector<std::string> paths;
@@ -214,4 +214,4 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   return Ok;
 }
 
-} // namespace brine::standalone
+} // namespace saltpan::standalone

@@ -5,7 +5,7 @@
 #include <numeric>
 #include <random>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 namespace {
 
@@ -100,4 +100,4 @@ std::vector<Point> uniform(const std::vector<Axis> &axes, uint64_t count, uint64
   return out;
 }
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -8,7 +8,7 @@
 #include <cstdint>
 #include <vector>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 struct Axis {
   double from = 0, to = 0;     // a range (SI)
@@ -33,4 +33,4 @@ std::vector<Point> uniform(const std::vector<Axis> &axes, uint64_t count, uint64
 /// The value a fraction `u` in [0, 1] of the way along the axis's range.
 double along(const Axis &axis, double u);
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -15,7 +15,7 @@
 #include <thread>
 #include <unistd.h>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 namespace {
 
@@ -24,7 +24,7 @@ using Clock = std::chrono::steady_clock;
 // ---- journal: a header line, then one JSON line per chunk of finished points ----
 
 std::string headerLine(const std::string &fingerprint, size_t points) {
-  nlohmann::json h = {{"brine_sweep_journal", 1}, {"fingerprint", fingerprint}, {"points", points}};
+  nlohmann::json h = {{"saltpan_sweep_journal", 1}, {"fingerprint", fingerprint}, {"points", points}};
   return h.dump() + "\n";
 }
 
@@ -99,7 +99,8 @@ std::string chunkLine(const Table &t, const std::vector<size_t> &indices) {
     nlohmann::json measures = nlohmann::json::array();
     for (double v : t.results[i].measures)
       measures.push_back(std::isnan(v) ? nlohmann::json() : nlohmann::json(v));
-    points.push_back({i, measures, t.results[i].failure.empty() ? nlohmann::json() : nlohmann::json(t.results[i].failure)});
+    points.push_back(
+        {i, measures, t.results[i].failure.empty() ? nlohmann::json() : nlohmann::json(t.results[i].failure)});
   }
   return nlohmann::json{{"points", points}}.dump() + "\n";
 }
@@ -296,4 +297,4 @@ bool runSweep(Table &t, const Evaluate &evaluate, const RunOptions &o, RunReport
   return true;
 }
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

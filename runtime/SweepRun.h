@@ -13,7 +13,7 @@
 #include <string>
 #include <vector>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 /// Computes the results of the table's points `local` (indices into table.results) into
 /// `out` (same order). Called from several threads at once, `worker` in [0, threads).
@@ -28,7 +28,7 @@ struct RunOptions {
   std::string journal;    // empty: no checkpoints
   std::string fingerprint; // what the journal must have been written for
   Progress progress = Progress::Auto;
-  std::string label = "brine sweep"; // prefix of progress lines
+  std::string label = "saltpan sweep"; // prefix of progress lines
 };
 
 struct RunReport {
@@ -42,4 +42,4 @@ struct RunReport {
 bool runSweep(Table &table, const Evaluate &evaluate, const RunOptions &options, RunReport &report,
               std::string &error);
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -9,7 +9,7 @@
 #include <cstdlib>
 #include <filesystem>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 void setUpTable(Table &t, const std::vector<Point> &points, const ShardChoice &shard) {
   t.totalPoints = points.size();
@@ -57,7 +57,7 @@ bool parseProgress(const std::string &text, Progress &progress) {
 void recordOnly(ir::Model &m, const std::vector<std::string> &paths) {
   m.protocol.record.clear();
   for (const std::string &path : paths) {
-    int r = m.findRecordable(path);
+    int r = m.findProbe(path);
     if (std::find(m.protocol.record.begin(), m.protocol.record.end(), r) == m.protocol.record.end())
       m.protocol.record.push_back(r);
   }
@@ -112,4 +112,4 @@ std::string summary(const Table &t, const RunReport &report, int threads) {
   return text + buf;
 }
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -1,6 +1,6 @@
-// SweepSupport.h - what `brine sweep` and the `sweep` mode of a built executable share, so
+// SweepSupport.h - what `saltpan sweep` and the `sweep` mode of a built executable share, so
 // that both lay out the same table, hash it the same way, keep the same journal and write the
-// same bytes: `brine merge` then takes shards from either.
+// same bytes: `saltpan merge` then takes shards from either.
 #pragma once
 #include "IR.h"
 #include "Shard.h"
@@ -12,7 +12,7 @@
 #include <string>
 #include <vector>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 /// Fills the shard's part of `t` from `points` (SI, one value per parameter column):
 /// totalPoints, the shard, first, the parameter values as shown and empty results. The
@@ -25,7 +25,7 @@ std::string journalFingerprint(const Table &t);
 /// "auto", "bar", "log" or "none"; false for anything else.
 bool parseProgress(const std::string &text, Progress &progress);
 
-/// Makes `m` record only `paths` (recordable names, each once, in order): fewer columns, and
+/// Makes `m` record only `paths` (probe names, each once, in order): fewer columns, and
 /// often the state-only kernel.
 void recordOnly(ir::Model &m, const std::vector<std::string> &paths);
 /// Why a point's run of protocol `protocol` failed, as a table's failure column says it.
@@ -44,4 +44,4 @@ bool cannotWriteJournal(const std::string &error);
 /// "swept NAME: N points (shard ...), K failed; ENGINE, T threads, S s (R points/s)".
 std::string summary(const Table &t, const RunReport &report, int threads);
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -6,12 +6,14 @@
 #include <charconv>
 #include <cmath>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 void shardRange(uint64_t total, int index, int count, uint64_t &first, uint64_t &size) {
   // total * i / count without overflow: total is at most 1e8 points, count at most 1e6.
-  auto at = [&](int i) { return total / static_cast<uint64_t>(count) * static_cast<uint64_t>(i) +
-                                total % static_cast<uint64_t>(count) * static_cast<uint64_t>(i) / static_cast<uint64_t>(count); };
+  auto at = [&](int i) {
+    return total / static_cast<uint64_t>(count) * static_cast<uint64_t>(i) +
+           total % static_cast<uint64_t>(count) * static_cast<uint64_t>(i) / static_cast<uint64_t>(count);
+  };
   first = at(index);
   size = at(index + 1) - first;
 }
@@ -67,7 +69,7 @@ std::string toCsv(const Table &t) {
 
 std::string toJson(const Table &t) {
   nlohmann::ordered_json doc;
-  doc["brine_version"] = t.version;
+  doc["saltpan_version"] = t.version;
   doc["model_hash"] = t.modelHash;
   doc["sweep"] = t.sweep;
   doc["sweep_hash"] = t.sweepHash;
@@ -76,7 +78,7 @@ std::string toJson(const Table &t) {
   doc["points_total"] = t.totalPoints;
   if (t.shardCount > 1)
     doc["shard"] = {{"index", t.shardIndex}, {"count", t.shardCount}, {"first", t.first}};
-  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions.";
+  doc["caution"] = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.";
   doc["parameters"] = columns(t.parameters);
   doc["measures"] = columns(t.measures);
   nlohmann::ordered_json points = nlohmann::ordered_json::array();
@@ -99,7 +101,7 @@ std::string toJson(const Table &t) {
 bool fromJson(const std::string &text, Table &t, std::string &error) {
   try {
     auto doc = nlohmann::json::parse(text);
-    t.version = doc.at("brine_version").get<std::string>();
+    t.version = doc.at("saltpan_version").get<std::string>();
     t.modelHash = doc.at("model_hash").get<std::string>();
     t.sweep = doc.at("sweep").get<std::string>();
     t.sweepHash = doc.at("sweep_hash").get<std::string>();
@@ -113,7 +115,7 @@ bool fromJson(const std::string &text, Table &t, std::string &error) {
       t.shardIndex = doc["shard"].at("index").get<int>();
       t.shardCount = doc["shard"].at("count").get<int>();
       t.first = doc["shard"].at("first").get<uint64_t>();
-      // brine merge indexes its shard slots with these; an edited file must not reach past them.
+      // saltpan merge indexes its shard slots with these; an edited file must not reach past them.
       if (t.shardCount < 1 || t.shardIndex < 0 || t.shardIndex >= t.shardCount) {
         error = "shard " + std::to_string(t.shardIndex) + " of " + std::to_string(t.shardCount) + " does not exist";
         return false;
@@ -152,9 +154,9 @@ bool fromJson(const std::string &text, Table &t, std::string &error) {
     }
     return true;
   } catch (const std::exception &e) {
-    error = std::string("not a brine sweep result: ") + e.what();
+    error = std::string("not a saltpan sweep result: ") + e.what();
     return false;
   }
 }
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

@@ -1,13 +1,13 @@
 // SweepTable.h - the results of a sweep (or of one shard of it) and their CSV and JSON forms.
 //
 // Values are held in the columns' display units (mS/cm2, mV, Hz, ...), exactly as written,
-// so a table read back from JSON (brine merge) writes the same bytes again.
+// so a table read back from JSON (saltpan merge) writes the same bytes again.
 #pragma once
 #include <cstdint>
 #include <string>
 #include <vector>
 
-namespace brine::sweep {
+namespace saltpan::sweep {
 
 struct Column {
   std::string name; // "axon.SquidSodium1952.density", "step10: spike_count(axon.V)"
@@ -23,8 +23,8 @@ struct PointResult {
 
 struct Table {
   std::string sweep;        // the sweep's name
-  std::string version;      // brine's version
-  std::string modelHash;    // brine hash of the spec (the sweep's definition included)
+  std::string version;      // saltpan's version
+  std::string modelHash;    // saltpan hash of the spec (the sweep's definition included)
   std::string sweepHash;    // everything that decides the numbers: model, points, engine
   std::string engine;       // "batched, 8 lanes (AVX-512)", "scalar", "interpreter"
   std::string design;       // "grid", "latin_hypercube", "uniform"
@@ -50,4 +50,4 @@ bool fromJson(const std::string &text, Table &t, std::string &error);
 /// Shortest text that reads back as the same double ("0.1", "1e-05").
 std::string exactNumber(double v);
 
-} // namespace brine::sweep
+} // namespace saltpan::sweep

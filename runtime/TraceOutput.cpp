@@ -7,7 +7,7 @@
 #include <nlohmann/json.hpp>
 #include <unistd.h>
 
-namespace brine {
+namespace saltpan {
 
 std::string traceCsv(const Trace &trace) {
   std::string out = "time (ms)";
@@ -30,10 +30,10 @@ std::string traceCsv(const Trace &trace) {
 std::string traceJson(const Trace &trace, const ir::Model &model, const std::string &modelHash,
                       const std::string &version) {
   nlohmann::ordered_json doc;
-  doc["tool"] = "brine";
+  doc["tool"] = "saltpan";
   doc["version"] = version;
   doc["model_hash"] = modelHash;
-  doc["caution"] = "brine is a research modelling tool; it is not for clinical or diagnostic decisions";
+  doc["caution"] = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
   doc["model"] = model.name;
   doc["protocol"] = model.protocol.name;
   doc["method"] = ir::methodName(model.protocol.method);
@@ -84,4 +84,4 @@ bool writeFileAtomically(const std::string &path, const std::string &text, std::
   return true;
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,6 +1,6 @@
 // TraceOutput.h - the recorded traces as CSV or JSON text, and atomic file writes.
 //
-// `brine run` and the standalone executables built by `brine build` both write through these,
+// `saltpan run` and the standalone executables built by `saltpan build` both write through these,
 // so their outputs are the same bytes for the same run.
 #pragma once
 #include "IR.h"
@@ -8,7 +8,7 @@
 
 #include <string>
 
-namespace brine {
+namespace saltpan {
 
 /// `time (ms),NAME (UNIT),...` then one row per recording time.
 std::string traceCsv(const Trace &trace);
@@ -21,4 +21,4 @@ bool isJsonPath(const std::string &path);
 /// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
 bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
 
-} // namespace brine
+} // namespace saltpan

@@ -19,7 +19,7 @@
 #include <sstream>
 
 namespace fs = std::filesystem;
-using namespace brine;
+using namespace saltpan;
 
 namespace {
 
@@ -87,12 +87,12 @@ std::string describe(const Seen &s) {
   return s.file + ":" + std::to_string(s.line) + ":" + std::to_string(s.column) + ": " + s.severity + ": " + s.message;
 }
 
-std::vector<fs::path> brineFiles(const fs::path &dir) {
+std::vector<fs::path> saltpanFiles(const fs::path &dir) {
   std::vector<fs::path> files;
   if (!fs::exists(dir))
     return files;
   for (auto &entry : fs::recursive_directory_iterator(dir))
-    if (entry.is_regular_file() && entry.path().extension() == ".brine")
+    if (entry.is_regular_file() && entry.path().extension() == ".saltpan")
       files.push_back(entry.path());
   std::sort(files.begin(), files.end());
   return files;
@@ -124,8 +124,8 @@ void verify(const fs::path &path) {
   std::vector<std::string> missing;
   for (const Expectation &e : expected)
     if (!e.matched)
-      missing.push_back(path.string() + ":" + std::to_string(e.line) + (e.column ? ":" + std::to_string(e.column) : "") +
-                        ": " + e.severity + ": " + e.text);
+      missing.push_back(path.string() + ":" + std::to_string(e.line) +
+                        (e.column ? ":" + std::to_string(e.column) : "") + ": " + e.severity + ": " + e.text);
   for (auto &m : missing)
     UNSCOPED_INFO("expected but not seen: " << m);
   for (auto &u : unexpected)
@@ -137,12 +137,12 @@ void verify(const fs::path &path) {
 } // namespace
 
 TEST_CASE("diagnostics corpus", "[diagnostics]") {
-  auto files = brineFiles(fs::path(BRINE_TESTS_DIR) / "diagnostics");
+  auto files = saltpanFiles(fs::path(SALTPAN_TESTS_DIR) / "diagnostics");
   REQUIRE(!files.empty());
   for (const fs::path &p : files) {
     if (isHelper(p))
       continue;
-    DYNAMIC_SECTION(p.lexically_relative(BRINE_TESTS_DIR).string()) {
+    DYNAMIC_SECTION(p.lexically_relative(SALTPAN_TESTS_DIR).string()) {
       std::string text = readFile(p);
       // A corpus file must expect something, or say it expects nothing.
       bool declared = text.find("expected-") != std::string::npos;
@@ -153,23 +153,23 @@ TEST_CASE("diagnostics corpus", "[diagnostics]") {
 }
 
 TEST_CASE("every stdlib module checks without diagnostics", "[stdlib]") {
-  auto files = brineFiles(fs::path(BRINE_SOURCE_DIR) / "stdlib");
+  auto files = saltpanFiles(fs::path(SALTPAN_SOURCE_DIR) / "stdlib");
   REQUIRE(files.size() >= 4);
   for (const fs::path &p : files)
     DYNAMIC_SECTION(p.filename().string()) { verify(p); }
 }
 
 TEST_CASE("every shipped spec checks without diagnostics", "[specs]") {
-  auto files = brineFiles(fs::path(BRINE_SOURCE_DIR) / "specs");
+  auto files = saltpanFiles(fs::path(SALTPAN_SOURCE_DIR) / "specs");
   REQUIRE(files.size() >= 2);
   for (const fs::path &p : files)
-    DYNAMIC_SECTION(p.lexically_relative(BRINE_SOURCE_DIR).string()) { verify(p); }
+    DYNAMIC_SECTION(p.lexically_relative(SALTPAN_SOURCE_DIR).string()) { verify(p); }
 }
 
-// tests/golden/NAME.brine is paired with NAME.ast.expected (the --emit ast dump).
-// Set BRINE_UPDATE_GOLDEN=1 to rewrite the expected files.
+// tests/golden/NAME.saltpan is paired with NAME.ast.expected (the --emit ast dump).
+// Set SALTPAN_UPDATE_GOLDEN=1 to rewrite the expected files.
 TEST_CASE("golden AST dumps", "[golden]") {
-  auto files = brineFiles(fs::path(BRINE_TESTS_DIR) / "golden");
+  auto files = saltpanFiles(fs::path(SALTPAN_TESTS_DIR) / "golden");
   REQUIRE(!files.empty());
   for (const fs::path &p : files) {
     DYNAMIC_SECTION(p.filename().string()) {
@@ -183,7 +183,7 @@ TEST_CASE("golden AST dumps", "[golden]") {
       std::string actual = ast::dump(*module);
       fs::path expectedPath = p;
       expectedPath.replace_extension(".ast.expected");
-      if (std::getenv("BRINE_UPDATE_GOLDEN")) {
+      if (std::getenv("SALTPAN_UPDATE_GOLDEN")) {
         std::ofstream(expectedPath, std::ios::binary) << actual;
         SUCCEED("updated " << expectedPath);
       } else {

@@ -1,3 +1,3 @@
-// main.cpp - the Catch2 runner for brine's in-process tests.
+// main.cpp - the Catch2 runner for saltpan's in-process tests.
 #define CATCH_CONFIG_MAIN
 #include <catch2/catch.hpp>

@@ -9,9 +9,9 @@
 #include <cmath>
 #include <cstdlib>
 
-namespace brine::parsing {
+namespace saltpan::parsing {
 
-using P = grammar::BrineParser;
+using P = grammar::SaltpanParser;
 using namespace ast;
 
 namespace {
@@ -463,15 +463,15 @@ private:
         for (P::MembraneEntryContext *e : c->membraneEntry()) {
           // membraneEntry : IDENT expr (REVERSAL expr)? ';'? ;
           MembraneEntry entry;
-          entry.mechanism = e->IDENT()->getText();
+          entry.name = e->IDENT()->getText();
           entry.nameRange = range(e->IDENT());
           entry.range = range(e);
           entry.density = build(e->expr(0));
           if (e->expr().size() > 1)
             entry.reversal = build(e->expr(1));
           for (const MembraneEntry &earlier : d->membrane)
-            if (earlier.mechanism == entry.mechanism)
-              duplicate(entry.range, earlier.range, "'" + entry.mechanism + "'", "the membrane of " + owner);
+            if (earlier.name == entry.name)
+              duplicate(entry.range, earlier.range, "'" + entry.name + "'", "the membrane of " + owner);
           d->membrane.push_back(std::move(entry));
         }
       }
@@ -1124,4 +1124,4 @@ std::unique_ptr<Module> buildModule(P::SpecContext *spec, antlr4::CommonTokenStr
   return ASTBuilder(tokens, file, diags).build(spec);
 }
 
-} // namespace brine::parsing
+} // namespace saltpan::parsing

@@ -1,4 +1,4 @@
-// Format.cpp - `brine fmt` and `brine hash`: lays a spec's tokens out in the canonical layout.
+// Format.cpp - `saltpan fmt` and `saltpan hash`: lays a spec's tokens out in the canonical layout.
 //
 // The parse tree says where items and blocks start; spacing is a rule on pairs of tokens.
 // Token texts are copied, never re-printed. The lexer skips '#' comments, so they are read
@@ -13,10 +13,10 @@
 #include <map>
 #include <stdexcept>
 
-namespace brine {
+namespace saltpan {
 
-using grammar::BrineLexer;
-using grammar::BrineParser;
+using grammar::SaltpanLexer;
+using grammar::SaltpanParser;
 
 namespace {
 
@@ -44,10 +44,10 @@ struct Token {
 /// One lexed and parsed text; the parse tree points into the objects owned here.
 struct Parsed {
   std::unique_ptr<antlr4::ANTLRInputStream> input;
-  std::unique_ptr<BrineLexer> lexer;
+  std::unique_ptr<SaltpanLexer> lexer;
   std::unique_ptr<antlr4::CommonTokenStream> stream;
-  std::unique_ptr<BrineParser> parser;
-  BrineParser::SpecContext *spec = nullptr;
+  std::unique_ptr<SaltpanParser> parser;
+  SaltpanParser::SpecContext *spec = nullptr;
   std::vector<Token> tokens; // default channel, without EOF
   std::vector<Comment> comments;
   std::map<const antlr4::Token *, size_t> position; // a token -> its place in `tokens`
@@ -69,11 +69,11 @@ size_t codePoints(const std::string &s) {
 
 void lexAndParse(const std::string &text, Parsed &p) {
   p.input = std::make_unique<antlr4::ANTLRInputStream>(text);
-  p.lexer = std::make_unique<BrineLexer>(p.input.get());
+  p.lexer = std::make_unique<SaltpanLexer>(p.input.get());
   p.lexer->removeErrorListeners();
   p.stream = std::make_unique<antlr4::CommonTokenStream>(p.lexer.get());
   p.stream->fill();
-  p.parser = std::make_unique<BrineParser>(p.stream.get());
+  p.parser = std::make_unique<SaltpanParser>(p.stream.get());
   p.parser->removeErrorListeners();
   p.spec = p.parser->spec();
   p.syntaxOk = p.parser->getNumberOfSyntaxErrors() == 0;
@@ -106,7 +106,7 @@ void lexAndParse(const std::string &text, Parsed &p) {
       break;
     std::string tokenText = t->getText();
     uint32_t end = begin + static_cast<uint32_t>(tokenText.size());
-    if (t->getType() == BrineLexer::DOC_COMMENT)
+    if (t->getType() == SaltpanLexer::DOC_COMMENT)
       p.comments.push_back({trimRight(tokenText), begin, end});
     else if (t->getChannel() == antlr4::Token::DEFAULT_CHANNEL) {
       indexOf[t->getTokenIndex()] = p.tokens.size();
@@ -165,7 +165,7 @@ bool lexesApart(const Token &a, const Token &b) {
   if (auto it = cache.find(key); it != cache.end())
     return it->second;
   antlr4::ANTLRInputStream input(a.text + b.text);
-  BrineLexer lexer(&input);
+  SaltpanLexer lexer(&input);
   lexer.removeErrorListeners();
   std::vector<std::unique_ptr<antlr4::Token>> got;
   for (auto t = lexer.nextToken(); t->getType() != antlr4::Token::EOF; t = lexer.nextToken())
@@ -218,7 +218,7 @@ public:
         if (p_.tokens[i].text != ";")
           continue;
         size_t next = i + 1;
-        bool beforeName = next < p_.tokens.size() && p_.tokens[next].type == BrineLexer::IDENT;
+        bool beforeName = next < p_.tokens.size() && p_.tokens[next].type == SaltpanLexer::IDENT;
         keep[i] = attempt == 2 || (attempt == 1 && beforeName);
       }
       std::string text = render(keep, bare);
@@ -264,8 +264,9 @@ private:
     }
     if (node == p_.spec) {
       for (ParseTree *child : node->children) {
-        if (!isEmptyItem(child) && !(dynamic_cast<TerminalNode *>(child) &&
-                                     static_cast<TerminalNode *>(child)->getSymbol()->getType() == antlr4::Token::EOF)) {
+        if (!isEmptyItem(child) &&
+            !(dynamic_cast<TerminalNode *>(child) &&
+              static_cast<TerminalNode *>(child)->getSymbol()->getType() == antlr4::Token::EOF)) {
           auto [first, last] = span(child);
           if (first != none) {
             startsItem_[first] = 0;
@@ -294,7 +295,7 @@ private:
     Block block;
     block.open = span(node->children[open]).first;
     block.close = span(node->children[close]).first;
-    block.membrane = dynamic_cast<BrineParser::MembraneItemContext *>(node) != nullptr;
+    block.membrane = dynamic_cast<SaltpanParser::MembraneItemContext *>(node) != nullptr;
     size_t index = blocks_.size();
     blocks_.push_back({});
     blockOfBrace_[block.open] = blockOfBrace_[block.close] = index;
@@ -306,7 +307,7 @@ private:
         block.entries.push_back(entry);
         startsItem_[entry.first] = depth + 1;
         blockOfEntry_[entry.first] = index;
-        if (auto *row = dynamic_cast<BrineParser::MembraneEntryContext *>(child); row && block.membrane) {
+        if (auto *row = dynamic_cast<SaltpanParser::MembraneEntryContext *>(child); row && block.membrane) {
           MembraneColumns columns;
           columns.name = posOf(row->IDENT()->getSymbol());
           auto density = span(row->expr(0));
@@ -354,16 +355,16 @@ private:
       glue = true;
     else if (x.text == "(" || x.text == "[" || x.text == "." || isUnarySign(a))
       glue = true;
-    else if (y.type == BrineLexer::UNIT_POW)
+    else if (y.type == SaltpanLexer::UNIT_POW)
       glue = true;
-    else if (y.type == BrineLexer::UNIT_DIV || y.type == BrineLexer::UNIT_MUL)
+    else if (y.type == SaltpanLexer::UNIT_DIV || y.type == SaltpanLexer::UNIT_MUL)
       // "mS/cm2", "x/tau", "1/ms" as a unit type, but "0.1 /ms" for a number with a unit.
-      glue = (x.type == BrineLexer::IDENT || x.type == BrineLexer::UNIT_POW || x.type == BrineLexer::UNIT_DIV ||
-              x.type == BrineLexer::UNIT_MUL || x.text == ")" ||
-              (x.type == BrineLexer::NUMBER && parentRule(b) != BrineParser::RuleUnit));
+      glue = (x.type == SaltpanLexer::IDENT || x.type == SaltpanLexer::UNIT_POW || x.type == SaltpanLexer::UNIT_DIV ||
+              x.type == SaltpanLexer::UNIT_MUL || x.text == ")" ||
+              (x.type == SaltpanLexer::NUMBER && parentRule(b) != SaltpanParser::RuleUnit));
     else if (y.text == "(" && isWord(x) && !firstChild(b))
       glue = true; // a call, a fn's parameter list, an expectation's measure: not "(x)" alone
-    else if ((y.type == BrineLexer::IN || y.type == BrineLexer::OUT) && x.text == "]" && sameParent(a, b))
+    else if ((y.type == SaltpanLexer::IN || y.type == SaltpanLexer::OUT) && x.text == "]" && sameParent(a, b))
       glue = true; // [Na]in
     return glue && lexesApart(x, y);
   }
@@ -645,7 +646,7 @@ private:
 };
 
 std::optional<std::string> formatImpl(const SourceFile &file, DiagnosticEngine &diags, bool bare) {
-  // The parser proper decides what is a syntax error, with the same messages as `brine check`.
+  // The parser proper decides what is a syntax error, with the same messages as `saltpan check`.
   DiagnosticEngine scratch;
   std::unique_ptr<ast::Module> module = parse(file, scratch);
   if (!module) {
@@ -700,4 +701,4 @@ std::optional<std::string> bareSpec(const SourceFile &file, DiagnosticEngine &di
   return formatImpl(file, diags, true);
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -1,10 +1,10 @@
-// Format.h - the canonical layout of a spec (`brine fmt`) and its comment-free form (`brine
+// Format.h - the canonical layout of a spec (`saltpan fmt`) and its comment-free form (`saltpan
 // hash`). Works on the token stream and parse tree, so it lives in parse/; no ANTLR types here.
 #pragma once
 #include <optional>
 #include <string>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 class SourceFile;
 
@@ -17,4 +17,4 @@ std::optional<std::string> formatSpec(const SourceFile &file, DiagnosticEngine &
 /// change it. Returns nullopt when the file has syntax errors (reported to `diags`).
 std::optional<std::string> bareSpec(const SourceFile &file, DiagnosticEngine &diags);
 
-} // namespace brine
+} // namespace saltpan

@@ -6,10 +6,10 @@
 
 #include <sstream>
 
-namespace brine {
+namespace saltpan {
 
-using grammar::BrineLexer;
-using grammar::BrineParser;
+using grammar::SaltpanLexer;
+using grammar::SaltpanParser;
 
 namespace {
 
@@ -20,17 +20,17 @@ constexpr int maxTokensPerClause = 4000;
 
 bool startsClause(size_t type) {
   switch (type) {
-  case BrineLexer::IF:
-  case BrineLexer::THEN:
-  case BrineLexer::ELSE:
-  case BrineLexer::AND:
-  case BrineLexer::OR:
-  case BrineLexer::NOT:
-  case BrineLexer::IN:
-  case BrineLexer::OUT:
+  case SaltpanLexer::IF:
+  case SaltpanLexer::THEN:
+  case SaltpanLexer::ELSE:
+  case SaltpanLexer::AND:
+  case SaltpanLexer::OR:
+  case SaltpanLexer::NOT:
+  case SaltpanLexer::IN:
+  case SaltpanLexer::OUT:
     return false;
   default:
-    return type >= BrineLexer::MODEL && type <= BrineLexer::SOURCE;
+    return type >= SaltpanLexer::MODEL && type <= SaltpanLexer::SOURCE;
   }
 }
 
@@ -53,11 +53,12 @@ bool checkLimits(const SourceFile &file, antlr4::CommonTokenStream &tokens, Diag
       depth = std::max(0, depth - 1);
     // Only operators that nest (prefix signs, 'not', 'if', '^') deepen the parser's recursion;
     // a long flat sum does not.
-    bool afterOperand = prevType == BrineLexer::NUMBER || prevType == BrineLexer::IDENT || prevText == ")" ||
-                        prevText == "]" || prevType == BrineLexer::UNIT_DIV || prevType == BrineLexer::UNIT_MUL ||
-                        prevType == BrineLexer::UNIT_POW || prevType == BrineLexer::IN || prevType == BrineLexer::OUT;
-    if (((text == "-" || text == "+") && !afterOperand) || text == "^" || type == BrineLexer::NOT ||
-        type == BrineLexer::IF)
+    bool afterOperand = prevType == SaltpanLexer::NUMBER || prevType == SaltpanLexer::IDENT || prevText == ")" ||
+                        prevText == "]" || prevType == SaltpanLexer::UNIT_DIV || prevType == SaltpanLexer::UNIT_MUL ||
+                        prevType == SaltpanLexer::UNIT_POW || prevType == SaltpanLexer::IN ||
+                        prevType == SaltpanLexer::OUT;
+    if (((text == "-" || text == "+") && !afterOperand) || text == "^" || type == SaltpanLexer::NOT ||
+        type == SaltpanLexer::IF)
       ++prefix;
     prevType = type;
     prevText = text;
@@ -86,22 +87,22 @@ std::unique_ptr<ast::Module> parse(const SourceFile &file, DiagnosticEngine &dia
     char hex[8];
     std::snprintf(hex, sizeof hex, "0x%02X", static_cast<unsigned char>(file.text()[*bad]));
     auto &d = diags.error({loc, loc}, std::string("file is not valid UTF-8 text (byte ") + hex + ")");
-    DiagnosticEngine::note(d, {}, "brine specs are UTF-8 text files; is this a binary file?");
+    DiagnosticEngine::note(d, {}, "saltpan specs are UTF-8 text files; is this a binary file?");
     return nullptr;
   }
   antlr4::ANTLRInputStream input(file.text());
-  BrineLexer lexer(&input);
+  SaltpanLexer lexer(&input);
   lexer.removeErrorListeners();
   antlr4::CommonTokenStream tokens(&lexer);
   tokens.fill();
   if (!checkLimits(file, tokens, diags))
     return nullptr;
 
-  BrineParser parser(&tokens);
+  SaltpanParser parser(&tokens);
   parser.removeErrorListeners();
   parsing::SyntaxErrorListener listener(file, diags);
   parser.addErrorListener(&listener);
-  BrineParser::SpecContext *spec = parser.spec();
+  SaltpanParser::SpecContext *spec = parser.spec();
   if (listener.count() > 0)
     return nullptr;
   return parsing::buildModule(spec, tokens, file, diags);
@@ -112,7 +113,7 @@ std::string dumpTokens(const SourceFile &file) {
   if (findInvalidUtf8(file.text()))
     return "";
   antlr4::ANTLRInputStream input(file.text());
-  BrineLexer lexer(&input);
+  SaltpanLexer lexer(&input);
   lexer.removeErrorListeners();
   antlr4::CommonTokenStream tokens(&lexer);
   tokens.fill();
@@ -127,4 +128,4 @@ std::string dumpTokens(const SourceFile &file) {
   return out.str();
 }
 
-} // namespace brine
+} // namespace saltpan

@@ -4,7 +4,7 @@
 
 #include <memory>
 
-namespace brine {
+namespace saltpan {
 class DiagnosticEngine;
 
 /// Parses one file. Returns nullptr when the file has syntax errors (all reported);
@@ -12,6 +12,6 @@ class DiagnosticEngine;
 /// clauses) are reported and marked in the tree.
 std::unique_ptr<ast::Module> parse(const SourceFile &file, DiagnosticEngine &diags);
 
-/// One token as the lexer sees it, for `brine check --emit tokens`.
+/// One token as the lexer sees it, for `saltpan check --emit tokens`.
 std::string dumpTokens(const SourceFile &file);
-} // namespace brine
+} // namespace saltpan

@@ -3,11 +3,11 @@
 #include "../AST.h"
 #include "../Diagnostics.h"
 
-#include <BrineLexer.h>
-#include <BrineParser.h>
+#include <SaltpanLexer.h>
+#include <SaltpanParser.h>
 #include <antlr4-runtime.h>
 
-namespace brine::parsing {
+namespace saltpan::parsing {
 
 /// Converts ANTLR token positions (code points) into our locations.
 inline SourceRange tokenRange(const SourceFile &file, const antlr4::Token *t) {
@@ -37,8 +37,8 @@ private:
 std::string tokenName(const antlr4::dfa::Vocabulary &vocabulary, size_t type);
 
 /// Builds the AST from a successful parse; reports semantic slips it notices.
-std::unique_ptr<ast::Module> buildModule(grammar::BrineParser::SpecContext *spec,
+std::unique_ptr<ast::Module> buildModule(grammar::SaltpanParser::SpecContext *spec,
                                          antlr4::CommonTokenStream &tokens, const SourceFile &file,
                                          DiagnosticEngine &diags);
 
-} // namespace brine::parsing
+} // namespace saltpan::parsing

@@ -1,28 +1,28 @@
 // SyntaxErrors.cpp - turns ANTLR's syntax errors into plain-English diagnostics.
 #include "ParseInternal.h"
 
-namespace brine::parsing {
+namespace saltpan::parsing {
 
-using grammar::BrineLexer;
+using grammar::SaltpanLexer;
 
 std::string tokenName(const antlr4::dfa::Vocabulary &vocabulary, size_t type) {
   switch (type) {
   case antlr4::Token::EOF:
     return "end of file";
-  case BrineLexer::IDENT:
+  case SaltpanLexer::IDENT:
     return "a name";
-  case BrineLexer::NUMBER:
+  case SaltpanLexer::NUMBER:
     return "a number";
-  case BrineLexer::STRING:
+  case SaltpanLexer::STRING:
     return "a string";
-  case BrineLexer::SLASH:
+  case SaltpanLexer::SLASH:
     return "'/'";
-  case BrineLexer::DOT:
+  case SaltpanLexer::DOT:
     return "'\u00B7'";
-  case BrineLexer::UNIT_DIV:
-  case BrineLexer::UNIT_MUL:
+  case SaltpanLexer::UNIT_DIV:
+  case SaltpanLexer::UNIT_MUL:
     return "a unit";
-  case BrineLexer::UNIT_POW:
+  case SaltpanLexer::UNIT_POW:
     return "an exponent";
   default:
     break;
@@ -83,9 +83,9 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
   std::string message;
   std::string expected;
   auto *parser = dynamic_cast<antlr4::Parser *>(recognizer);
-  if (offending && offending->getType() == BrineLexer::STRAY) {
+  if (offending && offending->getType() == SaltpanLexer::STRAY) {
     message = "unexpected character " + quoted(offending);
-  } else if (offending && offending->getType() == BrineLexer::UNTERMINATED_STRING) {
+  } else if (offending && offending->getType() == SaltpanLexer::UNTERMINATED_STRING) {
     message = "string is not closed; add '\"' before the end of the line";
   } else {
     bool failedPredicate = false;
@@ -111,7 +111,8 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
       message = "unexpected end of file" + (expected.empty() ? "" : "; expected " + expected);
     else
       message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
-    bool keyword = offending && offending->getType() >= BrineLexer::MODEL && offending->getType() <= BrineLexer::SOURCE;
+    bool keyword =
+        offending && offending->getType() >= SaltpanLexer::MODEL && offending->getType() <= SaltpanLexer::SOURCE;
     if (keyword && expected.find("a name") != std::string::npos)
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
   }
@@ -126,4 +127,4 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
   diags_.error(range, message);
 }
 
-} // namespace brine::parsing
+} // namespace saltpan::parsing

@@ -1,6 +1,6 @@
 // hh_handwritten.cpp - a hand-written stepper for the Hodgkin-Huxley 1952 squid axon with
-// the same method brine uses (Rush-Larsen gates, exact exponential V step with frozen gates),
-// the baseline for brine's JIT in tests/bench/sim_bench.sh. Not a test.
+// the same method saltpan uses (Rush-Larsen gates, exact exponential V step with frozen gates),
+// the baseline for saltpan's JIT in tests/bench/sim_bench.sh. Not a test.
 //
 // Equations and parameters: Hodgkin & Huxley 1952 in the modern convention, 6.3 degC
 // (see the project's references.md); units mV, ms, uA/cm2, mS/cm2, uF/cm2.

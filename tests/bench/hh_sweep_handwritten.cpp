@@ -1,6 +1,6 @@
 // hh_sweep_handwritten.cpp - the baseline of tests/bench/sweep_bench.sh: a hand-written scalar
 // loop over the points of the squid-axon conductance grid of
-// specs/reference/squid_axon_1952_sweeps.brine (sweep `conductances`, protocol `euler10`),
+// specs/reference/squid_axon_1952_sweeps.saltpan (sweep `conductances`, protocol `euler10`),
 // each point 200 ms of exponential Euler at 10 us with a 10 uA/cm2 step, V sampled every
 // 0.1 ms and spikes counted as upward crossings of 0 mV between samples. One thread. Not a test.
 //

@@ -1,5 +1,5 @@
 // jit_latency.cpp - not a test: how long the JIT takes to start and to compile a kernel the
-// size of a small Hodgkin-Huxley-style membrane (~100 IR nodes). Run ./build/brine_jit_latency.
+// size of a small Hodgkin-Huxley-style membrane (~100 IR nodes). Run ./build/saltpan_jit_latency.
 #include "IR.h"
 #include "JIT.h"
 
@@ -8,7 +8,7 @@
 #include <cstdio>
 #include <vector>
 
-using namespace brine;
+using namespace saltpan;
 using ir::Op;
 
 namespace {

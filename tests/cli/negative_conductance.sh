@@ -4,8 +4,8 @@
 # a linear first-order ODE); a first-order step of 1 us must land within 0.05 mV of it.
 source "$(dirname "$0")/lib/common.bash"
 
-cat >"$TMP/passive.brine" <<SPEC
-use "$SRC/specs/reference/squid_axon_1952.brine"
+cat >"$TMP/passive.saltpan" <<SPEC
+use "$SRC/specs/reference/squid_axon_1952.saltpan"
 protocol quiet {
   method exponential_euler step 1 us
   duration 100 ms
@@ -15,7 +15,7 @@ SPEC
 sets=(--set axon.SquidSodium1952.density=0mS/cm2 --set axon.SquidPotassium1952.density=0mS/cm2
       --set axon.SquidLeak1952.density=-0.01mS/cm2)
 for engine in jit interpreter; do
-  expect_rc "run_$engine" 0 run --protocol quiet --engine "$engine" "${sets[@]}" "$TMP/passive.brine"
+  expect_rc "run_$engine" 0 run --protocol quiet --engine "$engine" "${sets[@]}" "$TMP/passive.saltpan"
   final=$(tail -1 "$TMP/run_$engine.out" | cut -d, -f2)
   # g = -0.1 S/m2, C = 0.01 F/m2: exp(1) after 100 ms.
   $PY - "$final" <<'PY' || fail "$engine: final V $final mV is not the closed form"

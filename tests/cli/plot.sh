@@ -1,7 +1,7 @@
-# plot.sh - `brine run --plot FILE`: an SVG figure of the recorded traces.
+# plot.sh - `saltpan run --plot FILE`: an SVG figure of the recorded traces.
 source "$(dirname "$0")/lib/common.bash"
 
-HH="$SRC/specs/reference/squid_axon_1952.brine"
+HH="$SRC/specs/reference/squid_axon_1952.saltpan"
 
 expect_rc help 0 run --help
 expect_grep help out "--plot FILE"
@@ -28,11 +28,11 @@ fi
 
 # An unwritable path: 73, and stdout still has the CSV (the traces were written first).
 expect_rc unwritable 73 run --engine interpreter --protocol step10 --duration 5ms --plot "$TMP/no/such/dir/x.svg" "$HH"
-expect_grep unwritable err "brine: "
+expect_grep unwritable err "saltpan: "
 
 # A failed spec writes no plot.
-error_spec "$TMP/error.brine"
-expect_rc error 65 run --plot "$TMP/error.svg" "$TMP/error.brine"
+error_spec "$TMP/error.saltpan"
+expect_rc error 65 run --plot "$TMP/error.svg" "$TMP/error.saltpan"
 [ -e "$TMP/error.svg" ] && fail "error: a plot was written for a spec with errors"
 
 finish

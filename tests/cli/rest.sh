@@ -1,15 +1,15 @@
-# rest.sh - `brine rest`: steady states, stability, JSON document, options and exit codes.
+# rest.sh - `saltpan rest`: steady states, stability, JSON document, options and exit codes.
 source "$(dirname "$0")/lib/common.bash"
 
-HH="$SRC/specs/reference/squid_axon_1952.brine"
+HH="$SRC/specs/reference/squid_axon_1952.saltpan"
 
 expect_rc help 0 rest --help
-expect_grep help out "^usage: brine rest"
+expect_grep help out "^usage: saltpan rest"
 expect_grep help out "exit status"
 expect_rc version 0 rest --version
-expect_grep version out "^brine [0-9]"
+expect_grep version out "^saltpan [0-9]"
 expect_rc helpcmd 0 help rest
-expect_grep helpcmd out "^usage: brine rest"
+expect_grep helpcmd out "^usage: saltpan rest"
 expect_rc toplevel 0 --help
 expect_grep toplevel out "^  rest FILE"
 
@@ -22,11 +22,11 @@ expect_rc reversed 64 rest --from 0mV --to -10mV "$HH"
 expect_rc twofiles 64 rest "$HH" "$HH"
 
 # Spec errors: 65, diagnostics on stderr and nothing on stdout.
-error_spec "$TMP/error.brine"
-expect_rc error 65 rest "$TMP/error.brine"
+error_spec "$TMP/error.saltpan"
+expect_rc error 65 rest "$TMP/error.saltpan"
 [ -s "$TMP/error.out" ] && fail "error: rest printed a report for a spec with errors"
-expect_grep error err "error.brine:2:16: error: "
-expect_rc missing 65 rest "$TMP/does-not-exist.brine"
+expect_grep error err "error.saltpan:2:16: error: "
+expect_rc missing 65 rest "$TMP/does-not-exist.saltpan"
 
 # Text: the HH 1952 rest, -64.996379 mV (computed, references.md), stable.
 expect_rc text 0 rest "$HH"
@@ -62,9 +62,9 @@ expect_rc range 0 rest --format json --from -60 --to 0mV "$HH"
   "$TMP/range.out" || fail "range: expected no steady state between -60 and 0 mV"
 
 # A passive GHK cell: the GHK rest is reported and equals the steady state.
-clean_spec "$TMP/passive.brine"
-sed -i '/KGated 36 mS\/cm2/d' "$TMP/passive.brine"
-expect_rc passive 0 rest --format json "$TMP/passive.brine"
+clean_spec "$TMP/passive.saltpan"
+sed -i '/KGated 36 mS\/cm2/d' "$TMP/passive.saltpan"
+expect_rc passive 0 rest --format json "$TMP/passive.saltpan"
 "$PY" - "$TMP/passive.out" <<'PYEOF' || fail "passive: wrong GHK rest"
 import json, sys
 c = json.load(open(sys.argv[1], encoding="utf-8"))["compartments"][0]
@@ -73,7 +73,7 @@ s = c["steady_states"]
 assert len(s) == 1 and s[0]["stable"], s
 assert abs(s[0]["V_mV"] - c["ghk_rest_mV"]) < 1e-6, (s[0]["V_mV"], c["ghk_rest_mV"])
 PYEOF
-expect_rc passive-text 0 rest "$TMP/passive.brine"
+expect_rc passive-text 0 rest "$TMP/passive.saltpan"
 expect_grep passive-text out "GHK resting potential"
 
 finish

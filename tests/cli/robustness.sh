@@ -10,88 +10,88 @@ located() {
     { fail "$name: no located 'file:line:col: error:'"; head -5 "$TMP/$name.err" | sed 's/^/    /' >&2; }
 }
 
-# unreadable NAME: exit 65 and a "brine: error:" line.
+# unreadable NAME: exit 65 and a "saltpan: error:" line.
 unreadable() {
   local name=$1
   no_crash "$name"
   [ "$rc" -eq 65 ] || fail "$name: exited $rc, expected 65"
-  expect_grep "$name" err "^brine: error: "
+  expect_grep "$name" err "^saltpan: error: "
 }
 
 # A directory, a missing file, a file without read permission.
-mkdir "$TMP/dir.brine"
-run directory check "$TMP/dir.brine"
+mkdir "$TMP/dir.saltpan"
+run directory check "$TMP/dir.saltpan"
 unreadable directory
-run missing check "$TMP/missing.brine"
+run missing check "$TMP/missing.saltpan"
 unreadable missing
-run show-missing show "$TMP/missing.brine"
+run show-missing show "$TMP/missing.saltpan"
 unreadable show-missing
 if [ "$(id -u)" -ne 0 ]; then
-  printf 'use std.ions\n' >"$TMP/secret.brine"
-  chmod 000 "$TMP/secret.brine"
-  run noperm check "$TMP/secret.brine"
+  printf 'use std.ions\n' >"$TMP/secret.saltpan"
+  chmod 000 "$TMP/secret.saltpan"
+  run noperm check "$TMP/secret.saltpan"
   unreadable noperm
 fi
 
 # Random bytes (almost surely invalid UTF-8), several samples.
 for i in 1 2 3 4 5; do
-  head -c 4096 /dev/urandom >"$TMP/random$i.brine"
-  run random$i check "$TMP/random$i.brine"
-  located random$i "$TMP/random$i.brine"
+  head -c 4096 /dev/urandom >"$TMP/random$i.saltpan"
+  run random$i check "$TMP/random$i.saltpan"
+  located random$i "$TMP/random$i.saltpan"
 done
 # Binary that happens to be valid UTF-8 text: NUL bytes and control characters.
-printf 'const a = 1\0\001\002 mV\n' >"$TMP/nul.brine"
-run nul check "$TMP/nul.brine"
-located nul "$TMP/nul.brine"
+printf 'const a = 1\0\001\002 mV\n' >"$TMP/nul.saltpan"
+run nul check "$TMP/nul.saltpan"
+located nul "$TMP/nul.saltpan"
 
 # Invalid UTF-8 of each kind, after some valid text; the error is on line 2.
 n=0
 for bad in '\xc0\xaf' '\xed\xa0\x80' '\xf4\x90\x80\x80' '\xe2\x82' '\x80' '\xff'; do
   n=$((n + 1))
-  printf "use std.ions\nconst a = 1 mV $bad\n" >"$TMP/utf8-$n.brine"
-  run utf8-$n check "$TMP/utf8-$n.brine"
-  located utf8-$n "$TMP/utf8-$n.brine"
-  grep -q "utf8-$n.brine:2:" "$TMP/utf8-$n.err" || fail "utf8-$n: the error is not on line 2"
+  printf "use std.ions\nconst a = 1 mV $bad\n" >"$TMP/utf8-$n.saltpan"
+  run utf8-$n check "$TMP/utf8-$n.saltpan"
+  located utf8-$n "$TMP/utf8-$n.saltpan"
+  grep -q "utf8-$n.saltpan:2:" "$TMP/utf8-$n.err" || fail "utf8-$n: the error is not on line 2"
 done
 
 # Deeply nested parentheses and a very long expression.
-"$PY" -c 'print("const a = " + "(" * 10000 + "1" + ")" * 10000)' >"$TMP/nested.brine"
-run nested check "$TMP/nested.brine"
-located nested "$TMP/nested.brine"
-"$PY" -c 'print("const a = " + "[" * 10000)' >"$TMP/brackets.brine"
-run brackets check "$TMP/brackets.brine"
-located brackets "$TMP/brackets.brine"
-"$PY" -c 'print("const a = 1" + " + 1" * 99999)' >"$TMP/long.brine"
-run long check "$TMP/long.brine"
-located long "$TMP/long.brine"
-"$PY" -c 'print("const a = 1 mV" + " * 1" * 99999)' >"$TMP/product.brine"
-run product check "$TMP/product.brine"
-located product "$TMP/product.brine"
-"$PY" -c 'print("const a = " + "-" * 100000 + "1")' >"$TMP/negations.brine"
-run negations check "$TMP/negations.brine"
-located negations "$TMP/negations.brine"
-"$PY" -c 'print("const a = " + "not " * 50000 + "1")' >"$TMP/nots.brine"
-run nots check "$TMP/nots.brine"
-located nots "$TMP/nots.brine"
-"$PY" -c 'print("const a = " + "if 1 > 0 then 1 else " * 20000 + "1")' >"$TMP/ifs.brine"
-run ifs check "$TMP/ifs.brine"
-located ifs "$TMP/ifs.brine"
-"$PY" -c 'print("const a = 2" + " ^ 2" * 50000)' >"$TMP/powers.brine"
-run powers check "$TMP/powers.brine"
-located powers "$TMP/powers.brine"
+"$PY" -c 'print("const a = " + "(" * 10000 + "1" + ")" * 10000)' >"$TMP/nested.saltpan"
+run nested check "$TMP/nested.saltpan"
+located nested "$TMP/nested.saltpan"
+"$PY" -c 'print("const a = " + "[" * 10000)' >"$TMP/brackets.saltpan"
+run brackets check "$TMP/brackets.saltpan"
+located brackets "$TMP/brackets.saltpan"
+"$PY" -c 'print("const a = 1" + " + 1" * 99999)' >"$TMP/long.saltpan"
+run long check "$TMP/long.saltpan"
+located long "$TMP/long.saltpan"
+"$PY" -c 'print("const a = 1 mV" + " * 1" * 99999)' >"$TMP/product.saltpan"
+run product check "$TMP/product.saltpan"
+located product "$TMP/product.saltpan"
+"$PY" -c 'print("const a = " + "-" * 100000 + "1")' >"$TMP/negations.saltpan"
+run negations check "$TMP/negations.saltpan"
+located negations "$TMP/negations.saltpan"
+"$PY" -c 'print("const a = " + "not " * 50000 + "1")' >"$TMP/nots.saltpan"
+run nots check "$TMP/nots.saltpan"
+located nots "$TMP/nots.saltpan"
+"$PY" -c 'print("const a = " + "if 1 > 0 then 1 else " * 20000 + "1")' >"$TMP/ifs.saltpan"
+run ifs check "$TMP/ifs.saltpan"
+located ifs "$TMP/ifs.saltpan"
+"$PY" -c 'print("const a = 2" + " ^ 2" * 50000)' >"$TMP/powers.saltpan"
+run powers check "$TMP/powers.saltpan"
+located powers "$TMP/powers.saltpan"
 # Signs before a name (not a number): valid, and must not take time exponential in the
 # number of signs.
-"$PY" -c 'print("const a = 1\nconst b = " + "-" * 40 + "a\nconst c = " + "+ -" * 20 + "a")' >"$TMP/signs.brine"
-run signs check "$TMP/signs.brine"
+"$PY" -c 'print("const a = 1\nconst b = " + "-" * 40 + "a\nconst c = " + "+ -" * 20 + "a")' >"$TMP/signs.saltpan"
+run signs check "$TMP/signs.saltpan"
 no_crash signs
 [ "$rc" -eq 0 ] || [ "$rc" -eq 65 ] || fail "signs: exited $rc"
 # Nested calls: each level is a '(' too.
-"$PY" -c 'print("use std.math\nconst a = " + "logistic(" * 10000 + "0" + ")" * 10000)' >"$TMP/calls.brine"
-run calls check "$TMP/calls.brine"
-located calls "$TMP/calls.brine"
+"$PY" -c 'print("use std.math\nconst a = " + "logistic(" * 10000 + "0" + ")" * 10000)' >"$TMP/calls.saltpan"
+run calls check "$TMP/calls.saltpan"
+located calls "$TMP/calls.saltpan"
 # One enormous line of a single name.
-"$PY" -c 'print("const " + "a" * 1000000 + " = 1")' >"$TMP/longname.brine"
-run longname check "$TMP/longname.brine"
+"$PY" -c 'print("const " + "a" * 1000000 + " = 1")' >"$TMP/longname.saltpan"
+run longname check "$TMP/longname.saltpan"
 no_crash longname
 [ "$rc" -eq 0 ] || [ "$rc" -eq 65 ] || fail "longname: exited $rc"
 

@@ -1,8 +1,8 @@
-# show_json.sh - `brine show --format json`: temperature, ions with reversal potentials, GHK rest.
+# show_json.sh - `saltpan show --format json`: temperature, ions with reversal potentials, GHK rest.
 source "$(dirname "$0")/lib/common.bash"
 
-clean_spec "$TMP/clean.brine"
-expect_rc show 0 show --format json "$TMP/clean.brine"
+clean_spec "$TMP/clean.saltpan"
+expect_rc show 0 show --format json "$TMP/clean.saltpan"
 "$PY" - "$TMP/show.out" <<'PYEOF' || fail "show --format json: wrong document"
 import json, math, sys
 doc = json.load(open(sys.argv[1], encoding="utf-8"))
@@ -36,20 +36,20 @@ assert soma["ghk_channels"] == 2
 PYEOF
 
 # Text and JSON report the same K reversal, to the printed precision.
-expect_rc text 0 show "$TMP/clean.brine"
+expect_rc text 0 show "$TMP/clean.saltpan"
 expect_grep text out "^  K +\+1 +138 +4\.5 +-91\.490"
 
 # Without permeability channels there is no GHK rest: null, not a number.
 sed -e 's/KLeak 1e-6 cm\/s/KLeak 0.1 mS\/cm2/' -e 's/NaLeak 4e-8 cm\/s/NaLeak 0.01 mS\/cm2/' \
-  "$TMP/clean.brine" >"$TMP/ohmic.brine"
-expect_rc ohmic 0 show --format json "$TMP/ohmic.brine"
+  "$TMP/clean.saltpan" >"$TMP/ohmic.saltpan"
+expect_rc ohmic 0 show --format json "$TMP/ohmic.saltpan"
 "$PY" -c 'import json,sys; c=json.load(open(sys.argv[1]))["compartments"][0]; assert c["ghk_rest_mV"] is None, c["ghk_rest_mV"]' \
   "$TMP/ohmic.out" || fail "ohmic: ghk_rest_mV should be null"
 
 # Errors: no document on stdout, diagnostics on stderr.
-error_spec "$TMP/error.brine"
-expect_rc error 65 show --format json "$TMP/error.brine"
+error_spec "$TMP/error.saltpan"
+expect_rc error 65 show --format json "$TMP/error.saltpan"
 [ -s "$TMP/error.out" ] && fail "error: show printed a document for a spec with errors"
-expect_grep error err "error.brine:2:16: error: "
+expect_grep error err "error.saltpan:2:16: error: "
 
 finish

@@ -1,11 +1,11 @@
 #!/usr/bin/env bash
-# standalone_exe.sh - `brine build FILE -o EXE`: the executable writes the same CSV and JSON
-# bytes as `brine run` for the same options, needs no LLVM or ANTLR library at run time, and
+# standalone_exe.sh - `saltpan build FILE -o EXE`: the executable writes the same CSV and JSON
+# bytes as `saltpan run` for the same options, needs no LLVM or ANTLR library at run time, and
 # reports bad options, failed simulations and unwritable outputs with the documented codes.
 source "$(dirname "$0")/lib/common.bash"
 
-SQUID=$SRC/specs/reference/squid_axon_1952.brine
-TIDE=$SRC/specs/demo/tidewater_cell.brine
+SQUID=$SRC/specs/reference/squid_axon_1952.saltpan
+TIDE=$SRC/specs/demo/tidewater_cell.saltpan
 
 # exe NAME EXE ARGS...: runs a built executable; sets rc, leaves $TMP/NAME.out and .err.
 exe() {
@@ -15,7 +15,7 @@ exe() {
   timeout 20 "$program" "$@" >"$TMP/$name.out" 2>"$TMP/$name.err" || rc=$?
 }
 
-# same NAME SPEC EXE ARGS...: `brine run SPEC ARGS` and `EXE ARGS` give identical bytes, on
+# same NAME SPEC EXE ARGS...: `saltpan run SPEC ARGS` and `EXE ARGS` give identical bytes, on
 # standard output (CSV) and in -o FILE.json.
 same() {
   local name=$1 spec=$2 program=$3
@@ -23,14 +23,14 @@ same() {
   run "$name.run" run "$spec" "$@"
   exe "$name.exe" "$program" "$@"
   if [ "$rc" -ne 0 ] || ! cmp -s "$TMP/$name.run.out" "$TMP/$name.exe.out"; then
-    fail "$name: CSV of the executable (exit $rc) differs from brine run $*"
+    fail "$name: CSV of the executable (exit $rc) differs from saltpan run $*"
     diff "$TMP/$name.run.out" "$TMP/$name.exe.out" | head -5 >&2
   fi
   [ "$(wc -l <"$TMP/$name.exe.out")" -gt 10 ] || fail "$name: the executable wrote almost nothing"
   run "$name.runj" run "$spec" "$@" -o "$TMP/$name.run.json"
   exe "$name.exej" "$program" "$@" -o "$TMP/$name.exe.json"
   if [ "$rc" -ne 0 ] || ! cmp -s "$TMP/$name.run.json" "$TMP/$name.exe.json"; then
-    fail "$name: JSON of the executable (exit $rc) differs from brine run $*"
+    fail "$name: JSON of the executable (exit $rc) differs from saltpan run $*"
   fi
 }
 
@@ -44,16 +44,16 @@ same squid_set "$SQUID" "$TMP/squid" --set 'axon.SquidSodium1952.density=100 mS/
 same tide_default "$TIDE" "$TMP/tide" --duration 60ms
 same tide_set "$TIDE" "$TMP/tide" --protocol stimulation --set soma.TidewaterDelayedK.density=20mS/cm2 \
   --duration 150ms --every 1ms
-# The JSON carries the model hash `brine hash` prints and the version of the brine that built it.
-hash=$("$BRINE" hash "$SQUID" | cut -d' ' -f1)
+# The JSON carries the model hash `saltpan hash` prints and the version of the saltpan that built it.
+hash=$("$SALTPAN" hash "$SQUID" | cut -d' ' -f1)
 grep -q "\"model_hash\": \"$hash\"" "$TMP/squid_default.exe.json" || fail "the JSON does not carry hash $hash"
-version=$("$BRINE" --version | cut -d' ' -f2)
+version=$("$SALTPAN" --version | cut -d' ' -f2)
 grep -q "\"version\": \"$version\"" "$TMP/squid_default.exe.json" || fail "the JSON does not carry version $version"
 
-# No LLVM, no ANTLR, no brine library at run time.
+# No LLVM, no ANTLR, no saltpan library at run time.
 for program in "$TMP/squid" "$TMP/tide"; do
-  if ldd "$program" | grep -Eiq 'llvm|antlr|brine'; then
-    fail "$(basename "$program") depends on LLVM, ANTLR or brine at run time:"
+  if ldd "$program" | grep -Eiq 'llvm|antlr|saltpan'; then
+    fail "$(basename "$program") depends on LLVM, ANTLR or saltpan at run time:"
     ldd "$program" | sed 's/^/    /' >&2
   fi
 done
@@ -65,7 +65,7 @@ grep -q 'axon.SquidSodium1952.density' "$TMP/help.out" || fail "--help does not 
 grep -q 'step10 ' "$TMP/help.out" || fail "--help does not list the protocols"
 grep -q 'not for clinical or diagnostic decisions' "$TMP/help.out" || fail "--help lacks the caution"
 exe version "$TMP/squid" --version
-grep -q "built by brine $version" "$TMP/version.out" || fail "--version does not name brine $version"
+grep -q "built by saltpan $version" "$TMP/version.out" || fail "--version does not name saltpan $version"
 check_usage() {
   local name=$1 pattern=$2
   shift 2
@@ -82,17 +82,17 @@ check_usage bad_value "cannot read the value" --set axon.SquidSodium1952.density
 check_usage bad_duration "--duration needs a positive time" --duration -5ms
 check_usage odd_every "whole number of steps" --every 0.015ms
 check_usage missing_value "--set needs a value" --set
-# brine run refuses the same options the same way.
+# saltpan run refuses the same options the same way.
 run run_wrong_dim run "$SQUID" --set axon.SquidSodium1952.density=3mV
-[ "$rc" -eq 64 ] || fail "brine run accepted a voltage for a density (exit $rc)"
+[ "$rc" -eq 64 ] || fail "saltpan run accepted a voltage for a density (exit $rc)"
 
-# A simulation that blows up fails with 65 and writes nothing, as in brine run.
+# A simulation that blows up fails with 65 and writes nothing, as in saltpan run.
 exe blowup "$TMP/squid" --set 'axon.capacitance=1e-9 uF/cm2' --duration 1ms -o "$TMP/blowup.csv"
 [ "$rc" -eq 65 ] || fail "blowup: exited $rc, expected 65"
 grep -q 'the simulation failed at t = ' "$TMP/blowup.err" || fail "blowup: no failure message"
 [ ! -e "$TMP/blowup.csv" ] || fail "blowup: an output was written"
 run blowup_run run "$SQUID" --set 'axon.capacitance=1e-9 uF/cm2' --duration 1ms
-[ "$rc" -eq 65 ] || fail "brine run did not fail the same simulation (exit $rc)"
+[ "$rc" -eq 65 ] || fail "saltpan run did not fail the same simulation (exit $rc)"
 
 # An output that cannot be written: 73, and no partial file.
 exe unwritable "$TMP/squid" --duration 1ms -o "$TMP/no/such/dir/out.csv"

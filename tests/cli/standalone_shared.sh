@@ -1,27 +1,27 @@
 #!/usr/bin/env bash
-# standalone_shared.sh - `brine build --shared`: a library exporting only the C interface,
-# with brine_model.h copied beside it; a C program (standalone_c_api.c) that sets a
-# parameter and steps agrees with `brine run` to 1e-9 relative at the same times.
+# standalone_shared.sh - `saltpan build --shared`: a library exporting only the C interface,
+# with saltpan_model.h copied beside it; a C program (standalone_c_api.c) that sets a
+# parameter and steps agrees with `saltpan run` to 1e-9 relative at the same times.
 source "$(dirname "$0")/lib/common.bash"
 
-SQUID=$SRC/specs/reference/squid_axon_1952.brine
-TIDE=$SRC/specs/demo/tidewater_cell.brine
+SQUID=$SRC/specs/reference/squid_axon_1952.saltpan
+TIDE=$SRC/specs/demo/tidewater_cell.saltpan
 command -v cc >/dev/null || { echo "FAIL: no C compiler 'cc'" >&2; exit 1; }
 
 mkdir "$TMP/lib"
 expect_rc build_squid 0 build "$SQUID" --shared -o "$TMP/lib/libsquid.so"
 expect_rc build_tide 0 build "$TIDE" --shared -o "$TMP/lib/libtide.so"
-cmp -s "$TMP/lib/brine_model.h" "$SRC/runtime/brine_model.h" || fail "brine_model.h was not copied beside the library"
+cmp -s "$TMP/lib/saltpan_model.h" "$SRC/runtime/saltpan_model.h" || fail "saltpan_model.h was not copied beside the library"
 
 # Only the C interface is exported: no runtime, libstdc++ or LLVM symbols leak out.
-others=$(nm -D --defined-only "$TMP/lib/libsquid.so" | awk '{print $3}' | grep -v '^brine_model_' || true)
-[ -z "$others" ] || fail "the library exports more than brine_model_*: $(echo "$others" | head -5 | tr '\n' ' ')"
-nm -D --defined-only "$TMP/lib/libsquid.so" | grep -q ' T brine_model_create$' || fail "brine_model_create is not exported"
-if ldd "$TMP/lib/libsquid.so" | grep -Eiq 'llvm|antlr|brine'; then
-  fail "the library depends on LLVM, ANTLR or brine at run time"
+others=$(nm -D --defined-only "$TMP/lib/libsquid.so" | awk '{print $3}' | grep -v '^saltpan_model_' || true)
+[ -z "$others" ] || fail "the library exports more than saltpan_model_*: $(echo "$others" | head -5 | tr '\n' ' ')"
+nm -D --defined-only "$TMP/lib/libsquid.so" | grep -q ' T saltpan_model_create$' || fail "saltpan_model_create is not exported"
+if ldd "$TMP/lib/libsquid.so" | grep -Eiq 'llvm|antlr|saltpan'; then
+  fail "the library depends on LLVM, ANTLR or saltpan at run time"
 fi
 
-# A library from a sanitizer build of brine needs the sanitizer runtime in the program too.
+# A library from a sanitizer build of saltpan needs the sanitizer runtime in the program too.
 sanitize=()
 if ldd "$TMP/lib/libsquid.so" | grep -q libasan; then
   sanitize=(-fsanitize=address,undefined)
@@ -33,7 +33,7 @@ for lib in squid tide; do
 done
 
 # compare NAME SPEC STATE COLUMN SCALE: the C program's "LABEL K VALUE" lines against row K of
-# the matching `brine run` CSV (recorded every step), in the display unit (VALUE * SCALE).
+# the matching `saltpan run` CSV (recorded every step), in the display unit (VALUE * SCALE).
 compare() {
   local name=$1 column=$2 scale=$3
   $PY - "$TMP/$name.c.out" "$TMP/$name.set.out" "$TMP/$name.default.out" "$column" "$scale" <<'PY' ||
@@ -52,11 +52,11 @@ for label, k, value in lines:
     want = tables[label][int(k)]
     have = float(value) * float(scale)
     if abs(have - want) > 1e-9 * abs(want):
-        print(f"{label} step {k}: C interface {have!r}, brine run {want!r}")
+        print(f"{label} step {k}: C interface {have!r}, saltpan run {want!r}")
         bad += 1
 sys.exit(bad)
 PY
-    fail "$name: the C interface disagrees with brine run"
+    fail "$name: the C interface disagrees with saltpan run"
 }
 
 # Squid axon (RK4): sodium density 100 mS/cm2 = 1000 S/m^2; V every step (10 us).
@@ -80,15 +80,15 @@ if [ -x "$TMP/c_tide" ]; then
 fi
 
 # A protocol with an adaptive method cannot be stepped from C: a clear refusal.
-EXPERIMENTS=$SRC/specs/reference/squid_axon_1952_experiments.brine
+EXPERIMENTS=$SRC/specs/reference/squid_axon_1952_experiments.saltpan
 expect_rc build_dp 0 build "$EXPERIMENTS" --shared -o "$TMP/lib/libdp.so"
 cat >"$TMP/dp.c" <<'C'
-#include "brine_model.h"
+#include "saltpan_model.h"
 #include <stdio.h>
 #include <string.h>
 int main(void) {
-  brine_model *m = brine_model_create(brine_model_protocol_name(0));
-  const char *why = brine_model_last_error(NULL);
+  saltpan_model *m = saltpan_model_create(saltpan_model_protocol_name(0));
+  const char *why = saltpan_model_last_error(NULL);
   printf("%s\n", why);
   return m == NULL && strstr(why, "fixed-step methods only") ? 0 : 1;
 }

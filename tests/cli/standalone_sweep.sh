@@ -1,10 +1,10 @@
 #!/usr/bin/env bash
-# standalone_sweep.sh - `EXE sweep`: an executable built by `brine build` runs the spec's sweeps
-# and writes the CSV and JSON bytes of `brine sweep --engine scalar`; its shards and journals
-# are interchangeable with brine's; sweeps with steady-state measures are left out with a note.
+# standalone_sweep.sh - `EXE sweep`: an executable built by `saltpan build` runs the spec's sweeps
+# and writes the CSV and JSON bytes of `saltpan sweep --engine scalar`; its shards and journals
+# are interchangeable with saltpan's; sweeps with steady-state measures are left out with a note.
 source "$(dirname "$0")/lib/common.bash"
 
-SPEC=$SRC/specs/reference/squid_axon_1952_sweeps.brine
+SPEC=$SRC/specs/reference/squid_axon_1952_sweeps.saltpan
 EXE=$TMP/squid_sweeps
 
 # exe NAME ARGS...: runs the executable; sets rc, leaves $TMP/NAME.out and .err.
@@ -38,10 +38,10 @@ expect_rc build 0 build "$SPEC" -o "$EXE"
 expect_grep build err "built .*squid_sweeps: executable of .*, 2 protocols, 2 sweeps"
 expect_grep build err "note: sweep 'leak' is not built in: 'rest' needs a steady-state search"
 
-# The reference: brine's scalar engine, whole and in two shards.
+# The reference: saltpan's scalar engine, whole and in two shards.
 expect_rc ref 0 sweep --engine scalar --progress none --sweep sampled "$SPEC" -o "$TMP/ref.csv" -o "$TMP/ref.json"
 expect_rc ref1 0 sweep --engine scalar --progress none --sweep sampled --shard 1/2 "$SPEC" -o "$TMP/ref1.json"
-[ "$(wc -l <"$TMP/ref.csv")" -eq 257 ] || fail "ref: expected 256 rows from brine sweep"
+[ "$(wc -l <"$TMP/ref.csv")" -eq 257 ] || fail "ref: expected 256 rows from saltpan sweep"
 
 exe_rc whole 0 sweep --sweep sampled --progress none -o "$TMP/exe.csv" -o "$TMP/exe.json"
 same "$TMP/exe.csv" "$TMP/ref.csv" "whole CSV"
@@ -51,23 +51,23 @@ expect_grep whole err "swept sampled: 256 points, 0 failed; scalar"
 exe_rc stdout 0 sweep --sweep sampled --threads 1 --progress none
 same "$TMP/stdout.out" "$TMP/ref.csv" "CSV on standard output"
 
-# A shard of the executable and a shard of brine merge into the unsharded result.
+# A shard of the executable and a shard of saltpan merge into the unsharded result.
 exe_rc shard0 0 sweep --sweep sampled --shard 0/2 --progress none -o "$TMP/exe0.json"
 expect_grep shard0 err "shard 0 of 2, points 0 to 127 of 256"
 expect_rc merge 0 merge -o "$TMP/merged.csv" -o "$TMP/merged.json" "$TMP/exe0.json" "$TMP/ref1.json"
 same "$TMP/merged.csv" "$TMP/ref.csv" "merged CSV"
 same "$TMP/merged.json" "$TMP/ref.json" "merged JSON"
-# --shard env reads a scheduler's array-task variables, as brine does.
+# --shard env reads a scheduler's array-task variables, as saltpan does.
 rc=0
 SLURM_ARRAY_TASK_ID=1 SLURM_ARRAY_TASK_COUNT=2 timeout 20 "$EXE" sweep --sweep sampled --shard env \
   --progress none -o "$TMP/env1.json" >"$TMP/env.out" 2>"$TMP/env.err" || rc=$?
 [ "$rc" -eq 0 ] || fail "env: --shard env exited $rc"
 same "$TMP/env1.json" "$TMP/ref1.json" "--shard env JSON"
 
-# A journal brine leaves (its second output cannot be written) is resumed by the executable.
+# A journal saltpan leaves (its second output cannot be written) is resumed by the executable.
 expect_rc journal 73 sweep --engine scalar --progress none --sweep sampled "$SPEC" -o "$TMP/j.csv" \
   -o "$TMP/missing/j.json"
-[ -s "$TMP/j.csv.journal" ] || fail "journal: brine kept no journal"
+[ -s "$TMP/j.csv.journal" ] || fail "journal: saltpan kept no journal"
 exe_rc resume 0 sweep --sweep sampled --progress none -o "$TMP/j.csv" -o "$TMP/j.json"
 expect_grep resume err "256 from the journal"
 same "$TMP/j.json" "$TMP/ref.json" "resumed JSON"
@@ -103,15 +103,15 @@ exe_rc checkpoint 64 sweep --sweep sampled --checkpoint 0
 [ ! -e "$TMP/x.txt" ] || fail "output: a refused -o file was written"
 
 # A spec whose only sweep measures rest builds without one; its executable says so.
-cat >"$TMP/rest_only.brine" <<SPEC
-use "$SRC/specs/reference/squid_axon_1952.brine"
+cat >"$TMP/rest_only.saltpan" <<SPEC
+use "$SRC/specs/reference/squid_axon_1952.saltpan"
 
 sweep leak_only {
   vary axon.SquidLeak1952.reversal values -60 mV, -50 mV
   measure rest(axon)
 }
 SPEC
-expect_rc restbuild 0 build "$TMP/rest_only.brine" -o "$TMP/rest_only"
+expect_rc restbuild 0 build "$TMP/rest_only.saltpan" -o "$TMP/rest_only"
 expect_grep restbuild err "note: sweep 'leak_only' is not built in"
 expect_grep restbuild err ", 0 sweeps,"
 EXE=$TMP/rest_only

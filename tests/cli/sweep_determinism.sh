@@ -1,11 +1,11 @@
-# sweep_determinism.sh - `brine sweep` gives the same bytes whatever the thread count, a point's
+# sweep_determinism.sh - `saltpan sweep` gives the same bytes whatever the thread count, a point's
 # numbers do not depend on its lane or its neighbours, batched lanes agree with the scalar
-# engine, and the scalar engine equals `brine run --set`.
+# engine, and the scalar engine equals `saltpan run --set`.
 source "$(dirname "$0")/lib/common.bash"
 
-HH="$SRC/specs/reference/squid_axon_1952.brine"
+HH="$SRC/specs/reference/squid_axon_1952.saltpan"
 
-cat >"$TMP/small.brine" <<SPEC
+cat >"$TMP/small.saltpan" <<SPEC
 use "$HH"
 protocol short {
   method exponential_euler step 10 us
@@ -23,11 +23,11 @@ sweep grid {
 }
 SPEC
 
-# sweep NAME ARGS...: runs a sweep of small.brine into $TMP/NAME.csv and $TMP/NAME.json.
+# sweep NAME ARGS...: runs a sweep of small.saltpan into $TMP/NAME.csv and $TMP/NAME.json.
 sweep() {
   local name=$1
   shift
-  expect_rc "$name" 0 sweep --progress none -o "$TMP/$name.csv" -o "$TMP/$name.json" "$@" "$TMP/small.brine"
+  expect_rc "$name" 0 sweep --progress none -o "$TMP/$name.csv" -o "$TMP/$name.json" "$@" "$TMP/small.saltpan"
 }
 same() {
   local a=$1 b=$2
@@ -44,7 +44,7 @@ same t1 t2
 widths=()
 for w in 2 4 8; do
   run probe$w sweep --lanes "$w" --threads 1 --progress none --values "axon.capacitance=1uF/cm2" \
-    --measure "short: spike_count(axon.V)" "$TMP/small.brine"
+    --measure "short: spike_count(axon.V)" "$TMP/small.saltpan"
   if [ "$rc" -eq 0 ]; then
     widths+=("$w")
   elif [ "$rc" -eq 64 ]; then
@@ -84,7 +84,7 @@ values() { # values NAME WIDTH LIST: the capacitance list, in uF/cm2
   expect_rc "$name" 0 sweep --progress none --lanes "$width" --threads 1 \
     --values "axon.capacitance=$(echo "$list" | sed 's|,|uF/cm2,|g; s|$|uF/cm2|')" \
     --measure "short: spike_count(axon.V)" --measure "short: firing_rate(axon.V)" \
-    --measure "short: peak(axon.V)" --measure "short: mean(axon.V)" -o "$TMP/$name.csv" "$TMP/small.brine"
+    --measure "short: peak(axon.V)" --measure "short: mean(axon.V)" -o "$TMP/$name.csv" "$TMP/small.saltpan"
 }
 for w in "${widths[@]}"; do
   values "fwd$w" "$w" "0.8,0.9,1,1.1,1.2"
@@ -130,7 +130,7 @@ assert spiking >= 10, spiking  # the grid spans regimes, so the rates are really
 PYEOF
 done
 
-# ---- scalar equals `brine run --set`: spike count from the run's summary, peak and mean from
+# ---- scalar equals `saltpan run --set`: spike count from the run's summary, peak and mean from
 # its trace (the trace's samples are the ones the measures read) ----
 for point in 0 17 34; do
   read -r gna gk < <("$PY" -c "
@@ -138,8 +138,8 @@ import json, sys
 p = json.load(open(sys.argv[1]))['points'][$point]['parameters']
 print(repr(p[0]), repr(p[1]))" "$TMP/s1.json")
   expect_rc "run$point" 0 run --protocol short --set "axon.SquidSodium1952.density=$gna mS/cm2" \
-    --set "axon.SquidPotassium1952.density=$gk mS/cm2" -o "$TMP/run$point.json" "$TMP/small.brine"
-  "$PY" - "$TMP/s1.json" "$point" "$TMP/run$point.json" "$TMP/run$point.err" <<'PYEOF' || fail "run$point: brine run and the scalar sweep disagree"
+    --set "axon.SquidPotassium1952.density=$gk mS/cm2" -o "$TMP/run$point.json" "$TMP/small.saltpan"
+  "$PY" - "$TMP/s1.json" "$point" "$TMP/run$point.json" "$TMP/run$point.err" <<'PYEOF' || fail "run$point: saltpan run and the scalar sweep disagree"
 import json, re, sys
 point = json.load(open(sys.argv[1], encoding="utf-8"))["points"][int(sys.argv[2])]
 run = json.load(open(sys.argv[3], encoding="utf-8"))

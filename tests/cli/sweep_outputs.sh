@@ -1,13 +1,13 @@
-# sweep_outputs.sh - `brine sweep`: the CSV and JSON it writes, progress lines, failed points
+# sweep_outputs.sh - `saltpan sweep`: the CSV and JSON it writes, progress lines, failed points
 # and usage errors.
 source "$(dirname "$0")/lib/common.bash"
 
-HH="$SRC/specs/reference/squid_axon_1952.brine"
-SWEEPS="$SRC/specs/reference/squid_axon_1952_sweeps.brine"
+HH="$SRC/specs/reference/squid_axon_1952.saltpan"
+SWEEPS="$SRC/specs/reference/squid_axon_1952_sweeps.saltpan"
 
 # A short protocol of the reference axon: every point runs 30 ms of a 10 uA/cm2 step, plus an
 # RK4 protocol (not lane-compiled) that blows up for a stiff leak.
-cat >"$TMP/small.brine" <<SPEC
+cat >"$TMP/small.saltpan" <<SPEC
 use "$HH"
 protocol short {
   method exponential_euler step 10 us
@@ -32,7 +32,7 @@ sweep grid {
 SPEC
 
 # ---- outputs: CSV header with units, one row per point, JSON keys; both agree ----
-expect_rc outputs 0 sweep --threads 2 -o "$TMP/g.csv" -o "$TMP/g.json" "$TMP/small.brine"
+expect_rc outputs 0 sweep --threads 2 -o "$TMP/g.csv" -o "$TMP/g.json" "$TMP/small.saltpan"
 [ -s "$TMP/outputs.out" ] && fail "outputs: with -o, nothing should go to stdout"
 [ -e "$TMP/g.csv.journal" ] && fail "outputs: the journal was left behind after a complete sweep"
 expect_grep outputs err "^swept grid: 15 points, 0 failed"
@@ -46,7 +46,7 @@ want = ["point", "axon.SquidSodium1952.density (mS/cm2)", "axon.SquidLeak1952.re
 assert header == want, header
 assert len(body) == 15, len(body)
 doc = json.load(open(sys.argv[2], encoding="utf-8"))
-keys = ["brine_version", "model_hash", "sweep", "sweep_hash", "design", "engine", "points_total",
+keys = ["saltpan_version", "model_hash", "sweep", "sweep_hash", "design", "engine", "points_total",
         "caution", "parameters", "measures", "points"]
 assert list(doc) == keys, list(doc)  # no "shard" key in an unsharded result
 assert doc["sweep"] == "grid" and doc["design"] == "grid" and doc["points_total"] == 15, doc["sweep"]
@@ -78,25 +78,25 @@ for k, (row, p) in enumerate(zip(body, doc["points"])):
 PYEOF
 
 # Without -o the CSV goes to stdout, the same bytes as the file.
-expect_rc stdout 0 sweep --threads 1 "$TMP/small.brine"
+expect_rc stdout 0 sweep --threads 1 "$TMP/small.saltpan"
 cmp -s "$TMP/stdout.out" "$TMP/g.csv" || fail "stdout: CSV on stdout differs from -o g.csv"
 
 # ---- progress: a log line when stderr is not a terminal; none with --progress none ----
-expect_grep outputs err "^brine sweep: 15 of 15 points \(100%\)"
-expect_rc quiet 0 sweep --progress none "$TMP/small.brine"
+expect_grep outputs err "^saltpan sweep: 15 of 15 points \(100%\)"
+expect_rc quiet 0 sweep --progress none "$TMP/small.saltpan"
 grep -q "points (" "$TMP/quiet.err" && fail "quiet: --progress none printed a progress line"
 expect_grep quiet err "^swept grid: 15 points"
-expect_rc logmode 0 sweep --progress log "$TMP/small.brine"
-expect_grep logmode err "^brine sweep: 15 of 15 points"
+expect_rc logmode 0 sweep --progress log "$TMP/small.saltpan"
+expect_grep logmode err "^saltpan sweep: 15 of 15 points"
 
 # ---- a sweep written on the command line ----
 expect_rc cmdline 0 sweep --vary "axon.SquidSodium1952.density=60mS/cm2:180mS/cm2:3" \
-  --values "axon.SquidLeak1952.reversal=-60mV,-50mV" --measure "short: spike_count(axon.V)" "$TMP/small.brine"
+  --values "axon.SquidLeak1952.reversal=-60mV,-50mV" --measure "short: spike_count(axon.V)" "$TMP/small.saltpan"
 expect_grep cmdline out "^point,axon.SquidSodium1952.density \(mS/cm2\),axon.SquidLeak1952.reversal \(mV\),short: spike_count\(axon.V\),failure$"
 [ "$(wc -l <"$TMP/cmdline.out")" -eq 7 ] || fail "cmdline: expected a header and 6 rows"
 expect_grep cmdline out "^5,180,-50,[0-9]+,$"
 expect_rc cmdsample 0 sweep --vary "axon.SquidSodium1952.density=60mS/cm2:180mS/cm2" --sample 5 --seed 3 \
-  --measure "short: spike_count(axon.V)" -o "$TMP/sample.json" "$TMP/small.brine"
+  --measure "short: spike_count(axon.V)" -o "$TMP/sample.json" "$TMP/small.saltpan"
 "$PY" - "$TMP/sample.json" <<'PYEOF' || fail "cmdsample: wrong sample"
 import json, sys
 doc = json.load(open(sys.argv[1], encoding="utf-8"))
@@ -109,7 +109,7 @@ PYEOF
 # ---- failed points: reported in the failure column, exit 0 ----
 # A negative capacitance makes V run away in the lanes; a stiff leak breaks RK4 (scalar path).
 expect_rc failed 0 sweep --values "axon.capacitance=1uF/cm2,-1uF/cm2" --measure "short: spike_count(axon.V)" \
-  -o "$TMP/failed.csv" "$TMP/small.brine"
+  -o "$TMP/failed.csv" "$TMP/small.saltpan"
 expect_grep failed err "2 points, 1 failed"
 "$PY" - "$TMP/failed.csv" <<'PYEOF' || fail "failed: the failure column is wrong"
 import csv, sys
@@ -118,25 +118,25 @@ assert rows[1][-1] == "" and rows[1][2] != "", rows[1]
 assert rows[2][2] == "" and rows[2][-1].startswith("short: the run failed at "), rows[2]
 PYEOF
 expect_rc stiff 0 sweep --values "axon.SquidLeak1952.density=0.3mS/cm2,1e7mS/cm2" --measure "stiff: peak(axon.V)" \
-  "$TMP/small.brine"
+  "$TMP/small.saltpan"
 expect_grep stiff out '^0,0\.3,-?[0-9.]+,$'
 expect_grep stiff out '^1,1e\+07,,"?stiff: the run failed at '
 
-# ---- usage errors: 64, with a `brine sweep: error:` message ----
+# ---- usage errors: 64, with a `saltpan sweep: error:` message ----
 usage_error() {
   local name=$1 pattern=$2
   shift 2
   expect_rc "$name" 64 sweep "$@"
-  expect_grep "$name" err "^brine sweep: error: $pattern"
+  expect_grep "$name" err "^saltpan sweep: error: $pattern"
   [ -s "$TMP/$name.out" ] && fail "$name: a usage error wrote output"
   return 0
 }
 usage_error badopt "unknown option '--bogus'" --bogus "$SWEEPS"
 usage_error nofile "no spec file" --sweep leak
 usage_error twofiles "sweep takes one spec file" "$SWEEPS" "$SWEEPS"
-usage_error badvary "--vary needs NAME=FROM:TO:POINTS" --vary nonsense --measure "rest(axon)" "$TMP/small.brine"
-usage_error badvary4 "--vary needs" --vary "a=1:2:3:4" --measure "rest(axon)" "$TMP/small.brine"
-usage_error badvalues "--values needs" --values "axon.capacitance=" --measure "rest(axon)" "$TMP/small.brine"
+usage_error badvary "--vary needs NAME=FROM:TO:POINTS" --vary nonsense --measure "rest(axon)" "$TMP/small.saltpan"
+usage_error badvary4 "--vary needs" --vary "a=1:2:3:4" --measure "rest(axon)" "$TMP/small.saltpan"
+usage_error badvalues "--values needs" --values "axon.capacitance=" --measure "rest(axon)" "$TMP/small.saltpan"
 usage_error sweepvary "--sweep names a sweep of the file" --sweep leak \
   --vary "axon.capacitance=1uF/cm2:2uF/cm2:2" --measure "rest(axon)" "$SWEEPS"
 usage_error badshard "shard 3 of 3 does not exist" --shard 3/3 --sweep leak "$SWEEPS"
@@ -149,10 +149,10 @@ usage_error badthreads "--threads needs" --threads 0 --sweep leak "$SWEEPS"
 usage_error badengine "--engine must be" --engine gpu --sweep leak "$SWEEPS"
 usage_error badprogress "--progress must be" --progress loud --sweep leak "$SWEEPS"
 usage_error badsample "--sample needs" --sample 0 --vary "axon.capacitance=1uF/cm2:2uF/cm2" \
-  --measure "rest(axon)" "$TMP/small.brine"
+  --measure "rest(axon)" "$TMP/small.saltpan"
 usage_error badout "-o takes a .csv or .json file" -o "$TMP/x.txt" --sweep leak "$SWEEPS"
 # A parameter the model does not have is a spec error (65) on the command-line sweep.
-expect_rc unknownparam 65 sweep --vary "axon.bogus=1mV:2mV:2" --measure "rest(axon)" "$TMP/small.brine"
+expect_rc unknownparam 65 sweep --vary "axon.bogus=1mV:2mV:2" --measure "rest(axon)" "$TMP/small.saltpan"
 expect_grep unknownparam err "there is no parameter 'axon.bogus' to vary"
 
 finish

@@ -1,9 +1,9 @@
-# sweep_resume.sh - `brine sweep` checkpoints: a sweep killed with SIGKILL and run again gives
+# sweep_resume.sh - `saltpan sweep` checkpoints: a sweep killed with SIGKILL and run again gives
 # the bytes of an uninterrupted run, computing only what the journal lacks; a cut-short last
 # journal line is tolerated; another sweep's journal is refused; --restart discards it.
 source "$(dirname "$0")/lib/common.bash"
 
-SWEEPS="$SRC/specs/reference/squid_axon_1952_sweeps.brine"
+SWEEPS="$SRC/specs/reference/squid_axon_1952_sweeps.saltpan"
 
 # 96 x 64 points of 200 ms each: several seconds on one thread, so a kill lands mid-sweep.
 big=(sweep --threads 1 --checkpoint 16 --progress none
@@ -13,13 +13,13 @@ big=(sweep --threads 1 --checkpoint 16 --progress none
 
 # The uninterrupted run (two threads: the thread count changes no byte, sweep_determinism.sh).
 rc=0
-timeout 120 "$BRINE" "${big[@]}" --threads 2 -o "$TMP/whole.csv" "$SWEEPS" 2>"$TMP/whole.err" || rc=$?
+timeout 120 "$SALTPAN" "${big[@]}" --threads 2 -o "$TMP/whole.csv" "$SWEEPS" 2>"$TMP/whole.err" || rc=$?
 [ "$rc" -eq 0 ] || fail "whole: the uninterrupted sweep exited $rc: $(head -3 "$TMP/whole.err")"
 
 # Start it, wait until the journal holds about two thirds of the points (16 a line), then
 # SIGKILL it.
 journal="$TMP/cut.csv.journal"
-"$BRINE" "${big[@]}" -o "$TMP/cut.csv" "$SWEEPS" 2>"$TMP/first.err" &
+"$SALTPAN" "${big[@]}" -o "$TMP/cut.csv" "$SWEEPS" 2>"$TMP/first.err" &
 pid=$!
 for _ in $(seq 1 2400); do
   [ -f "$journal" ] && [ "$(wc -l <"$journal")" -ge 250 ] && break
@@ -36,7 +36,7 @@ cp "$journal" "$TMP/journal.saved"
 resume() {
   local name=$1
   rc=0
-  timeout 120 "$BRINE" "${big[@]}" -o "$TMP/cut.csv" "$SWEEPS" 2>"$TMP/$name.err" || rc=$?
+  timeout 120 "$SALTPAN" "${big[@]}" -o "$TMP/cut.csv" "$SWEEPS" 2>"$TMP/$name.err" || rc=$?
   [ "$rc" -eq 0 ] || fail "$name: the resumed sweep exited $rc: $(head -3 "$TMP/$name.err")"
   cmp -s "$TMP/cut.csv" "$TMP/whole.csv" || fail "$name: the resumed result differs from the uninterrupted one"
   [ -e "$journal" ] && fail "$name: the journal is still there after the sweep finished"
@@ -66,7 +66,7 @@ resume damaged
 small=(sweep --threads 1 --progress none --sweep leak)
 cp "$TMP/journal.saved" "$TMP/leak.csv.journal"
 expect_rc foreign 64 "${small[@]}" -o "$TMP/leak.csv" "$SWEEPS"
-expect_grep foreign err "^brine sweep: error: the checkpoint journal '.*leak\.csv\.journal' was written for a different sweep"
+expect_grep foreign err "^saltpan sweep: error: the checkpoint journal '.*leak\.csv\.journal' was written for a different sweep"
 [ -e "$TMP/leak.csv" ] && fail "foreign: an output was written despite the refused journal"
 cmp -s "$TMP/leak.csv.journal" "$TMP/journal.saved" || fail "foreign: the refused journal was changed"
 # The same sweep with other lanes is another sweep too (its numbers may differ in the last bit).

@@ -1,11 +1,11 @@
-# sweep_shard.sh - `brine sweep --shard` and `brine merge`: three shards merged are the unsharded
+# sweep_shard.sh - `saltpan sweep --shard` and `saltpan merge`: three shards merged are the unsharded
 # run byte for byte; merge refuses missing, repeated and foreign shards; --shard env reads the
 # scheduler's array-task variables.
 source "$(dirname "$0")/lib/common.bash"
 
-HH="$SRC/specs/reference/squid_axon_1952.brine"
+HH="$SRC/specs/reference/squid_axon_1952.saltpan"
 
-cat >"$TMP/small.brine" <<SPEC
+cat >"$TMP/small.saltpan" <<SPEC
 use "$HH"
 protocol short {
   method exponential_euler step 10 us
@@ -27,9 +27,9 @@ sweep other {
 SPEC
 
 S=(sweep --progress none --sweep eleven)
-expect_rc whole 0 "${S[@]}" -o "$TMP/whole.csv" -o "$TMP/whole.json" "$TMP/small.brine"
+expect_rc whole 0 "${S[@]}" -o "$TMP/whole.csv" -o "$TMP/whole.json" "$TMP/small.saltpan"
 for i in 0 1 2; do
-  expect_rc "shard$i" 0 "${S[@]}" --shard "$i/3" -o "$TMP/s$i.json" -o "$TMP/s$i.csv" "$TMP/small.brine"
+  expect_rc "shard$i" 0 "${S[@]}" --shard "$i/3" -o "$TMP/s$i.json" -o "$TMP/s$i.csv" "$TMP/small.saltpan"
   expect_grep "shard$i" err "\(shard $i of 3, points [0-9]+ to [0-9]+ of 11\)"
 done
 "$PY" - "$TMP"/s{0,1,2}.json <<'PYEOF' || fail "shards: wrong shard documents"
@@ -71,18 +71,18 @@ refused() {
   shift 2
   rm -f "$TMP/bad.csv"
   expect_rc "$name" 65 merge -o "$TMP/bad.csv" "$@"
-  expect_grep "$name" err "^brine merge: error: $pattern"
+  expect_grep "$name" err "^saltpan merge: error: $pattern"
   [ -e "$TMP/bad.csv" ] && fail "$name: merge wrote an output it refused"
   return 0
 }
 refused missing "shard 1 of 3 is missing" "$TMP/s0.json" "$TMP/s2.json"
 refused twice "shard 0 is given twice" "$TMP/s0.json" "$TMP/s1.json" "$TMP/s0.json" "$TMP/s2.json"
-expect_rc other 0 sweep --progress none --sweep other --shard 1/3 -o "$TMP/o1.json" "$TMP/small.brine"
+expect_rc other 0 sweep --progress none --sweep other --shard 1/3 -o "$TMP/o1.json" "$TMP/small.saltpan"
 refused foreign "'.*o1\.json' comes from a different sweep" "$TMP/s0.json" "$TMP/o1.json" "$TMP/s2.json"
-expect_rc four 0 "${S[@]}" --shard 1/4 -o "$TMP/f1.json" "$TMP/small.brine"
+expect_rc four 0 "${S[@]}" --shard 1/4 -o "$TMP/f1.json" "$TMP/small.saltpan"
 refused count "'.*f1\.json' comes from a different sweep" "$TMP/s0.json" "$TMP/f1.json" "$TMP/s2.json"
 # Another engine computes other last bits: its shards are another sweep.
-expect_rc scalar 0 "${S[@]}" --engine scalar --shard 1/3 -o "$TMP/c1.json" "$TMP/small.brine"
+expect_rc scalar 0 "${S[@]}" --engine scalar --shard 1/3 -o "$TMP/c1.json" "$TMP/small.saltpan"
 refused engine "'.*c1\.json' comes from a different sweep" "$TMP/s0.json" "$TMP/c1.json" "$TMP/s2.json"
 printf 'not json\n' >"$TMP/junk.json"
 refused junk "'.*junk\.json': " "$TMP/junk.json"
@@ -92,12 +92,12 @@ grep -q '"index": 7000000' "$TMP/edited.json" || fail "edited: the shard index w
 refused edited "'.*edited\.json': shard 7000000 of 3 does not exist" "$TMP/s0.json" "$TMP/edited.json" "$TMP/s2.json"
 refused unreadable "cannot read" "$TMP/nothing-here.json"
 expect_rc mergeusage 64 merge "$TMP/s0.json"
-expect_grep mergeusage err "^brine merge: error: no output given"
+expect_grep mergeusage err "^saltpan merge: error: no output given"
 expect_rc mergeopt 64 merge --bogus -o "$TMP/x.csv" "$TMP/s0.json"
 
 # More shards than points: the empty shards merge too, and say they hold none.
 for i in 0 1 2 3 4 5 6 7 8 9 10 11 12; do
-  expect_rc "many$i" 0 "${S[@]}" --shard "$i/13" -o "$TMP/m$i.json" "$TMP/small.brine"
+  expect_rc "many$i" 0 "${S[@]}" --shard "$i/13" -o "$TMP/m$i.json" "$TMP/small.saltpan"
 done
 expect_grep many0 err "^swept eleven: 0 points \(shard 0 of 13, none of the 11\)"
 expect_grep many1 err "^swept eleven: 1 point \(shard 1 of 13, points 0 to 0 of 11\)"
@@ -107,20 +107,20 @@ cmp -s "$TMP/many.csv" "$TMP/whole.csv" || fail "mergemany: 13 shards of 11 poin
 # --shard env: SLURM's task 1 of 0..2 is --shard 1/3.
 rc=0
 SLURM_ARRAY_TASK_ID=1 SLURM_ARRAY_TASK_MIN=0 SLURM_ARRAY_TASK_COUNT=3 \
-  timeout 10 "$BRINE" "${S[@]}" --shard env -o "$TMP/env1.json" "$TMP/small.brine" 2>"$TMP/env.err" || rc=$?
+  timeout 10 "$SALTPAN" "${S[@]}" --shard env -o "$TMP/env1.json" "$TMP/small.saltpan" 2>"$TMP/env.err" || rc=$?
 [ "$rc" -eq 0 ] || fail "env: --shard env exited $rc: $(head -3 "$TMP/env.err")"
 cmp -s "$TMP/env1.json" "$TMP/s1.json" || fail "env: --shard env with SLURM task 1 of 3 differs from --shard 1/3"
 rc=0
-SLURM_ARRAY_TASK_ID=2 timeout 10 "$BRINE" "${S[@]}" --shard env/3 -o "$TMP/env2.json" "$TMP/small.brine" \
+SLURM_ARRAY_TASK_ID=2 timeout 10 "$SALTPAN" "${S[@]}" --shard env/3 -o "$TMP/env2.json" "$TMP/small.saltpan" \
   2>"$TMP/env2.err" || rc=$?
 [ "$rc" -eq 0 ] || fail "env/3: exited $rc: $(head -3 "$TMP/env2.err")"
 cmp -s "$TMP/env2.json" "$TMP/s2.json" || fail "env/3: --shard env/3 with SLURM task 2 differs from --shard 2/3"
 # No scheduler in the environment: a usage error.
 rc=0
 env -u SLURM_ARRAY_TASK_ID -u SGE_TASK_ID -u PBS_ARRAY_INDEX -u LSB_JOBINDEX \
-  timeout 10 "$BRINE" "${S[@]}" --shard env "$TMP/small.brine" >/dev/null 2>"$TMP/noenv.err" || rc=$?
+  timeout 10 "$SALTPAN" "${S[@]}" --shard env "$TMP/small.saltpan" >/dev/null 2>"$TMP/noenv.err" || rc=$?
 [ "$rc" -eq 64 ] || fail "noenv: --shard env without a scheduler exited $rc, expected 64"
-grep -q "^brine sweep: error: --shard env: no array-task index" "$TMP/noenv.err" ||
+grep -q "^saltpan sweep: error: --shard env: no array-task index" "$TMP/noenv.err" ||
   fail "noenv: no message about the missing array-task index: $(head -2 "$TMP/noenv.err")"
 
 finish

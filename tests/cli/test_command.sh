@@ -1,4 +1,4 @@
-# test_command.sh - `brine test`: the shipped reference suites pass; a perturbed copy of a
+# test_command.sh - `saltpan test`: the shipped reference suites pass; a perturbed copy of a
 # model fails with measured vs expected; JUnit XML validates; JSON parses; exit codes.
 source "$(dirname "$0")/lib/common.bash"
 
@@ -16,8 +16,8 @@ fi
 
 # A perturbed copy: inside K 155 mM -> 100 mM moves E_K by about 12 mV.
 mkdir "$TMP/perturbed"
-sed 's/\[K\] = 155 mM/[K] = 100 mM/' "$SRC/specs/reference/mammalian_skeletal_muscle.brine" >"$TMP/perturbed/muscle.brine"
-grep -q '\[K\] = 100 mM' "$TMP/perturbed/muscle.brine" || fail "the perturbation did not apply"
+sed 's/\[K\] = 155 mM/[K] = 100 mM/' "$SRC/specs/reference/mammalian_skeletal_muscle.saltpan" >"$TMP/perturbed/muscle.saltpan"
+grep -q '\[K\] = 100 mM' "$TMP/perturbed/muscle.saltpan" || fail "the perturbation did not apply"
 expect_rc perturbed 1 test "$TMP/perturbed" --junit "$TMP/perturbed.xml"
 expect_grep perturbed out 'FAIL  line [0-9]+  reversal\(K, fibre\) == -98 mV within 1 mV: measured -86\.[0-9]+ mV; expected -98 mV within 1 mV'
 expect_grep perturbed out '^[0-9]+ passed, 1 failed$'
@@ -27,15 +27,15 @@ if command -v xmllint >/dev/null; then
 fi
 
 # A spec with errors: exit 65, the diagnostics on stderr.
-printf 'const a = 1 mV + 1 ms\nexpect rest(x) == 1 mV\n' >"$TMP/broken.brine"
-expect_rc broken 65 test "$TMP/broken.brine"
-expect_grep broken err 'broken.brine:1:[0-9]+: error: cannot add'
+printf 'const a = 1 mV + 1 ms\nexpect rest(x) == 1 mV\n' >"$TMP/broken.saltpan"
+expect_rc broken 65 test "$TMP/broken.saltpan"
+expect_grep broken err 'broken.saltpan:1:[0-9]+: error: cannot add'
 
 # Snapshots: make one of a copy, pass against it, then fail after a small change of the model.
 mkdir "$TMP/snap"
-cp "$SRC/specs/reference/squid_axon_1952.brine" "$TMP/snap/model.brine"
-cat >"$TMP/snap/check.brine" <<'SPEC'
-use "model.brine"
+cp "$SRC/specs/reference/squid_axon_1952.saltpan" "$TMP/snap/model.saltpan"
+cat >"$TMP/snap/check.saltpan" <<'SPEC'
+use "model.saltpan"
 protocol short {
   method rk4 step 10 us
   duration 30 ms
@@ -44,20 +44,20 @@ protocol short {
 }
 expect short: snapshot_max_error(axon.V, "check.short.snapshot.csv") < 1e-6 mV
 SPEC
-expect_rc snapshot 0 snapshot "$TMP/snap/check.brine"
+expect_rc snapshot 0 snapshot "$TMP/snap/check.saltpan"
 [ -f "$TMP/snap/check.short.snapshot.csv" ] || fail "snapshot: no file written"
 grep -q '^time (ms),axon.V (mV)$' "$TMP/snap/check.short.snapshot.csv" || fail "snapshot: header missing"
-expect_rc snapshot_pass 0 test "$TMP/snap/check.brine"
-sed -i 's/SquidPotassium1952 36 mS\/cm2/SquidPotassium1952 35.9 mS\/cm2/' "$TMP/snap/model.brine"
-grep -q 'SquidPotassium1952 35.9 mS/cm2' "$TMP/snap/model.brine" || fail "snapshot: the perturbation did not apply"
-expect_rc snapshot_fail 1 test "$TMP/snap/check.brine"
+expect_rc snapshot_pass 0 test "$TMP/snap/check.saltpan"
+sed -i 's/SquidPotassium1952 36 mS\/cm2/SquidPotassium1952 35.9 mS\/cm2/' "$TMP/snap/model.saltpan"
+grep -q 'SquidPotassium1952 35.9 mS/cm2' "$TMP/snap/model.saltpan" || fail "snapshot: the perturbation did not apply"
+expect_rc snapshot_fail 1 test "$TMP/snap/check.saltpan"
 expect_grep snapshot_fail out 'FAIL  line 8  short: snapshot_max_error'
 
 # Usage.
 expect_rc nopath 64 test
 expect_rc badopt 64 test --bogus "$SRC/specs"
 expect_rc help 0 test --help
-expect_grep help out 'usage: brine test'
+expect_grep help out 'usage: saltpan test'
 expect_rc missing 64 test "$TMP/does-not-exist"
 
 # The same results whatever the number of jobs.

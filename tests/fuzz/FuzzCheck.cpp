@@ -9,14 +9,14 @@
 #include <string>
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size) {
-  brine::Compilation c;
-  brine::compileText("fuzz.brine", std::string(reinterpret_cast<const char *>(data), size), c);
+  saltpan::Compilation c;
+  saltpan::compileText("fuzz.saltpan", std::string(reinterpret_cast<const char *>(data), size), c);
   // Render every diagnostic too: the renderer walks source lines and columns, and must
   // cope with whatever range a stage reported.
   size_t rendered = 0;
-  for (const brine::Diagnostic &d : c.diags.all())
-    rendered += brine::renderText(d).size();
-  rendered += brine::renderJson(c.diags.all()).size();
+  for (const saltpan::Diagnostic &d : c.diags.all())
+    rendered += saltpan::renderText(d).size();
+  rendered += saltpan::renderJson(c.diags.all()).size();
   // A compilation that reports no error must have reached the end of the pipeline.
   if (c.diags.errorCount() == 0 && !c.checked)
     __builtin_trap();

@@ -4,11 +4,11 @@
 #   bash tests/fuzz/run.sh [SECONDS] [BUILD_DIR] [LIBFUZZER_FLAG...]
 # SECONDS defaults to 600, BUILD_DIR to build-fuzz; further flags go to libFuzzer, e.g.
 # -detect_leaks=0 to look past a known leak.
-# Seeds: stdlib/*.brine, specs/**/*.brine, tests/diagnostics/**/*.brine, tests/fuzz/seeds/.
+# Seeds: stdlib/*.saltpan, specs/**/*.saltpan, tests/diagnostics/**/*.saltpan, tests/fuzz/seeds/.
 # The working corpus lives in BUILD_DIR/fuzz-corpus and grows across runs; crashes,
 # timeouts and leaks land in BUILD_DIR/fuzz-artifacts/. Copy a reproducer worth keeping
 # into tests/fuzz/regressions/ (ctest -R fuzz.regressions replays every file there).
-# Replay one input:   BUILD_DIR/brine_fuzz_check path/to/input
+# Replay one input:   BUILD_DIR/saltpan_fuzz_check path/to/input
 set -euo pipefail
 
 seconds=${1:-600}
@@ -22,16 +22,16 @@ case $build in /*) ;; *) build=$root/$build ;; esac
 
 cc=${CC:-clang-19}
 cxx=${CXX:-clang++-19}
-cmake -S "$root" -B "$build" -G Ninja -DBRINE_FUZZ=ON -DBRINE_SANITIZE=ON \
+cmake -S "$root" -B "$build" -G Ninja -DSALTPAN_FUZZ=ON -DSALTPAN_SANITIZE=ON \
   -DCMAKE_C_COMPILER="$cc" -DCMAKE_CXX_COMPILER="$cxx" >/dev/null
-cmake --build "$build" --target brine_fuzz_check
+cmake --build "$build" --target saltpan_fuzz_check
 
 corpus=$build/fuzz-corpus
 artifacts=$build/fuzz-artifacts
 mkdir -p "$corpus" "$artifacts"
 shopt -s nullglob globstar
-for seed in "$root"/stdlib/*.brine "$root"/specs/**/*.brine "$root"/tests/diagnostics/**/*.brine \
-            "$here"/seeds/*.brine; do
+for seed in "$root"/stdlib/*.saltpan "$root"/specs/**/*.saltpan "$root"/tests/diagnostics/**/*.saltpan \
+            "$here"/seeds/*.saltpan; do
   if [ -f "$seed" ]; then
     name=${seed#"$root"/}
     cp "$seed" "$corpus/seed-${name//\//_}"
@@ -49,6 +49,6 @@ done
 # One process, output on stderr (with -jobs=N libFuzzer writes fuzz-N.log instead).
 # -timeout: a single input taking 10 s is a hang. -max_len: specs are small; 64 KiB
 # still reaches the parser's length limits.
-exec "$build/brine_fuzz_check" "$corpus" \
-  -dict="$here/brine.dict" -max_total_time="$seconds" -timeout=10 -max_len=65536 \
+exec "$build/saltpan_fuzz_check" "$corpus" \
+  -dict="$here/saltpan.dict" -max_total_time="$seconds" -timeout=10 -max_len=65536 \
   -print_final_stats=1 -artifact_prefix="$artifacts/" "$@"

@@ -1,10 +1,10 @@
 #!/usr/bin/env python3
-"""Observed order of accuracy of brine's fixed-step methods on the Hodgkin-Huxley 1952 axon.
+"""Observed order of accuracy of saltpan's fixed-step methods on the Hodgkin-Huxley 1952 axon.
 
-usage: convergence_order.py BRINE SOURCE_DIR
+usage: convergence_order.py SALTPAN SOURCE_DIR
 
 From rest (-65 mV, gates at steady state), a 10 uA/cm2 step for 10 ms (the first spike and the
-recovery after it), V recorded every 0.08 ms. The model is specs/reference/squid_axon_1952.brine
+recovery after it), V recorded every 0.08 ms. The model is specs/reference/squid_axon_1952.saltpan
 with its protocol replaced in a temporary copy. Reference: dormand_prince at tolerance 1e-12
 (Dormand & Prince 1980). The slope of log(max |V - V_ref|) against log(step), fitted by least
 squares, must be about the method's order: exponential Euler (Rush & Larsen 1978; first order
@@ -56,22 +56,22 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
-    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.brine")
+    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.saltpan")
     with open(spec) as f:
         text = f.read()
     model = text[:text.index("\nprotocol ")] + "\n\n"
 
-    with tempfile.TemporaryDirectory(prefix="brine-convergence-") as directory:
+    with tempfile.TemporaryDirectory(prefix="saltpan-convergence-") as directory:
         def run(method, name):
-            path = os.path.join(directory, name + ".brine")
+            path = os.path.join(directory, name + ".saltpan")
             out = os.path.join(directory, name + ".json")
             with open(path, "w") as f:
                 f.write(model + PROTOCOL.format(method=method, duration=DURATION_MS, every=EVERY_MS))
-            cmd = [brine, "run", path, "-o", out]
+            cmd = [saltpan, "run", path, "-o", out]
             r = subprocess.run(cmd, capture_output=True, text=True)
             if r.returncode != 0:
                 fail(f"'{' '.join(cmd)}' ({method}) exited with {r.returncode}: {r.stderr.strip()}")

@@ -1,14 +1,14 @@
 #!/usr/bin/env python3
 """The native (JIT) engine and the reference interpreter give the same numbers.
 
-usage: engines_agree.py BRINE SOURCE_DIR
+usage: engines_agree.py SALTPAN SOURCE_DIR
 
-Every protocol of every shipped spec (specs/**/*.brine), plus temporary copies of
-specs/reference/squid_axon_1952.brine whose protocol uses rk4 and dormand_prince and records gates
+Every protocol of every shipped spec (specs/**/*.saltpan), plus temporary copies of
+specs/reference/squid_axon_1952.saltpan whose protocol uses rk4 and dormand_prince and records gates
 and currents, is run with `--engine interpreter` and `--engine jit`, written as JSON (full
 precision). When the JIT is there, each recorded quantity must agree to 1e-12 relative, measured
 as max |a - b| over the samples divided by max |a| (V crosses 0 mV, so not sample by sample), or to
-1e-12 absolute in the column's unit (for quantities that stay at or near zero). When this build has no JIT (brine says so), `--engine jit`
+1e-12 absolute in the column's unit (for quantities that stay at or near zero). When this build has no JIT (saltpan says so), `--engine jit`
 falls back to the interpreter and the numbers must be identical.
 Exit status 0 when every check passes; otherwise 1, with one line per failure.
 """
@@ -56,8 +56,8 @@ def protocols(path):
     return re.findall(r"^\s*protocol\s+([A-Za-z_][A-Za-z0-9_]*)\s*\{", text, re.M)
 
 
-def run(brine, spec, protocol, engine, out):
-    cmd = [brine, "run", spec, "--protocol", protocol, "--engine", engine, "-o", out]
+def run(saltpan, spec, protocol, engine, out):
+    cmd = [saltpan, "run", spec, "--protocol", protocol, "--engine", engine, "-o", out]
     r = subprocess.run(cmd, capture_output=True, text=True)
     if r.returncode != 0:
         fail(f"'{' '.join(cmd)}' exited with {r.returncode}: {r.stderr.strip()}")
@@ -110,17 +110,17 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
-    specs = sorted(glob.glob(os.path.join(source_dir, "specs", "**", "*.brine"), recursive=True))
-    with tempfile.TemporaryDirectory(prefix="brine-engines-") as directory:
-        base = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.brine")
+    specs = sorted(glob.glob(os.path.join(source_dir, "specs", "**", "*.saltpan"), recursive=True))
+    with tempfile.TemporaryDirectory(prefix="saltpan-engines-") as directory:
+        base = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.saltpan")
         with open(base) as f:
             text = f.read()
         model = text[:text.index("\nprotocol ")] + "\n\n"
-        variant = os.path.join(directory, "squid_axon_1952_variants.brine")
+        variant = os.path.join(directory, "squid_axon_1952_variants.saltpan")
         with open(variant, "w") as f:
             f.write(model + "".join(VARIANT.format(name=n, method=m) for n, m in VARIANT_METHODS.items()))
         runs = [(s, p) for s in specs for p in protocols(s)] + [(variant, p) for p in VARIANT_METHODS]
@@ -129,8 +129,8 @@ def main():
         jit_present = None
         for i, (spec, protocol) in enumerate(runs):
             label = f"{os.path.relpath(spec, source_dir) if spec != variant else 'temporary variant'} --protocol {protocol}"
-            a, _ = run(brine, spec, protocol, "interpreter", os.path.join(directory, f"{i}_interpreter.json"))
-            b, note = run(brine, spec, protocol, "jit", os.path.join(directory, f"{i}_jit.json"))
+            a, _ = run(saltpan, spec, protocol, "interpreter", os.path.join(directory, f"{i}_interpreter.json"))
+            b, note = run(saltpan, spec, protocol, "jit", os.path.join(directory, f"{i}_jit.json"))
             if a is None or b is None:
                 continue
             fallback = NO_JIT_NOTE in note

@@ -1,9 +1,9 @@
 #!/usr/bin/env python3
-"""The GHK resting potential reported by `brine show` against the closed form and published anchors.
+"""The GHK resting potential reported by `saltpan show` against the closed form and published anchors.
 
-usage: ghk_rest_published.py BRINE SOURCE_DIR
+usage: ghk_rest_published.py SALTPAN SOURCE_DIR
 
-The Hodgkin & Katz 1949 resting squid axon (specs/reference/hodgkin_katz_1949_rest.brine) must
+The Hodgkin & Katz 1949 resting squid axon (specs/reference/hodgkin_katz_1949_rest.saltpan) must
 report ghk_rest_mV equal to the closed-form GHK voltage equation, evaluated here in Python with the
 exact CODATA 2018 constants, to 1e-6 mV, and agree with the computed -62.27 mV and the textbook
 "about -60 mV". Temporary specs check the action-potential peak ratios (+42.37 mV), that only the
@@ -51,15 +51,15 @@ def ok(message):
     print("ok: " + message)
 
 
-def show(brine, path):
-    result = subprocess.run([brine, "show", path, "--format", "json"], capture_output=True, text=True)
+def show(saltpan, path):
+    result = subprocess.run([saltpan, "show", path, "--format", "json"], capture_output=True, text=True)
     if result.returncode != 0:
-        fail(f"'brine show {path} --format json' exited with {result.returncode}: {result.stderr.strip()}")
+        fail(f"'saltpan show {path} --format json' exited with {result.returncode}: {result.stderr.strip()}")
         return None
     try:
         return json.loads(result.stdout)
     except json.JSONDecodeError as e:
-        fail(f"'brine show {path} --format json' printed invalid JSON ({e})")
+        fail(f"'saltpan show {path} --format json' printed invalid JSON ({e})")
         return None
 
 
@@ -100,9 +100,9 @@ def rest_of(doc):
     return c["ghk_rest_mV"], c["ghk_channels"]
 
 
-def check_reference_spec(brine, source_dir):
-    path = os.path.join(source_dir, "specs", "reference", "hodgkin_katz_1949_rest.brine")
-    doc = show(brine, path)
+def check_reference_spec(saltpan, source_dir):
+    path = os.path.join(source_dir, "specs", "reference", "hodgkin_katz_1949_rest.saltpan")
+    doc = show(saltpan, path)
     if doc is None:
         return
     if abs(doc["temperature_K"] - (CELSIUS + ZERO_CELSIUS)) > 1e-9:
@@ -121,7 +121,7 @@ def check_reference_spec(brine, source_dir):
     if abs(rest - expected) > EXACT_TOLERANCE_MV:
         fail(f"{path}: ghk_rest_mV = {rest!r}, the closed-form GHK equation gives {expected!r} mV")
     else:
-        ok(f"Hodgkin & Katz 1949 rest: brine {rest!r} mV, closed form {expected!r} mV")
+        ok(f"Hodgkin & Katz 1949 rest: saltpan {rest!r} mV, closed form {expected!r} mV")
     if abs(rest - REST_COMPUTED_MV) > 0.005:
         fail(f"{path}: ghk_rest_mV = {rest} mV, references.md computes {REST_COMPUTED_MV} mV")
     if abs(rest - TEXTBOOK_REST_MV) > TEXTBOOK_TOLERANCE_MV:
@@ -131,15 +131,15 @@ def check_reference_spec(brine, source_dir):
     # The channel's own (GHK) reversal is the same zero-current potential.
     for m in c["membrane"]:
         if m.get("reversal_from") == "ghk" and abs(m["reversal_mV"] - expected) > EXACT_TOLERANCE_MV:
-            fail(f"{path}: {m['mechanism']} has GHK reversal {m['reversal_mV']} mV, expected {expected!r} mV")
+            fail(f"{path}: {m['entry']} has GHK reversal {m['reversal_mV']} mV, expected {expected!r} mV")
 
 
-def check_temporary(brine, directory):
+def check_temporary(saltpan, directory):
     def run(name, channels):
-        path = os.path.join(directory, name + ".brine")
+        path = os.path.join(directory, name + ".saltpan")
         with open(path, "w") as f:
             f.write(squid_spec(channels))
-        doc = show(brine, path)
+        doc = show(saltpan, path)
         return rest_of(doc) if doc else (None, 0)
 
     # Peak of the action potential: P_K : P_Na : P_Cl = 1 : 20 : 0.45 (Hodgkin & Katz 1949, from memory).
@@ -150,7 +150,7 @@ def check_temporary(brine, directory):
     elif abs(peak - PEAK_COMPUTED_MV) > 0.005:
         fail(f"peak ratios 1:20:0.45: {peak} mV, references.md computes {PEAK_COMPUTED_MV} mV")
     else:
-        ok(f"peak ratios: brine {peak!r} mV, closed form {expected!r} mV, references.md {PEAK_COMPUTED_MV:+.2f} mV")
+        ok(f"peak ratios: saltpan {peak!r} mV, closed form {expected!r} mV, references.md {PEAK_COMPUTED_MV:+.2f} mV")
 
     rest = ghk_voltage_mV(REST_RATIOS, SQUID, CELSIUS)
     # Only the ratios matter: scaling every permeability by 100 leaves the rest unchanged.
@@ -177,13 +177,13 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
-    check_reference_spec(brine, source_dir)
-    with tempfile.TemporaryDirectory(prefix="brine-ghk-") as directory:
-        check_temporary(brine, directory)
+    check_reference_spec(saltpan, source_dir)
+    with tempfile.TemporaryDirectory(prefix="saltpan-ghk-") as directory:
+        check_temporary(saltpan, directory)
     if failures:
         print(f"{len(failures)} check(s) failed")
         return 1

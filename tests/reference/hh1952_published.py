@@ -1,11 +1,11 @@
 #!/usr/bin/env python3
-"""Published behaviours of the Hodgkin-Huxley 1952 axon, simulated by `brine run`.
+"""Published behaviours of the Hodgkin-Huxley 1952 axon, simulated by `saltpan run`.
 
-usage: hh1952_published.py BRINE SOURCE_DIR
+usage: hh1952_published.py SALTPAN SOURCE_DIR
 
-Runs the protocols of specs/reference/squid_axon_1952_experiments.brine (the model of
-squid_axon_1952.brine with accurate Dormand-Prince protocols) and the shipped protocol step10 of
-squid_axon_1952.brine, and checks: the gates at -65 mV and the resting potential; the firing rate
+Runs the protocols of specs/reference/squid_axon_1952_experiments.saltpan (the model of
+squid_axon_1952.saltpan with accurate Dormand-Prince protocols) and the shipped protocol step10 of
+squid_axon_1952.saltpan, and checks: the gates at -65 mV and the resting potential; the firing rate
 at 10 uA/cm2 from the steady interspike interval; that repetitive firing for a step from rest
 starts between 6.2 and 6.3 uA/cm2; and that the f-I curve starts near 50 Hz.
 Exit status 0 when every check passes; otherwise 1, with one line per failure.
@@ -57,9 +57,9 @@ def spike_times(t, v, threshold=0.0):
     return t[i] + (threshold - v[i]) * (t[i + 1] - t[i]) / (v[i + 1] - v[i])
 
 
-def run(brine, spec, protocol, directory):
+def run(saltpan, spec, protocol, directory):
     out = os.path.join(directory, protocol + ".csv")
-    cmd = [brine, "run", spec, "--protocol", protocol, "-o", out]
+    cmd = [saltpan, "run", spec, "--protocol", protocol, "-o", out]
     r = subprocess.run(cmd, capture_output=True, text=True)
     if r.returncode != 0:
         fail(f"'{' '.join(cmd)}' exited with {r.returncode}: {r.stderr.strip()}")
@@ -111,18 +111,18 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
-    base = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.brine")
-    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952_experiments.brine")
+    base = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.saltpan")
+    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952_experiments.saltpan")
     if model_part(base) != model_part(spec):
         fail(f"the model in {spec} is no longer the one in {base}")
 
-    with tempfile.TemporaryDirectory(prefix="brine-hh-published-") as directory:
+    with tempfile.TemporaryDirectory(prefix="saltpan-hh-published-") as directory:
         # Gates at -65 mV and the resting potential (references.md, computed).
-        rest = run(brine, spec, "rest", directory)
+        rest = run(saltpan, spec, "rest", directory)
         if rest is not None:
             for name, expected in GATES_AT_MINUS_65.items():
                 got = rest[name][0]
@@ -141,7 +141,7 @@ def main():
                 ok(f"resting potential within {REST_TOLERANCE_MV} mV of {REST_MV} mV (references.md, computed)")
 
         # Firing at 10 uA/cm2: the accurate protocol, then the shipped one.
-        dp = run(brine, spec, "step10_dp", directory)
+        dp = run(saltpan, spec, "step10_dp", directory)
         if dp is not None:
             period = steady_rate("step10_dp", dp)
             if period is not None:
@@ -151,17 +151,17 @@ def main():
                 else:
                     ok(f"step10_dp: period within {PERIOD_TOLERANCE_MS} ms of {PERIOD_10_MS} ms (references.md, "
                        f"computed)")
-        shipped = run(brine, base, "step10", directory)
+        shipped = run(saltpan, base, "step10", directory)
         if shipped is not None:
             period = steady_rate("step10 as shipped", shipped)
             if period is not None:
-                check_rate("step10 as shipped (squid_axon_1952.brine, exponential_euler 10 us)", period)
+                check_rate("step10 as shipped (squid_axon_1952.saltpan, exponential_euler 10 us)", period)
 
         # Onset of repetitive firing between 6.2 and 6.3 uA/cm2 (Rinzel & Miller 1980, about 6.26,
         # from memory; references.md computes 6.2603).
         counts = {}
         for protocol, amplitude in (("below_onset", BELOW_ONSET), ("above_onset", ABOVE_ONSET)):
-            c = run(brine, spec, protocol, directory)
+            c = run(saltpan, spec, protocol, directory)
             if c is None:
                 continue
             times = spike_times(c["time"], c["axon.V"])

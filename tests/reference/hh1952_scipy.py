@@ -1,12 +1,12 @@
 #!/usr/bin/env python3
-"""Spike times of the Hodgkin-Huxley 1952 axon in brine against an independent SciPy integration.
+"""Spike times of the Hodgkin-Huxley 1952 axon in saltpan against an independent SciPy integration.
 
-usage: hh1952_scipy.py BRINE SOURCE_DIR
+usage: hh1952_scipy.py SALTPAN SOURCE_DIR
 
 The published HH 1952 equations (modern convention, 6.3 degC; written out below from the project's
-references.md, not from brine's stdlib) are integrated with SciPy's solve_ivp (Virtanen et al. 2020,
+references.md, not from saltpan's stdlib) are integrated with SciPy's solve_ivp (Virtanen et al. 2020,
 Nature Methods 17:261-272) at rtol 1e-10, atol 1e-12, for the 10 uA/cm2 step of 200 ms from
-V = -65 mV with the gates at their steady state. brine runs specs/reference/squid_axon_1952.brine,
+V = -65 mV with the gates at their steady state. saltpan runs specs/reference/squid_axon_1952.saltpan,
 protocol step10 (exponential Euler, 10 us, as shipped), and a temporary copy with the method
 changed to dormand_prince. Spike times are upward crossings of 0 mV, linearly interpolated between
 samples 0.01 ms apart. Acceptance criterion (the issue's): every spike within 0.05 ms of SciPy's.
@@ -29,7 +29,7 @@ C_M = 1.0
 G_NA, G_K, G_L = 120.0, 36.0, 0.3
 # E_Na = +50, E_K = -77, E_L = -54.387 mV (memory: Dayan & Abbott 2001 ch. 5).
 E_NA, E_K, E_L = 50.0, -77.0, -54.387
-V0 = -65.0  # start, gates at steady state (the brief; squid_axon_1952.brine 'initial V = -65 mV')
+V0 = -65.0  # start, gates at steady state (the brief; squid_axon_1952.saltpan 'initial V = -65 mV')
 I_STEP = 10.0  # uA/cm2, from 0 to 200 ms (protocol step10)
 DURATION = 200.0  # ms
 SAMPLE = 0.01  # ms, the protocol's recording interval
@@ -114,8 +114,8 @@ def read_csv(path):
     return header, data
 
 
-def run_brine(brine, spec, out, extra=()):
-    cmd = [brine, "run", spec, "--protocol", "step10", *extra, "-o", out]
+def run_saltpan(saltpan, spec, out, extra=()):
+    cmd = [saltpan, "run", spec, "--protocol", "step10", *extra, "-o", out]
     r = subprocess.run(cmd, capture_output=True, text=True)
     if r.returncode != 0:
         fail(f"'{' '.join(cmd)}' exited with {r.returncode}: {r.stderr.strip()}")
@@ -210,11 +210,11 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
-    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.brine")
+    spec = os.path.join(source_dir, "specs", "reference", "squid_axon_1952.saltpan")
     with open(spec) as f:
         text = f.read()
     method_line = re.compile(r"^(\s*)method\s+\w+\s+step\s+10\s+us\s*$", re.M)
@@ -227,18 +227,18 @@ def main():
         print(f"{len(failures)} check(s) failed")
         return 1
 
-    with tempfile.TemporaryDirectory(prefix="brine-hh-scipy-") as directory:
+    with tempfile.TemporaryDirectory(prefix="saltpan-hh-scipy-") as directory:
         # As shipped (RK4 at 10 us): the issue's criterion, every spike within 0.05 ms.
-        data = run_brine(brine, spec, os.path.join(directory, "shipped.csv"))
+        data = run_saltpan(saltpan, spec, os.path.join(directory, "shipped.csv"))
         if data is not None:
-            compare("brine step10 as shipped (rk4 10 us)", data, reference)
+            compare("saltpan step10 as shipped (rk4 10 us)", data, reference)
         # Exponential Euler is first order: at 10 us it drifts (reported, not a check), at
         # 0.25 us it meets the criterion.
         for step, checked in (("10", False), ("0.25", True)):
-            variant = os.path.join(directory, f"squid_axon_1952_ee{step}.brine")
+            variant = os.path.join(directory, f"squid_axon_1952_ee{step}.saltpan")
             with open(variant, "w") as f:
                 f.write(method_line.sub(rf"\1method exponential_euler step {step} us", text))
-            data = run_brine(brine, variant, os.path.join(directory, f"ee{step}.csv"))
+            data = run_saltpan(saltpan, variant, os.path.join(directory, f"ee{step}.csv"))
             if data is None:
                 continue
             ours = spike_times(data[:, 0], data[:, 1])
@@ -249,24 +249,24 @@ def main():
                     t, v = exponential_euler_python(0.01)
                     same = spike_times(t, v)
                     if len(same) == len(ours):
-                        print(f"  the same Rush-Larsen scheme written in Python differs from brine by "
+                        print(f"  the same Rush-Larsen scheme written in Python differs from saltpan by "
                               f"{np.max(np.abs(same - ours)):.2g} ms")
                 continue
-            compare(f"brine exponential_euler {step} us", data, reference)
+            compare(f"saltpan exponential_euler {step} us", data, reference)
         # The stiff (Rosenbrock ROS2, second order) method at a moderate tolerance.
-        variant = os.path.join(directory, "squid_axon_1952_ros.brine")
+        variant = os.path.join(directory, "squid_axon_1952_ros.saltpan")
         with open(variant, "w") as f:
             f.write(method_line.sub(r"\1method rosenbrock step 10 us tolerance 1e-7", text))
-        data = run_brine(brine, variant, os.path.join(directory, "ros.csv"))
+        data = run_saltpan(saltpan, variant, os.path.join(directory, "ros.csv"))
         if data is not None:
-            compare("brine rosenbrock tolerance 1e-7", data, reference)
+            compare("saltpan rosenbrock tolerance 1e-7", data, reference)
         # The same protocol with the adaptive method.
-        variant = os.path.join(directory, "squid_axon_1952_dp.brine")
+        variant = os.path.join(directory, "squid_axon_1952_dp.saltpan")
         with open(variant, "w") as f:
             f.write(method_line.sub(r"\1method dormand_prince step 10 us tolerance 1e-10", text))
-        data = run_brine(brine, variant, os.path.join(directory, "dp.csv"))
+        data = run_saltpan(saltpan, variant, os.path.join(directory, "dp.csv"))
         if data is not None:
-            compare("brine dormand_prince tolerance 1e-10", data, reference, tight=ACCURATE_TOLERANCE_MS)
+            compare("saltpan dormand_prince tolerance 1e-10", data, reference, tight=ACCURATE_TOLERANCE_MS)
 
     if failures:
         print(f"{len(failures)} check(s) failed")

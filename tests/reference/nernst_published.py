@@ -1,15 +1,15 @@
 #!/usr/bin/env python3
-"""Nernst potentials reported by `brine show` against published tables and exact constants.
+"""Nernst potentials reported by `saltpan show` against published tables and exact constants.
 
-usage: nernst_published.py BRINE SOURCE_DIR
+usage: nernst_published.py SALTPAN SOURCE_DIR
 
 Checks, in order:
   1. the muscle and squid reference specs against the published textbook tables (the tolerance
      follows from the tables' rounding, see TABLE_TOLERANCE_MV);
-  2. every compartment and ion of every shipped spec (specs/**/*.brine) against an independent
+  2. every compartment and ion of every shipped spec (specs/**/*.saltpan) against an independent
      computation from the exact CODATA 2018 constants, to 1e-6 mV;
   3. RT/F at 6.3, 20 and 37 degC: Python, the computed values in references.md, GNU units and
-     brine itself, to 1e-6 relative;
+     saltpan itself, to 1e-6 relative;
   4. invariants on small temporary specs: z*E is unchanged when the valence flips sign, swapping
      the sides flips the sign of E, E/T is constant, equal concentrations give E = 0.
 Exit status 0 when everything agrees; otherwise 1, with one line per failure.
@@ -73,15 +73,15 @@ def ok(message):
     print("ok: " + message)
 
 
-def show(brine, path):
-    result = subprocess.run([brine, "show", path, "--format", "json"], capture_output=True, text=True)
+def show(saltpan, path):
+    result = subprocess.run([saltpan, "show", path, "--format", "json"], capture_output=True, text=True)
     if result.returncode != 0:
-        fail(f"'brine show {path} --format json' exited with {result.returncode}: {result.stderr.strip()}")
+        fail(f"'saltpan show {path} --format json' exited with {result.returncode}: {result.stderr.strip()}")
         return None
     try:
         return json.loads(result.stdout)
     except json.JSONDecodeError as e:
-        fail(f"'brine show {path} --format json' printed invalid JSON ({e})")
+        fail(f"'saltpan show {path} --format json' printed invalid JSON ({e})")
         return None
 
 
@@ -101,8 +101,8 @@ def ions_of(doc, compartment=None):
     return {}
 
 
-def check_table(brine, path, table, celsius, source):
-    doc = show(brine, path)
+def check_table(saltpan, path, table, celsius, source):
+    doc = show(saltpan, path)
     if doc is None:
         return
     rel = os.path.relpath(path)
@@ -123,18 +123,18 @@ def check_table(brine, path, table, celsius, source):
             ok(f"{rel}: E_{name} = {e:+.3f} mV vs {listed:+.0f} mV listed in {source} (diff {e - listed:+.3f} mV)")
 
 
-def check_exact_everywhere(brine, source_dir):
-    specs = sorted(glob.glob(os.path.join(source_dir, "specs", "**", "*.brine"), recursive=True))
+def check_exact_everywhere(saltpan, source_dir):
+    specs = sorted(glob.glob(os.path.join(source_dir, "specs", "**", "*.saltpan"), recursive=True))
     if len(specs) < 2:
         fail(f"found only {len(specs)} shipped specs under {source_dir}/specs")
     checked = 0
     for path in specs:
-        doc = show(brine, path)
+        doc = show(saltpan, path)
         if doc is None:
             continue
         rel = os.path.relpath(path, source_dir)
         if doc["constants"]["R_J_per_mol_K"] != R or doc["constants"]["F_C_per_mol"] != F:
-            fail(f"{rel}: brine reports R = {doc['constants']['R_J_per_mol_K']}, F = {doc['constants']['F_C_per_mol']}, "
+            fail(f"{rel}: saltpan reports R = {doc['constants']['R_J_per_mol_K']}, F = {doc['constants']['F_C_per_mol']}, "
                  f"not the exact CODATA 2018 values {R}, {F}")
         kelvin = doc["temperature_K"]
         if kelvin is None:
@@ -162,7 +162,7 @@ def check_exact_everywhere(brine, source_dir):
                 if m.get("reversal_from") == "nernst":
                     e = m["reversal_mV"]
                     if e is None or not any(abs(e - r) <= EXACT_TOLERANCE_MV for r in reversals):
-                        fail(f"{rel}: compartment {c['name']}, {m['mechanism']}: Nernst reversal {e} mV "
+                        fail(f"{rel}: compartment {c['name']}, {m['entry']}: Nernst reversal {e} mV "
                              f"matches none of the ions' reversals")
     ok(f"{checked} ion reversals in {len(specs)} shipped specs match the exact-constant Nernst equation "
        f"to {EXACT_TOLERANCE_MV} mV")
@@ -202,7 +202,7 @@ def probe_spec(celsius, ions, outside, inside):
     return "\n".join(lines) + "\n"
 
 
-def check_rt_over_f(brine, directory):
+def check_rt_over_f(saltpan, directory):
     if shutil.which("units") is None:
         fail("GNU units is not installed (needed for the independent RT/F cross-check)")
         return
@@ -213,26 +213,26 @@ def check_rt_over_f(brine, directory):
         except (RuntimeError, ValueError) as e:
             fail(str(e))
             continue
-        # brine's own RT/F: the Nernst potential of a monovalent ion with out/in = e.
-        path = write_spec(directory, f"rtf_{celsius}.brine",
+        # saltpan's own RT/F: the Nernst potential of a monovalent ion with out/in = e.
+        path = write_spec(directory, f"rtf_{celsius}.saltpan",
                           probe_spec(celsius, {"Xp": 1}, {"Xp": 10 * math.e}, {"Xp": 10.0}))
-        doc = show(brine, path)
+        doc = show(saltpan, path)
         mine = ions_of(doc)["Xp"]["reversal_mV"] if doc else None
         for label, value, tol in (("GNU units", theirs, RELATIVE_TOLERANCE),
                                   ("references.md (computed, 8 figures)", listed, 5e-7 / listed + 1e-12),
-                                  ("brine", mine, RELATIVE_TOLERANCE)):
+                                  ("saltpan", mine, RELATIVE_TOLERANCE)):
             if value is None or abs(value - ours) > tol * ours:
                 fail(f"RT/F at {celsius} degC: {label} gives {value} mV, exact constants give {ours!r} mV")
-        ok(f"RT/F at {celsius} degC = {ours:.9f} mV (GNU units {theirs!r}, brine {mine!r})")
+        ok(f"RT/F at {celsius} degC = {ours:.9f} mV (GNU units {theirs!r}, saltpan {mine!r})")
 
 
-def check_invariants(brine, directory):
+def check_invariants(saltpan, directory):
     tol = EXACT_TOLERANCE_MV
     # z*E is the same for valences +1, -1, +2, -2 at the same concentrations.
     ions = {"Xa": 1, "Xb": -1, "Xc": 2, "Xd": -2}
     out = {n: 150.0 for n in ions}
     inside = {n: 7.5 for n in ions}
-    doc = show(brine, write_spec(directory, "valence.brine", probe_spec(37.0, ions, out, inside)))
+    doc = show(saltpan, write_spec(directory, "valence.saltpan", probe_spec(37.0, ions, out, inside)))
     if doc:
         got = ions_of(doc)
         ze = {n: ions[n] * got[n]["reversal_mV"] for n in ions}
@@ -241,7 +241,7 @@ def check_invariants(brine, directory):
         else:
             ok(f"z*E = {ze['Xa']:.9f} mV for valences +1, -1, +2, -2")
         # Swapping the sides flips the sign.
-        swapped = show(brine, write_spec(directory, "swapped.brine", probe_spec(37.0, ions, inside, out)))
+        swapped = show(saltpan, write_spec(directory, "swapped.saltpan", probe_spec(37.0, ions, inside, out)))
         if swapped:
             back = ions_of(swapped)
             for n in ions:
@@ -251,7 +251,7 @@ def check_invariants(brine, directory):
     # E/T is constant.
     ratios = []
     for celsius in (0.0, 6.3, 20.0, 37.0, 45.0):
-        d = show(brine, write_spec(directory, f"temp_{celsius}.brine",
+        d = show(saltpan, write_spec(directory, f"temp_{celsius}.saltpan",
                                    probe_spec(celsius, {"Xa": 1}, {"Xa": 140.0}, {"Xa": 5.0})))
         if d:
             ratios.append(ions_of(d)["Xa"]["reversal_mV"] / d["temperature_K"])
@@ -260,7 +260,7 @@ def check_invariants(brine, directory):
     elif ratios:
         ok(f"E/T = {ratios[0]:.12f} mV/K at 0, 6.3, 20, 37, 45 degC")
     # Equal concentrations give E = 0.
-    d = show(brine, write_spec(directory, "equal.brine", probe_spec(37.0, ions, out, out)))
+    d = show(saltpan, write_spec(directory, "equal.saltpan", probe_spec(37.0, ions, out, out)))
     if d:
         for n, ion in ions_of(d).items():
             if ion["reversal_mV"] is None or abs(ion["reversal_mV"]) > 1e-12:
@@ -272,19 +272,19 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__)
         return 2
-    brine, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
-    if not (os.path.isfile(brine) and os.access(brine, os.X_OK)):
-        print(f"FAIL: {brine} is not an executable brine")
+    saltpan, source_dir = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
+    if not (os.path.isfile(saltpan) and os.access(saltpan, os.X_OK)):
+        print(f"FAIL: {saltpan} is not an executable saltpan")
         return 1
     reference = os.path.join(source_dir, "specs", "reference")
-    check_table(brine, os.path.join(reference, "mammalian_skeletal_muscle.brine"), HILLE_2001_MUSCLE,
+    check_table(saltpan, os.path.join(reference, "mammalian_skeletal_muscle.saltpan"), HILLE_2001_MUSCLE,
                 HILLE_2001_CELSIUS, "Hille 2001 Table 1.1 (from memory)")
-    check_table(brine, os.path.join(reference, "squid_axon_ions.brine"), KANDEL_5_SQUID, KANDEL_5_CELSIUS,
+    check_table(saltpan, os.path.join(reference, "squid_axon_ions.saltpan"), KANDEL_5_SQUID, KANDEL_5_CELSIUS,
                 "Kandel 5th ed. Table 6-1 (E from memory)")
-    check_exact_everywhere(brine, source_dir)
-    with tempfile.TemporaryDirectory(prefix="brine-nernst-") as directory:
-        check_rt_over_f(brine, directory)
-        check_invariants(brine, directory)
+    check_exact_everywhere(saltpan, source_dir)
+    with tempfile.TemporaryDirectory(prefix="saltpan-nernst-") as directory:
+        check_rt_over_f(saltpan, directory)
+        check_invariants(saltpan, directory)
     if failures:
         print(f"{len(failures)} check(s) failed")
         return 1

@@ -1,10 +1,10 @@
 #!/usr/bin/env python3
-"""Resting potentials of a brine sweep over the HH 1952 leak reversal against SciPy's brentq.
+"""Resting potentials of a saltpan sweep over the HH 1952 leak reversal against SciPy's brentq.
 
-usage: sweep_rest_scipy.py BRINE SOURCE_DIR
+usage: sweep_rest_scipy.py SALTPAN SOURCE_DIR
 
-brine sweeps the leak reversal E_L of specs/reference/squid_axon_1952.brine (the shipped `leak`
-sweep of squid_axon_1952_sweeps.brine, and a longer list written with --values), measuring
+saltpan sweeps the leak reversal E_L of specs/reference/squid_axon_1952.saltpan (the shipped `leak`
+sweep of squid_axon_1952_sweeps.saltpan, and a longer list written with --values), measuring
 rest(axon). Each point's rest is compared with the zero of the steady-state membrane current
 
     I(V) = gNa m_inf^3 h_inf (V - E_Na) + gK n_inf^4 (V - E_K) + gL (V - E_L),
@@ -86,11 +86,11 @@ def scipy_rest(e_leak, failures):
     return brentq(membrane_current, brackets[0][0], brackets[0][1], args=(e_leak,), xtol=1e-13, rtol=1e-15)
 
 
-def sweep(brine, args, out, failures, name):
-    result = subprocess.run([brine, "sweep", "--progress", "none", "-o", out] + args, capture_output=True, text=True,
+def sweep(saltpan, args, out, failures, name):
+    result = subprocess.run([saltpan, "sweep", "--progress", "none", "-o", out] + args, capture_output=True, text=True,
                             timeout=120)
     if result.returncode != 0:
-        failures.append(f"{name}: brine sweep exited {result.returncode}: {result.stderr.strip()[:300]}")
+        failures.append(f"{name}: saltpan sweep exited {result.returncode}: {result.stderr.strip()[:300]}")
         return None
     with open(out, encoding="utf-8") as f:
         return json.load(f)
@@ -118,7 +118,7 @@ def compare(doc, name, failures):
             continue
         compared += 1
         if abs(rest - expected) > TOLERANCE_MV:
-            failures.append(f"{name}: E_L = {e_leak} mV: brine's rest {rest!r} mV, SciPy brentq {expected!r} mV "
+            failures.append(f"{name}: E_L = {e_leak} mV: saltpan's rest {rest!r} mV, SciPy brentq {expected!r} mV "
                             f"(difference {rest - expected:.3g} mV, tolerance {TOLERANCE_MV} mV)")
     return compared
 
@@ -127,21 +127,21 @@ def main():
     if len(sys.argv) != 3:
         print(__doc__.strip().splitlines()[2], file=sys.stderr)
         return 2
-    brine, src = sys.argv[1], sys.argv[2]
-    spec = os.path.join(src, "specs", "reference", "squid_axon_1952.brine")
-    sweeps = os.path.join(src, "specs", "reference", "squid_axon_1952_sweeps.brine")
+    saltpan, src = sys.argv[1], sys.argv[2]
+    spec = os.path.join(src, "specs", "reference", "squid_axon_1952.saltpan")
+    sweeps = os.path.join(src, "specs", "reference", "squid_axon_1952_sweeps.saltpan")
     failures = []
     # A sanity check of the Python model: the published rest at E_L = -54.387 mV is about -65 mV.
     published = scipy_rest(-54.387, failures)
     if published is not None and abs(published - -65.0) > 0.01:
         failures.append(f"the Python model's rest at E_L = -54.387 mV is {published} mV, not about -65 mV")
     with tempfile.TemporaryDirectory() as tmp:
-        shipped = sweep(brine, ["--sweep", "leak", sweeps], os.path.join(tmp, "leak.json"), failures, "leak")
+        shipped = sweep(saltpan, ["--sweep", "leak", sweeps], os.path.join(tmp, "leak.json"), failures, "leak")
         if shipped is not None:
             if compare(shipped, "leak", failures) != 3:
                 failures.append("leak: the shipped sweep should compare 3 points")
         values = ",".join(f"{v}mV" for v in LEAK_VALUES)
-        listed = sweep(brine, ["--values", f"axon.SquidLeak1952.reversal={values}", "--measure", "rest(axon)", spec],
+        listed = sweep(saltpan, ["--values", f"axon.SquidLeak1952.reversal={values}", "--measure", "rest(axon)", spec],
                        os.path.join(tmp, "values.json"), failures, "values")
         if listed is not None:
             got = [p["parameters"][0] for p in listed["points"]]

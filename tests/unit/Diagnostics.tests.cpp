@@ -4,7 +4,7 @@
 #include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
 
-using namespace brine;
+using namespace saltpan;
 
 namespace {
 
@@ -16,7 +16,7 @@ SourceRange bytes(const SourceFile &f, uint32_t first, uint32_t last) {
 } // namespace
 
 TEST_CASE("the engine counts errors and warnings, not notes", "[diag]") {
-  SourceFile f("spec.brine", "x\n");
+  SourceFile f("spec.saltpan", "x\n");
   DiagnosticEngine e;
   auto &d = e.error(bytes(f, 0, 0), "first");
   DiagnosticEngine::note(d, {}, "a note");
@@ -32,18 +32,18 @@ TEST_CASE("the engine counts errors and warnings, not notes", "[diag]") {
 }
 
 TEST_CASE("renderText: location, source line, caret and underline", "[diag]") {
-  SourceFile f("spec.brine", "# units\nconst a = 1 mV + 2 ms\n");
+  SourceFile f("spec.saltpan", "# units\nconst a = 1 mV + 2 ms\n");
   // "1 mV" is bytes 18..21 (columns 11..14 of line 2).
   Diagnostic d{Severity::Error, bytes(f, 18, 21), "cannot add a voltage (mV) with a time (ms)", {}};
-  CHECK(renderText(d) == "spec.brine:2:11: error: cannot add a voltage (mV) with a time (ms)\n"
+  CHECK(renderText(d) == "spec.saltpan:2:11: error: cannot add a voltage (mV) with a time (ms)\n"
                          "  const a = 1 mV + 2 ms\n"
                          "            ^~~~\n");
 }
 
 TEST_CASE("renderText: a one-character range is a lone caret", "[diag]") {
-  SourceFile f("spec.brine", "const a = 1 mV + 2 ms\n");
+  SourceFile f("spec.saltpan", "const a = 1 mV + 2 ms\n");
   Diagnostic d{Severity::Warning, bytes(f, 15, 15), "odd", {}};
-  CHECK(renderText(d) == "spec.brine:1:16: warning: odd\n"
+  CHECK(renderText(d) == "spec.saltpan:1:16: warning: odd\n"
                          "  const a = 1 mV + 2 ms\n"
                          "                 ^\n");
   // An invalid end is treated like a single point.
@@ -52,60 +52,60 @@ TEST_CASE("renderText: a one-character range is a lone caret", "[diag]") {
 }
 
 TEST_CASE("renderText: notes with and without a place", "[diag]") {
-  SourceFile f("spec.brine", "const a = 1 mV + 2 ms\n");
+  SourceFile f("spec.saltpan", "const a = 1 mV + 2 ms\n");
   Diagnostic d{Severity::Error, bytes(f, 15, 15), "cannot add a voltage (mV) with a time (ms)", {}};
   DiagnosticEngine::note(d, bytes(f, 10, 13), "this is a voltage (mV)");
   DiagnosticEngine::note(d, bytes(f, 17, 20), "this is a time (ms)");
   DiagnosticEngine::note(d, {}, "convert one side first");
-  CHECK(renderText(d) == "spec.brine:1:16: error: cannot add a voltage (mV) with a time (ms)\n"
+  CHECK(renderText(d) == "spec.saltpan:1:16: error: cannot add a voltage (mV) with a time (ms)\n"
                          "  const a = 1 mV + 2 ms\n"
                          "                 ^\n"
-                         "spec.brine:1:11: note: this is a voltage (mV)\n"
+                         "spec.saltpan:1:11: note: this is a voltage (mV)\n"
                          "  const a = 1 mV + 2 ms\n"
                          "            ^~~~\n"
-                         "spec.brine:1:18: note: this is a time (ms)\n"
+                         "spec.saltpan:1:18: note: this is a time (ms)\n"
                          "  const a = 1 mV + 2 ms\n"
                          "                   ^~~~\n"
                          "note: convert one side first\n");
 }
 
 TEST_CASE("renderText: a diagnostic without a place names the tool", "[diag]") {
-  Diagnostic d{Severity::Error, {}, "cannot read 'x.brine': cannot open file", {}};
-  CHECK(renderText(d) == "brine: error: cannot read 'x.brine': cannot open file\n");
+  Diagnostic d{Severity::Error, {}, "cannot read 'x.saltpan': cannot open file", {}};
+  CHECK(renderText(d) == "saltpan: error: cannot read 'x.saltpan': cannot open file\n");
 }
 
 TEST_CASE("renderText: the caret counts code points, so it lines up after µ", "[diag]") {
   // "µ" is two bytes but one column.
-  SourceFile f("spec.brine", "const d = 5 \u00B5m + 1 s\n");
+  SourceFile f("spec.saltpan", "const d = 5 \u00B5m + 1 s\n");
   // '+' is byte 16, column 16; "1 s" bytes 18..20.
   Diagnostic d{Severity::Error, bytes(f, 16, 16), "bad", {}};
   DiagnosticEngine::note(d, bytes(f, 18, 20), "this");
-  CHECK(renderText(d) == "spec.brine:1:16: error: bad\n"
+  CHECK(renderText(d) == "spec.saltpan:1:16: error: bad\n"
                          "  const d = 5 \u00B5m + 1 s\n"
                          "                 ^\n"
-                         "spec.brine:1:18: note: this\n"
+                         "spec.saltpan:1:18: note: this\n"
                          "  const d = 5 \u00B5m + 1 s\n"
                          "                   ^~~\n");
 }
 
 TEST_CASE("renderText: tabs are shown as single spaces", "[diag]") {
-  SourceFile f("spec.brine", "\tx = 1\n");
+  SourceFile f("spec.saltpan", "\tx = 1\n");
   Diagnostic d{Severity::Error, bytes(f, 1, 1), "bad", {}};
-  CHECK(renderText(d) == "spec.brine:1:2: error: bad\n"
+  CHECK(renderText(d) == "spec.saltpan:1:2: error: bad\n"
                          "   x = 1\n"
                          "   ^\n");
 }
 
 TEST_CASE("renderText: a range over several lines underlines to the end of the first", "[diag]") {
-  SourceFile f("spec.brine", "inside {\n  [K] = 1 mM\n}\n");
+  SourceFile f("spec.saltpan", "inside {\n  [K] = 1 mM\n}\n");
   Diagnostic d{Severity::Warning, bytes(f, 0, 21), "not neutral", {}};
-  CHECK(renderText(d) == "spec.brine:1:1: warning: not neutral\n"
+  CHECK(renderText(d) == "spec.saltpan:1:1: warning: not neutral\n"
                          "  inside {\n"
                          "  ^~~~~~~~\n");
 }
 
 TEST_CASE("renderText: colour only when asked", "[diag]") {
-  SourceFile f("spec.brine", "x\n");
+  SourceFile f("spec.saltpan", "x\n");
   Diagnostic d{Severity::Error, bytes(f, 0, 0), "bad", {}};
   CHECK(renderText(d, false).find('\033') == std::string::npos);
   std::string coloured = renderText(d, true);
@@ -114,7 +114,7 @@ TEST_CASE("renderText: colour only when asked", "[diag]") {
 }
 
 TEST_CASE("renderJson: one document with diagnostics, errors and warnings", "[diag]") {
-  SourceFile f("spec.brine", "const a = 1 mV + 2 ms\n");
+  SourceFile f("spec.saltpan", "const a = 1 mV + 2 ms\n");
   std::vector<Diagnostic> all;
   all.push_back({Severity::Error, bytes(f, 15, 15), "cannot add", {}});
   all.back().notes.push_back({bytes(f, 10, 13), "this is a voltage (mV)"});
@@ -134,7 +134,7 @@ TEST_CASE("renderJson: one document with diagnostics, errors and warnings", "[di
   auto &first = list[0];
   CHECK(first["severity"] == "error");
   CHECK(first["message"] == "cannot add");
-  CHECK(first["location"]["file"] == "spec.brine");
+  CHECK(first["location"]["file"] == "spec.saltpan");
   CHECK(first["location"]["line"] == 1);
   CHECK(first["location"]["column"] == 16);
   CHECK(first["location"]["end_line"] == 1);
@@ -161,7 +161,7 @@ TEST_CASE("renderJson: no diagnostics is still a complete document", "[diag]") {
 
 TEST_CASE("renderJson: a file name that is not UTF-8 still gives a JSON document", "[diag]") {
   // Paths on Linux are bytes; a diagnostic must not turn into an internal error.
-  SourceFile f("bad\xFF.brine", "x\n");
+  SourceFile f("bad\xFF.saltpan", "x\n");
   std::vector<Diagnostic> all{{Severity::Error, bytes(f, 0, 0), "bad", {}}};
   std::string text;
   REQUIRE_NOTHROW(text = renderJson(all));

@@ -4,7 +4,7 @@
 
 #include <cmath>
 
-using namespace brine;
+using namespace saltpan;
 using Catch::Matchers::WithinAbs;
 using Catch::Matchers::WithinRel;
 using testing::compile;

@@ -1,4 +1,4 @@
-// Format.tests.cpp - `brine fmt`'s canonical layout: pinned outputs, comments kept,
+// Format.tests.cpp - `saltpan fmt`'s canonical layout: pinned outputs, comments kept,
 // idempotence and an unchanged syntax tree on every shipped spec, stdlib module and test file.
 #include "Diagnostics.h"
 #include "Source.h"
@@ -12,12 +12,12 @@
 #include <regex>
 #include <sstream>
 
-using namespace brine;
+using namespace saltpan;
 
 namespace {
 
 std::optional<std::string> fmt(const std::string &text, bool bare = false) {
-  SourceFile file("test.brine", text);
+  SourceFile file("test.saltpan", text);
   DiagnosticEngine diags;
   return bare ? bareSpec(file, diags) : formatSpec(file, diags);
 }
@@ -43,10 +43,10 @@ std::string readFile(const std::filesystem::path &path) {
 std::vector<std::filesystem::path> shippedFiles() {
   namespace fs = std::filesystem;
   std::vector<fs::path> files;
-  fs::path root = BRINE_SOURCE_DIR;
+  fs::path root = SALTPAN_SOURCE_DIR;
   for (const char *dir : {"specs", "stdlib", "tests/diagnostics"})
     for (const auto &entry : fs::recursive_directory_iterator(root / dir))
-      if (entry.is_regular_file() && entry.path().extension() == ".brine")
+      if (entry.is_regular_file() && entry.path().extension() == ".saltpan")
         files.push_back(entry.path());
   std::sort(files.begin(), files.end());
   return files;
@@ -113,7 +113,7 @@ const half: mV = -0.5e1 mV
   REQUIRE(out);
   CHECK(*out == canonical);
   CHECK(fmt(*out) == out);
-  CHECK(astWithoutLocations("test.brine", *out) == astWithoutLocations("test.brine", messy));
+  CHECK(astWithoutLocations("test.saltpan", *out) == astWithoutLocations("test.saltpan", messy));
 }
 
 TEST_CASE("canonical layout: small pinned cases", "[format]") {
@@ -145,7 +145,7 @@ TEST_CASE("a ';' between items goes only when the parse stays the same", "[forma
   auto out = fmt(text);
   REQUIRE(out);
   CHECK(*out == "compartment c {\n  membrane {\n    Foo 3\n    Bar 4 mS\n  }\n}\n");
-  CHECK(astWithoutLocations("t.brine", *out) == astWithoutLocations("t.brine", text));
+  CHECK(astWithoutLocations("t.saltpan", *out) == astWithoutLocations("t.saltpan", text));
   CHECK(fmt(*out) == out);
 }
 
@@ -160,7 +160,7 @@ TEST_CASE("comments are kept at their lines", "[format]") {
   REQUIRE(out);
   CHECK(*out == canonical);
   CHECK(fmt(*out) == out);
-  CHECK(astWithoutLocations("t.brine", *out) == astWithoutLocations("t.brine", text));
+  CHECK(astWithoutLocations("t.saltpan", *out) == astWithoutLocations("t.saltpan", text));
   // The bare form has no comments and no layout of the source left.
   CHECK(fmt(text, true) == "channel Leak {\n  carries K\n  reversal -70 mV\n}\n\nconst a = 1 + 2\n");
 }
@@ -173,7 +173,7 @@ TEST_CASE("a line break inside an item is kept as a continuation line", "[format
 }
 
 TEST_CASE("a file with syntax errors is not formatted", "[format]") {
-  SourceFile file("bad.brine", "channel { carries K }\n");
+  SourceFile file("bad.saltpan", "channel { carries K }\n");
   DiagnosticEngine diags;
   CHECK_FALSE(formatSpec(file, diags));
   CHECK(diags.errorCount() > 0);

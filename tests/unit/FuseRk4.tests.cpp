@@ -7,11 +7,11 @@
 #include "Simulate.h"
 #include "TestSupport.h"
 
-using namespace brine;
+using namespace saltpan;
 
 TEST_CASE("the fused RK4 step equals Simulate's RK4 bit for bit", "[simulate][fuse]") {
   Compilation c;
-  compileFile(std::string(BRINE_SOURCE_DIR) + "/specs/reference/squid_axon_1952.brine", c);
+  compileFile(std::string(SALTPAN_SOURCE_DIR) + "/specs/reference/squid_axon_1952.saltpan", c);
   INFO(testing::allDiagnostics(c));
   REQUIRE(c.checked);
   auto all = protocols(c.program);
@@ -51,10 +51,11 @@ TEST_CASE("the fused RK4 step equals Simulate's RK4 bit for bit", "[simulate][fu
 }
 
 TEST_CASE("a voltage clamp is not fused into RK4", "[simulate][fuse]") {
-  auto c = testing::compile("temperature 20 degC\n"
-                            "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n  membrane { L 1 mS/cm2 }\n}\n"
-                            "channel L { reversal -70 mV }\n"
-                            "protocol p {\n  method rk4 step 10 us\n  duration 5 ms\n  clamp c at -20 mV\n  record c.V every 0.1 ms\n}\n");
+  auto c = testing::compile(
+      "temperature 20 degC\n"
+      "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n  membrane { L 1 mS/cm2 }\n}\n"
+      "channel L { reversal -70 mV }\n"
+      "protocol p {\n  method rk4 step 10 us\n  duration 5 ms\n  clamp c at -20 mV\n  record c.V every 0.1 ms\n}\n");
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);
   const ir::Model &m = c->lowered.begin()->second;

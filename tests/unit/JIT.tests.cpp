@@ -11,7 +11,7 @@
 #include <string>
 #include <vector>
 
-using namespace brine;
+using namespace saltpan;
 using ir::NodeId;
 using ir::Op;
 
@@ -325,7 +325,8 @@ TEST_CASE("a Hodgkin-Huxley rate, plain and Select-guarded, matches C++", "[jit]
   NodeId plain = k.binary(Op::Div, k.binary(Op::Mul, k.constant(0.1), shifted), denominator);
   // Near the singularity use the series 0.1 * 0.01 * (1 + x/2).
   NodeId nearSingular = k.binary(Op::Lt, k.unary(Op::Abs, x), k.constant(1e-6));
-  NodeId series = k.binary(Op::Mul, k.constant(0.001), k.binary(Op::Add, k.constant(1), k.binary(Op::Mul, k.constant(0.5), x)));
+  NodeId series =
+      k.binary(Op::Mul, k.constant(0.001), k.binary(Op::Add, k.constant(1), k.binary(Op::Mul, k.constant(0.5), x)));
   NodeId guarded = k.select(nearSingular, series, plain);
   k.addOutput(plain);
   k.addOutput(guarded);
@@ -429,9 +430,9 @@ TEST_CASE("one JIT compiles several kernels, each callable, and shows their IR",
   KernelFn f2 = compileOrFail(*jit, second);
   const std::string &ir2 = jit->lastIR();
   CHECK(f1 != f2);
-  CHECK(ir1.find("define void @brine_kernel_0(") != std::string::npos);
-  CHECK(ir2.find("define void @brine_kernel_1(") != std::string::npos);
-  CHECK(ir2.find("brine_kernel_0") == std::string::npos);
+  CHECK(ir1.find("define void @saltpan_kernel_0(") != std::string::npos);
+  CHECK(ir2.find("define void @saltpan_kernel_1(") != std::string::npos);
+  CHECK(ir2.find("saltpan_kernel_0") == std::string::npos);
   CHECK(ir2.find("@tanh") != std::string::npos);
   CHECK(ir2.find("@expm1") != std::string::npos);
 
@@ -447,7 +448,7 @@ TEST_CASE("one JIT compiles several kernels, each callable, and shows their IR",
   // A second JIT is independent and starts numbering again.
   auto other = makeJIT();
   compileOrFail(*other, second);
-  CHECK(other->lastIR().find("@brine_kernel_0(") != std::string::npos);
+  CHECK(other->lastIR().find("@saltpan_kernel_0(") != std::string::npos);
 }
 
 TEST_CASE("a kernel with no outputs compiles; a malformed one is refused", "[jit]") {

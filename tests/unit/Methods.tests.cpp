@@ -1,8 +1,8 @@
-// Methods.tests.cpp - `brine methods`: golden Markdown and LaTeX for the shipped specs, and
+// Methods.tests.cpp - `saltpan methods`: golden Markdown and LaTeX for the shipped specs, and
 // the LaTeX rendering of expressions and units.
 //
 // Update the golden files after an intended change with
-//   BRINE_UPDATE_GOLDEN=1 ./brine_tests "[methods]"
+//   SALTPAN_UPDATE_GOLDEN=1 ./saltpan_tests "[methods]"
 // and review the diff. The tool version and the model hash are normalised before comparing.
 #include "Methods.h"
 #include "TestSupport.h"
@@ -12,7 +12,7 @@
 #include <fstream>
 #include <sstream>
 
-using namespace brine;
+using namespace saltpan;
 using testing::compile;
 
 namespace {
@@ -25,9 +25,9 @@ std::string readFile(const std::string &path) {
 }
 
 std::string normaliseVersion(std::string text) {
-  const std::string version = std::string("brine ") + methodsToolVersion();
+  const std::string version = std::string("saltpan ") + methodsToolVersion();
   for (size_t at = text.find(version); at != std::string::npos; at = text.find(version, at))
-    text.replace(at, version.size(), "brine @VERSION@"), at += 15;
+    text.replace(at, version.size(), "saltpan @VERSION@"), at += 15;
   // The model hash covers the tool version, so it is normalised too.
   for (size_t at = text.find("sha256:"); at != std::string::npos; at = text.find("sha256:", at + 1))
     if (at + 7 + 64 <= text.size())
@@ -37,7 +37,7 @@ std::string normaliseVersion(std::string text) {
 
 std::string methodsOf(const std::string &spec, MethodsFormat format, bool fragment = false) {
   Compilation c;
-  compileFile(std::string(BRINE_SOURCE_DIR) + "/" + spec, c);
+  compileFile(std::string(SALTPAN_SOURCE_DIR) + "/" + spec, c);
   INFO(testing::allDiagnostics(c));
   REQUIRE(c.checked);
   MethodsOptions o;
@@ -63,9 +63,9 @@ std::string firstDifference(const std::string &a, const std::string &b) {
 
 void checkGolden(const std::string &spec, const std::string &name, MethodsFormat format) {
   std::string actual = normaliseVersion(methodsOf(spec, format));
-  std::string path = std::string(BRINE_TESTS_DIR) + "/golden/methods/" + name +
+  std::string path = std::string(SALTPAN_TESTS_DIR) + "/golden/methods/" + name +
                      (format == MethodsFormat::Latex ? ".tex.expected" : ".md.expected");
-  const char *update = std::getenv("BRINE_UPDATE_GOLDEN");
+  const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN");
   if (update && std::string(update) == "1") {
     std::filesystem::create_directories(std::filesystem::path(path).parent_path());
     std::ofstream(path, std::ios::binary) << actual;
@@ -74,12 +74,12 @@ void checkGolden(const std::string &spec, const std::string &name, MethodsFormat
   }
   REQUIRE(std::filesystem::exists(path));
   std::string expected = readFile(path);
-  INFO(path << " (set BRINE_UPDATE_GOLDEN=1 to regenerate)\n" << firstDifference(expected, actual));
+  INFO(path << " (set SALTPAN_UPDATE_GOLDEN=1 to regenerate)\n" << firstDifference(expected, actual));
   CHECK(expected == actual);
 }
 
-const char *squid = "specs/reference/squid_axon_1952.brine";
-const char *tidewater = "specs/demo/tidewater_cell.brine";
+const char *squid = "specs/reference/squid_axon_1952.saltpan";
+const char *tidewater = "specs/demo/tidewater_cell.saltpan";
 
 } // namespace
 
@@ -105,11 +105,12 @@ TEST_CASE("methods: output is deterministic and states what a paper needs", "[me
   CHECK(md.find("a net charge of $+1\\,e$ outward per cycle") != std::string::npos);
   CHECK(md.find("Rush & Larsen 1978") != std::string::npos);
   CHECK(md.find("has the hash `sha256:") != std::string::npos);
-  CHECK(md.find("brine is a research modelling tool; it is not for clinical or diagnostic decisions") !=
+  CHECK(md.find("saltpan is a research modelling tool; it is not for clinical or diagnostic decisions") !=
         std::string::npos);
   // Each function used by the kinetics is defined exactly once.
   CHECK(md.find("\\operatorname{logistic}\\left(x\\right) = ") != std::string::npos);
-  CHECK(md.find("\\operatorname{logistic}\\left(x\\right) = ") == md.rfind("\\operatorname{logistic}\\left(x\\right) = "));
+  CHECK(md.find("\\operatorname{logistic}\\left(x\\right) = ") ==
+        md.rfind("\\operatorname{logistic}\\left(x\\right) = "));
   // Channels are sorted by name, compartments keep the model's order.
   CHECK(md.find("### Channel `MixedCation`") < md.find("### Channel `TidewaterSpikeNa`"));
   CHECK(md.find("### Compartment `soma`") < md.find("### Compartment `dendrite`"));

@@ -5,7 +5,7 @@
 
 #include <cmath>
 
-using namespace brine::physics;
+using namespace saltpan::physics;
 using Catch::Matchers::WithinAbs;
 using Catch::Matchers::WithinRel;
 

@@ -4,7 +4,7 @@
 
 #include <cmath>
 
-using namespace brine;
+using namespace saltpan;
 using Catch::Matchers::WithinAbs;
 using Catch::Matchers::WithinRel;
 using testing::compile;
@@ -66,7 +66,7 @@ TEST_CASE("a clean spec passes every stage", "[pipeline]") {
   CHECK(c->diags.errorCount() == 0);
   CHECK(c->diags.warningCount() == 0);
   REQUIRE(c->program.root);
-  CHECK(c->program.root->name == "test.brine");
+  CHECK(c->program.root->name == "test.saltpan");
   // std.ions and std.math are loaded before the root.
   CHECK(c->program.modules.size() == 3);
   CHECK(c->program.modules.back().get() == c->program.root);
@@ -162,7 +162,7 @@ TEST_CASE("a unit error is located and stops before analysis", "[pipeline]") {
   const Diagnostic &d = c->diags.all().at(0);
   CHECK(d.message.find("cannot add a voltage (mV) with a time (ms)") != std::string::npos);
   REQUIRE(d.range.valid());
-  CHECK(d.range.begin.file->path() == "test.brine");
+  CHECK(d.range.begin.file->path() == "test.saltpan");
   CHECK(d.range.begin.line == 3);
   CHECK(d.range.begin.column == 16);
   // Analysis did not run.
@@ -170,12 +170,12 @@ TEST_CASE("a unit error is located and stops before analysis", "[pipeline]") {
 }
 
 TEST_CASE("a syntax error is located in the file that has it", "[pipeline]") {
-  auto c = compile("const a = (1 mV\n", "broken.brine");
+  auto c = compile("const a = (1 mV\n", "broken.saltpan");
   CHECK_FALSE(c->checked);
   REQUIRE(c->diags.errorCount() >= 1);
   const Diagnostic &d = c->diags.all().at(0);
   REQUIRE(d.range.valid());
-  CHECK(d.range.begin.file->path() == "broken.brine");
+  CHECK(d.range.begin.file->path() == "broken.saltpan");
   CHECK(d.range.begin.line >= 1);
 }
 

@@ -1,4 +1,4 @@
-// Plot.tests.cpp - SVG figures of traces (`brine run --plot`).
+// Plot.tests.cpp - SVG figures of traces (`saltpan run --plot`).
 #include "Plot.h"
 
 #include <catch2/catch.hpp>
@@ -7,7 +7,7 @@
 #include <string>
 #include <vector>
 
-using namespace brine;
+using namespace saltpan;
 
 namespace {
 

@@ -1,4 +1,4 @@
-// Rest.tests.cpp - steady states and their stability (`brine rest`), and the eigenvalue
+// Rest.tests.cpp - steady states and their stability (`saltpan rest`), and the eigenvalue
 // routine behind it.
 #include "Analyze.h"
 #include "Lower.h"
@@ -9,11 +9,11 @@
 #include <cmath>
 #include <complex>
 
-using namespace brine;
+using namespace saltpan;
 
 namespace {
 
-// Lowers a compilation without a protocol (no injected current), as `brine rest` does.
+// Lowers a compilation without a protocol (no injected current), as `saltpan rest` does.
 ir::Model lowerForRest(Compilation &c) {
   INFO(testing::allDiagnostics(c));
   REQUIRE(c.checked);
@@ -79,7 +79,7 @@ TEST_CASE("eigenvalues of small real matrices", "[rest]") {
 
 TEST_CASE("the HH 1952 squid axon has one stable steady state", "[rest]") {
   Compilation c;
-  compileFile(BRINE_SOURCE_DIR "/specs/reference/squid_axon_1952.brine", c);
+  compileFile(SALTPAN_SOURCE_DIR "/specs/reference/squid_axon_1952.saltpan", c);
   ir::Model model = lowerForRest(c);
   auto result = rest::findSteadyStates(model, &c.model);
   REQUIRE(result.size() == 1);
@@ -99,7 +99,7 @@ TEST_CASE("the HH 1952 squid axon has one stable steady state", "[rest]") {
   CHECK(gate(s, "SquidSodium1952.m") == Approx(0.052932).margin(2e-4));
   CHECK(gate(s, "SquidSodium1952.h") == Approx(0.596121).margin(2e-4));
   CHECK(gate(s, "SquidPotassium1952.n") == Approx(0.317677).margin(2e-4));
-  // The mechanism currents sum to the total, which is zero at a steady state.
+  // The membrane entries' currents sum to the total, which is zero at a steady state.
   double sum = 0;
   for (const rest::Named &i : s.currents)
     sum += i.value;
@@ -198,7 +198,7 @@ channel InventedPersistentInward {
 
 TEST_CASE("the scanned range limits the steady states found", "[rest]") {
   Compilation c;
-  compileFile(BRINE_SOURCE_DIR "/specs/reference/squid_axon_1952.brine", c);
+  compileFile(SALTPAN_SOURCE_DIR "/specs/reference/squid_axon_1952.saltpan", c);
   ir::Model model = lowerForRest(c);
   rest::Options o;
   o.from = -0.060;

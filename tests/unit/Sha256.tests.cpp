@@ -1,4 +1,4 @@
-// Sha256.tests.cpp - the SHA-256 behind `brine hash`, against FIPS 180-2's test vectors.
+// Sha256.tests.cpp - the SHA-256 behind `saltpan hash`, against FIPS 180-2's test vectors.
 #include "Sha256.h"
 
 #include <catch2/catch.hpp>
@@ -7,7 +7,7 @@
 #include <fstream>
 #include <sstream>
 
-using namespace brine;
+using namespace saltpan;
 
 TEST_CASE("SHA-256 of the FIPS 180-2 messages", "[sha256]") {
   CHECK(sha256Hex("abc") == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
@@ -39,8 +39,8 @@ TEST_CASE("SHA-256 across block boundaries", "[sha256]") {
 }
 
 TEST_CASE("SHA-256 agrees with sha256sum on shipped files", "[sha256]") {
-  for (const char *name : {"stdlib/math.brine", "specs/demo/tidewater_cell.brine", "docs/language.md"}) {
-    std::string path = std::string(BRINE_SOURCE_DIR) + "/" + name;
+  for (const char *name : {"stdlib/math.saltpan", "specs/demo/tidewater_cell.saltpan", "docs/language.md"}) {
+    std::string path = std::string(SALTPAN_SOURCE_DIR) + "/" + name;
     std::ifstream in(path, std::ios::binary);
     std::stringstream text;
     text << in.rdbuf();

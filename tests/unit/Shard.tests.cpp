@@ -10,7 +10,7 @@
 #include <optional>
 #include <string>
 
-using namespace brine::sweep;
+using namespace saltpan::sweep;
 
 namespace {
 
@@ -85,7 +85,8 @@ TEST_CASE("parseShard: --shard refuses shards that do not exist and text that is
 
 TEST_CASE("parseShard: --shard env reads SLURM's array-task variables", "[sweep]") {
   {
-    SchedulerEnvironment slurm({{"SLURM_ARRAY_TASK_ID", "1"}, {"SLURM_ARRAY_TASK_MIN", "0"}, {"SLURM_ARRAY_TASK_COUNT", "3"}});
+    SchedulerEnvironment slurm(
+        {{"SLURM_ARRAY_TASK_ID", "1"}, {"SLURM_ARRAY_TASK_MIN", "0"}, {"SLURM_ARRAY_TASK_COUNT", "3"}});
     ShardChoice s = parsed("env");
     CHECK(s.index == 1);
     CHECK(s.count == 3);

@@ -8,7 +8,7 @@
 
 #include <cmath>
 
-using namespace brine;
+using namespace saltpan;
 using Catch::Matchers::WithinAbs;
 using Catch::Matchers::WithinRel;
 
@@ -183,9 +183,10 @@ TEST_CASE("the Rosenbrock method takes large steps through a stiff gate", "[simu
   // A gate with a 1 us time constant following V: explicit RK4 at 100 us is unstable
   // (|1 + z + z^2/2 + z^3/6 + z^4/24| > 1 for z = -100); the L-stable ROS2 starting from the
   // same step is stable and agrees with Dormand-Prince at a tight tolerance.
-  std::string base = "use std.math\ntemperature 20 degC\n"
-                     "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -20 mV\n  membrane { L 1 mS/cm2 }\n}\n"
-                     "channel L {\n  reversal -70 mV\n  gate x { steady = logistic((V + 40 mV) / 10 mV); tau = 1 us }\n}\n";
+  std::string base =
+      "use std.math\ntemperature 20 degC\n"
+      "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -20 mV\n  membrane { L 1 mS/cm2 }\n}\n"
+      "channel L {\n  reversal -70 mV\n  gate x { steady = logistic((V + 40 mV) / 10 mV); tau = 1 us }\n}\n";
   auto protocol = [](const std::string &method) {
     return "protocol p {\n  method " + method + "\n  duration 5 ms\n  record c.V every 0.1 ms\n}\n";
   };

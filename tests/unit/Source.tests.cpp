@@ -3,10 +3,10 @@
 
 #include <catch2/catch.hpp>
 
-using namespace brine;
+using namespace saltpan;
 
 TEST_CASE("the line table splits on newlines", "[source]") {
-  SourceFile f("f.brine", "ab\ncd\n\nlast");
+  SourceFile f("f.saltpan", "ab\ncd\n\nlast");
   CHECK(f.lineCount() == 4);
   CHECK(f.lineText(1) == "ab");
   CHECK(f.lineText(2) == "cd");
@@ -17,7 +17,7 @@ TEST_CASE("the line table splits on newlines", "[source]") {
 }
 
 TEST_CASE("a trailing newline starts an empty last line", "[source]") {
-  SourceFile f("f.brine", "x\n");
+  SourceFile f("f.saltpan", "x\n");
   CHECK(f.lineCount() == 2);
   CHECK(f.lineText(1) == "x");
   CHECK(f.lineText(2) == "");
@@ -28,7 +28,7 @@ TEST_CASE("a trailing newline starts an empty last line", "[source]") {
 }
 
 TEST_CASE("an empty file has one empty line", "[source]") {
-  SourceFile f("empty.brine", "");
+  SourceFile f("empty.saltpan", "");
   CHECK(f.lineCount() == 1);
   CHECK(f.lineText(1) == "");
   SourceLoc end = f.endLoc();
@@ -39,7 +39,7 @@ TEST_CASE("an empty file has one empty line", "[source]") {
 }
 
 TEST_CASE("CRLF line ends are not part of the line text", "[source]") {
-  SourceFile f("f.brine", "one\r\ntwo\r\n");
+  SourceFile f("f.saltpan", "one\r\ntwo\r\n");
   CHECK(f.lineText(1) == "one");
   CHECK(f.lineText(2) == "two");
   SourceLoc t = f.locAtOffset(5);
@@ -48,7 +48,7 @@ TEST_CASE("CRLF line ends are not part of the line text", "[source]") {
 }
 
 TEST_CASE("locAtOffset gives 1-based lines and columns", "[source]") {
-  SourceFile f("f.brine", "ab\ncd\n");
+  SourceFile f("f.saltpan", "ab\ncd\n");
   SourceLoc a = f.locAtOffset(0);
   CHECK(a.file == &f);
   CHECK(a.line == 1);
@@ -70,7 +70,7 @@ TEST_CASE("locAtOffset gives 1-based lines and columns", "[source]") {
 
 TEST_CASE("columns count code points, not bytes", "[source]") {
   // "µ" is 2 bytes, "€" 3 bytes, "😀" 4 bytes in UTF-8.
-  SourceFile f("f.brine", "a\u00B5b\u20ACc\U0001F600d\n\u00B5x");
+  SourceFile f("f.saltpan", "a\u00B5b\u20ACc\U0001F600d\n\u00B5x");
   CHECK(f.locAtOffset(0).column == 1); // a
   CHECK(f.locAtOffset(1).column == 2); // µ
   CHECK(f.locAtOffset(3).column == 3); // b
@@ -84,7 +84,7 @@ TEST_CASE("columns count code points, not bytes", "[source]") {
 }
 
 TEST_CASE("locAtCodePoint maps the parser's code-point index to bytes", "[source]") {
-  SourceFile f("f.brine", "a\u00B5b\u20ACc\U0001F600d\n\u00B5x");
+  SourceFile f("f.saltpan", "a\u00B5b\u20ACc\U0001F600d\n\u00B5x");
   CHECK(f.locAtCodePoint(0).offset == 0);
   CHECK(f.locAtCodePoint(1).offset == 1);
   CHECK(f.locAtCodePoint(2).offset == 3);
@@ -106,17 +106,17 @@ TEST_CASE("locAtCodePoint maps the parser's code-point index to bytes", "[source
 
 TEST_CASE("SourceManager keeps files and finds them by path", "[source]") {
   SourceManager m;
-  const SourceFile *a = m.add("a.brine", "x");
-  const SourceFile *b = m.add("b.brine", "y");
-  CHECK(m.find("a.brine") == a);
-  CHECK(m.find("b.brine") == b);
-  CHECK(m.find("c.brine") == nullptr);
+  const SourceFile *a = m.add("a.saltpan", "x");
+  const SourceFile *b = m.add("b.saltpan", "y");
+  CHECK(m.find("a.saltpan") == a);
+  CHECK(m.find("b.saltpan") == b);
+  CHECK(m.find("c.saltpan") == nullptr);
   std::string error;
-  CHECK(m.load("/nonexistent/dir/spec.brine", error) == nullptr);
+  CHECK(m.load("/nonexistent/dir/spec.saltpan", error) == nullptr);
   CHECK_FALSE(error.empty());
   // A path already added is not read again.
   error.clear();
-  CHECK(m.load("a.brine", error) == a);
+  CHECK(m.load("a.saltpan", error) == a);
 }
 
 TEST_CASE("findInvalidUtf8 accepts well-formed UTF-8", "[source][utf8]") {

@@ -9,7 +9,7 @@
 #include <set>
 #include <vector>
 
-using namespace brine::sweep;
+using namespace saltpan::sweep;
 
 namespace {
 

@@ -1,5 +1,5 @@
 // SweepTable.tests.cpp - sweep results (runtime/SweepTable): shard ranges, CSV quoting,
-// the JSON round trip that `brine merge` relies on, and numbers that read back exactly.
+// the JSON round trip that `saltpan merge` relies on, and numbers that read back exactly.
 #include "SweepTable.h"
 
 #include <catch2/catch.hpp>
@@ -9,7 +9,7 @@
 #include <string>
 #include <vector>
 
-using namespace brine::sweep;
+using namespace saltpan::sweep;
 
 namespace {
 
@@ -125,7 +125,7 @@ TEST_CASE("fromJson refuses what is not a sweep result", "[sweep]") {
   CHECK_FALSE(fromJson("", t, error));
   CHECK_FALSE(error.empty());
   error.clear();
-  CHECK_FALSE(fromJson("{\"brine_version\": \"1\"}", t, error));
+  CHECK_FALSE(fromJson("{\"saltpan_version\": \"1\"}", t, error));
   CHECK_FALSE(error.empty());
   // Points that skip an index, or hold the wrong number of values.
   std::string json = toJson(sample());

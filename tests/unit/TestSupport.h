@@ -7,7 +7,7 @@
 #include <memory>
 #include <string>
 
-namespace brine::testing {
+namespace saltpan::testing {
 
 /// Every diagnostic of a compilation as text, for INFO() when a check fails.
 inline std::string allDiagnostics(const Compilation &c) {
@@ -17,8 +17,8 @@ inline std::string allDiagnostics(const Compilation &c) {
   return out;
 }
 
-/// Compiles `text` as "test.brine" through the whole pipeline.
-inline std::unique_ptr<Compilation> compile(const std::string &text, const std::string &path = "test.brine") {
+/// Compiles `text` as "test.saltpan" through the whole pipeline.
+inline std::unique_ptr<Compilation> compile(const std::string &text, const std::string &path = "test.saltpan") {
   auto c = std::make_unique<Compilation>();
   compileText(path, text, *c);
   return c;
@@ -51,4 +51,4 @@ inline bool hasError(const Compilation &c, const std::string &text) {
   return false;
 }
 
-} // namespace brine::testing
+} // namespace saltpan::testing

@@ -2,7 +2,7 @@
 #include "TestSupport.h"
 #include "Units.h"
 
-using namespace brine;
+using namespace saltpan;
 using Catch::Matchers::WithinRel;
 
 namespace {

@@ -1,9 +1,9 @@
 # common.bash - shared by the tests/cli/*.sh scripts (sourced, not a test itself).
-# Each script runs as: bash script.sh <path-to-brine> <source-dir>
+# Each script runs as: bash script.sh <path-to-saltpan> <source-dir>
 set -euo pipefail
 
-BRINE=${1:?usage: script.sh <path-to-brine> <source-dir>}
-SRC=${2:?usage: script.sh <path-to-brine> <source-dir>}
+SALTPAN=${1:?usage: script.sh <path-to-saltpan> <source-dir>}
+SRC=${2:?usage: script.sh <path-to-saltpan> <source-dir>}
 PY=/usr/bin/python3
 TMP=$(mktemp -d)
 trap 'rm -rf "$TMP"' EXIT
@@ -14,22 +14,22 @@ fail() {
   failures=$((failures + 1))
 }
 
-# run NAME ARGS...: runs brine under a 10 s timeout; sets rc, and leaves its output in
+# run NAME ARGS...: runs saltpan under a 10 s timeout; sets rc, and leaves its output in
 # $TMP/NAME.out and $TMP/NAME.err.
 run() {
   local name=$1
   shift
   rc=0
-  timeout 10 "$BRINE" "$@" >"$TMP/$name.out" 2>"$TMP/$name.err" || rc=$?
+  timeout 10 "$SALTPAN" "$@" >"$TMP/$name.out" 2>"$TMP/$name.err" || rc=$?
 }
 
-# expect_rc NAME WANT ARGS...: runs brine and checks its exit status.
+# expect_rc NAME WANT ARGS...: runs saltpan and checks its exit status.
 expect_rc() {
   local name=$1 want=$2
   shift 2
   run "$name" "$@"
   if [ "$rc" -ne "$want" ]; then
-    fail "$name: brine $* exited $rc, expected $want"
+    fail "$name: saltpan $* exited $rc, expected $want"
     sed 's/^/    /' "$TMP/$name.err" | head -20 >&2
   fi
 }
@@ -47,7 +47,7 @@ expect_grep() {
 no_crash() {
   local name=$1
   if [ "$rc" -ge 128 ] || [ "$rc" -eq 124 ]; then
-    fail "$name: brine crashed or hung (exit $rc)"
+    fail "$name: saltpan crashed or hung (exit $rc)"
     tail -5 "$TMP/$name.err" | sed 's/^/    /' >&2
   fi
 }
