@@ -237,6 +237,10 @@ private:
         auto &d = diags_.warning(e->range, what + " cannot be computed at V = " + mV(v) + ": " + failure.reason);
         if (c)
           DiagnosticEngine::note(d, m->nameRange, "in compartment '" + c->decl->name + "'");
+        if (failure.reason == "division by zero")
+          DiagnosticEngine::note(d, {},
+                                 "a rate of the form a*x / (1 - exp(-x)) is a / exprel(-x) (use std.math), "
+                                 "which is exact at x = 0");
         return;
       }
       if (*value < allowed.low || *value > allowed.high) {

@@ -115,7 +115,13 @@ private:
         std::string list;
         for (const StdModule &m : stdModules())
           list += (list.empty() ? "" : ", ") + std::string(m.name);
-        if (use.target.rfind("std.", 0) == 0)
+        const StdModule *meant = nullptr;
+        for (const StdModule &m : stdModules())
+          if ("std." + use.target == m.name)
+            meant = &m;
+        if (meant)
+          DiagnosticEngine::note(d, {}, "did you mean 'use " + std::string(meant->name) + "'?");
+        else if (use.target.rfind("std.", 0) == 0)
           DiagnosticEngine::note(d, {}, "the standard modules are " + list);
         else
           DiagnosticEngine::note(d, {}, "to use a file, write its path in quotes: use \"" + use.target + ".saltpan\"");

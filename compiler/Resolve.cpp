@@ -2,6 +2,7 @@
 #include "Resolve.h"
 
 #include "Diagnostics.h"
+#include "Modules.h"
 
 #include <algorithm>
 #include <set>
@@ -142,7 +143,7 @@ private:
 
   // Reports an unknown name, suggesting a close name of a kind that fits the place.
   Diagnostic &unknown(SourceRange range, const std::string &name, const char *what,
-                      std::initializer_list<DeclKind> kinds) {
+                      std::initializer_list<DeclKind> kinds, bool unitHint = true) {
     auto &d = diags_.error(range, std::string("unknown ") + what + " '" + name + "'");
     std::string best;
     size_t bestDistance = name.size() <= 2 ? 1 : 2;
@@ -155,7 +156,7 @@ private:
     }
     if (!best.empty())
       DiagnosticEngine::note(d, lookup(best)->nameRange, "did you mean '" + best + "'?");
-    else if (lookupUnitSymbol(name))
+    else if (unitHint && lookupUnitSymbol(name))
       DiagnosticEngine::note(d, {}, "'" + name + "' is a unit: write it right after its number, without spaces, "
                                     "as in '1 /" + name + "'");
     return d;
@@ -164,8 +165,12 @@ private:
   const IonDecl *ion(const std::string &name, SourceRange range) {
     Decl *d = lookup(name);
     if (!d) {
-      auto &diag = unknown(range, name, "ion", {DeclKind::Ion});
-      if (diag.notes.empty())
+      auto &diag = unknown(range, name, "ion", {DeclKind::Ion}, false);
+      std::string module = stdModuleDeclaringIon(name);
+      if (!module.empty())
+        DiagnosticEngine::note(diag, {}, "'" + name + "' is declared in " + module + ": add 'use " + module +
+                                             "' at the top of the file");
+      else if (diag.notes.empty())
         DiagnosticEngine::note(diag, {},
                                stdIonsUsed_ ? "declare it with 'ion " + name + " valence ...'"
                                             : "declare it with 'ion " + name + " valence ...' or 'use std.ions'");
@@ -176,6 +181,16 @@ private:
     auto &diag = diags_.error(range, "'" + name + "' is " + article(d->kind) + ", not an ion");
     DiagnosticEngine::note(diag, d->nameRange, "declared here");
     return nullptr;
+  }
+
+  // The standard module that declares ion `name` ("std.ions"), or "" when none does.
+  static std::string stdModuleDeclaringIon(const std::string &name) {
+    for (const StdModule &m : stdModules()) {
+      std::string text = std::string("\n") + m.text;
+      if (text.find("\nion " + name + " ") != std::string::npos)
+        return m.name;
+    }
+    return "";
   }
 
   static std::string article(DeclKind k) {

@@ -1,6 +1,8 @@
 // SyntaxErrors.cpp - turns ANTLR's syntax errors into plain-English diagnostics.
 #include "ParseInternal.h"
 
+#include <cctype>
+
 namespace saltpan::parsing {
 
 using grammar::SaltpanLexer;
@@ -35,6 +37,17 @@ std::string tokenName(const antlr4::dfa::Vocabulary &vocabulary, size_t type) {
 
 namespace {
 
+// A keyword is a token whose literal is a word ('model', 'latin_hypercube'), not punctuation.
+bool isKeyword(const antlr4::dfa::Vocabulary &vocabulary, size_t type) {
+  std::string literal = vocabulary.getLiteralName(type);
+  if (literal.size() < 3 || literal.front() != '\'' || literal.back() != '\'')
+    return false;
+  for (size_t i = 1; i + 1 < literal.size(); ++i)
+    if (!std::isalnum(static_cast<unsigned char>(literal[i])) && literal[i] != '_')
+      return false;
+  return std::isalpha(static_cast<unsigned char>(literal[1]));
+}
+
 std::string quoted(const antlr4::Token *t) {
   if (!t || t->getType() == antlr4::Token::EOF)
     return "end of file";
@@ -54,9 +67,18 @@ std::string expectedList(const antlr4::dfa::Vocabulary &vocabulary, const antlr4
       continue;
     names.push_back(n);
   }
+  if (names.size() > 8) {
+    // A block's items (a compartment's, a protocol's) are many keywords and a brace: list the
+    // keywords, which are what a writer can choose from; a longer mixture says nothing useful.
+    std::vector<std::string> words;
+    for (const std::string &n : names)
+      if (n.size() > 2 && n.front() == '\'' && std::isalpha(static_cast<unsigned char>(n[1])))
+        words.push_back(n);
+    if (words.size() < 4 || words.size() > 16)
+      return "";
+    names = words;
+  }
   if (names.empty())
-    return "";
-  if (names.size() > 8)
     return "";
   std::string out;
   for (size_t i = 0; i < names.size(); ++i) {
@@ -97,7 +119,10 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
       } catch (antlr4::InputMismatchException &ex) {
         expected = expectedList(vocabulary, ex.getExpectedTokens());
         (void)failedPredicate;
-      } catch (antlr4::NoViableAltException &) {
+      } catch (antlr4::NoViableAltException &ex) {
+        // Only when the choice failed at its first token do the choices' first tokens say what fits.
+        if (parser && ex.getStartToken() == offending)
+          expected = expectedList(vocabulary, parser->getExpectedTokens());
       } catch (...) {
       }
     } else if (parser) {
@@ -111,8 +136,7 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
       message = "unexpected end of file" + (expected.empty() ? "" : "; expected " + expected);
     else
       message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
-    bool keyword =
-        offending && offending->getType() >= SaltpanLexer::MODEL && offending->getType() <= SaltpanLexer::SOURCE;
+    bool keyword = offending && isKeyword(vocabulary, offending->getType());
     if (keyword && expected.find("a name") != std::string::npos)
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
   }
