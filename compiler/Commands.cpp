@@ -4,6 +4,7 @@
 #include "Fuse.h"
 #include "Lower.h"
 #include "Pipeline.h"
+#include "SpecFiles.h"
 #include "Show.h"
 #include "TraceOutput.h"
 #include "parse/Parse.h"
@@ -25,9 +26,10 @@ namespace saltpan::cli {
 
 namespace {
 
-const char *checkHelp = R"(usage: saltpan check [options] FILE...
+const char *checkHelp = R"(usage: saltpan check [options] PATH...
 
-Checks each spec and every module it uses: syntax, names, units of every expression,
+Checks each spec (for a directory, every *.saltpan below it whose name does not start with
+'_') and every module it uses: syntax, names, units of every expression,
 valences and charge (electroneutrality, pump stoichiometry), and physical plausibility
 (temperatures, capacitances, concentrations, reversal potentials, gate kinetics).
 
@@ -215,6 +217,24 @@ int checkCommand(const std::vector<std::string> &args) {
     std::fputs(ast::dump(*module).c_str(), stdout);
     return c.diags.errorCount() ? SpecErrors : Ok;
   }
+  // A directory stands for every spec below it, as for `saltpan test`; files are read as given.
+  std::vector<std::string> files;
+  for (const std::string &path : o.files) {
+    std::error_code ec;
+    if (!std::filesystem::is_directory(path, ec)) {
+      files.push_back(path);
+      continue;
+    }
+    std::string error;
+    std::vector<std::string> found = discoverSpecs({path}, error);
+    if (found.empty()) {
+      std::fprintf(stderr, "saltpan: error: %s\n",
+                   error.empty() ? ("no spec files (*.saltpan) in '" + path + "'").c_str() : error.c_str());
+      return SpecErrors; // as for a file that cannot be read: nothing was checked
+    }
+    files.insert(files.end(), found.begin(), found.end());
+  }
+  o.files = files;
   // Diagnostics point into their compilation's files, so keep every compilation alive.
   std::vector<std::unique_ptr<Compilation>> compilations;
   std::vector<Diagnostic> all;

@@ -3,6 +3,7 @@
 
 #include "Diagnostics.h"
 #include "Modules.h"
+#include "Nearest.h"
 
 #include <algorithm>
 #include <set>
@@ -33,21 +34,6 @@ const BuiltinMath *findMath(const std::string &name) {
   return nullptr;
 }
 
-size_t editDistance(const std::string &a, const std::string &b) {
-  std::vector<size_t> row(b.size() + 1);
-  for (size_t j = 0; j <= b.size(); ++j)
-    row[j] = j;
-  for (size_t i = 1; i <= a.size(); ++i) {
-    size_t diagonal = row[0];
-    row[0] = i;
-    for (size_t j = 1; j <= b.size(); ++j) {
-      size_t up = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] != b[j - 1])});
-      diagonal = up;
-    }
-  }
-  return row[b.size()];
-}
 
 /// Which names an expression may use, by where it sits.
 struct Context {

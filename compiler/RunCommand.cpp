@@ -62,7 +62,8 @@ struct RunOptions {
 };
 
 int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), runHelp);
+  // One line that names the fault; the whole help would bury it.
+  std::fprintf(stderr, "saltpan: error: %s (saltpan run --help lists the options)\n", message.c_str());
   return Usage;
 }
 
@@ -143,7 +144,10 @@ int runCommand(const std::vector<std::string> &args) {
   std::string settingError;
   for (const std::string &s : o.sets)
     if (!applyParameterSetting(model, s, params, "`saltpan check --emit ir " + o.file + "` lists them", settingError))
-      return usage(settingError);
+    {
+      std::fprintf(stderr, "saltpan: error: %s\n", settingError.c_str());
+      return Usage;
+    }
   if (!applyTiming(model.protocol, o.duration, o.every, settingError))
     return usage(settingError);
 

@@ -5,6 +5,7 @@
 #include "Expect.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
+#include "SpecFiles.h"
 #ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
@@ -60,27 +61,6 @@ struct FileResult {
   std::unique_ptr<Compilation> compilation; // keeps results' declarations alive
   std::string hash; // the model hash of the file, for reports
 };
-
-std::vector<std::string> discover(const std::vector<std::string> &paths, std::string &error) {
-  std::vector<std::string> files;
-  for (const std::string &p : paths) {
-    std::error_code ec;
-    if (fs::is_directory(p, ec)) {
-      for (auto &entry : fs::recursive_directory_iterator(p, ec))
-        if (entry.is_regular_file() && entry.path().extension() == ".saltpan" &&
-            entry.path().filename().string()[0] != '_')
-          files.push_back(entry.path().lexically_normal().string());
-    } else if (fs::is_regular_file(p, ec)) {
-      files.push_back(fs::path(p).lexically_normal().string());
-    } else {
-      error = "cannot find '" + p + "'";
-      return {};
-    }
-  }
-  std::sort(files.begin(), files.end());
-  files.erase(std::unique(files.begin(), files.end()), files.end());
-  return files;
-}
 
 void runFile(FileResult &f, bool jit) {
   f.compilation = std::make_unique<Compilation>();
@@ -165,7 +145,7 @@ int testCommand(const std::vector<std::string> &args) {
     return Usage;
   }
   std::string error;
-  std::vector<std::string> files = discover(paths, error);
+  std::vector<std::string> files = discoverSpecs(paths, error);
   if (!error.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
     return Usage;

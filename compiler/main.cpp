@@ -62,7 +62,7 @@ int main(int argc, char **argv) {
       return saltpan::cli::Ok;
     }
     if (command == "help") {
-      if (rest.empty()) {
+      if (rest.empty() || rest.front() == "--help" || rest.front() == "-h") {
         std::fputs(usage, stdout);
         return saltpan::cli::Ok;
       }

@@ -1,5 +1,6 @@
 // RunSettings.cpp - quantities with units, parameter settings and timing overrides.
 #include "RunSettings.h"
+#include "Nearest.h"
 
 #include <cmath>
 #include <cstdlib>
@@ -54,7 +55,12 @@ bool applyParameterSetting(const ir::Model &model, const std::string &assignment
   std::string name = assignment.substr(0, eq);
   int index = model.findParam(name);
   if (index < 0) {
-    error = "there is no parameter '" + name + "'; " + listHint;
+    std::vector<std::string> names(model.paramNames.begin(), model.paramNames.end());
+    std::vector<std::string> near = nearestNames(name, names);
+    std::string hint;
+    for (const std::string &n : near)
+      hint += (hint.empty() ? "did you mean " : " or ") + ("'" + n + "'");
+    error = "there is no parameter '" + name + "'; " + (hint.empty() ? "" : hint + "? ") + listHint;
     return false;
   }
   auto q = parseQuantity(assignment.substr(eq + 1));

@@ -22,6 +22,17 @@ unreadable() {
 mkdir "$TMP/dir.saltpan"
 run directory check "$TMP/dir.saltpan"
 unreadable directory
+expect_grep directory err "no spec files"
+# A directory with specs: each is checked, as by `saltpan test`; '_' helpers are skipped.
+mkdir -p "$TMP/tree/sub"
+clean_spec "$TMP/tree/sub/good.saltpan"
+printf 'not a spec\n' >"$TMP/tree/_helper.saltpan"
+expect_rc tree-clean 0 check "$TMP/tree"
+[ ! -s "$TMP/tree-clean.err" ] || fail "tree-clean: a clean tree printed diagnostics"
+printf 'temperature 2 ms\n' >"$TMP/tree/bad.saltpan"
+expect_rc tree-bad 65 check "$TMP/tree"
+expect_grep tree-bad err "bad.saltpan:1:13: error"
+expect_grep tree-bad err "2 files checked: 1 error"
 run missing check "$TMP/missing.saltpan"
 unreadable missing
 run show-missing show "$TMP/missing.saltpan"
