@@ -271,7 +271,18 @@ int showCommand(const std::vector<std::string> &args) {
   printDiagnostics(c.diags, useColour("auto"));
   if (c.diags.errorCount() > 0)
     return SpecErrors;
-  std::string text = o.format == "json" ? showJson(c) : showText(c);
+  // The true rest beside the GHK potential: steady states of the model without a protocol.
+  std::vector<rest::CompartmentRest> steady;
+  ir::Model model;
+  DiagnosticEngine lowering; // a model that cannot be lowered is still shown, without its rest
+  if (lowerModel(c.program, c.model, c.evaluator, nullptr, lowering, model)) {
+    try {
+      steady = rest::findSteadyStates(model, &c.model);
+    } catch (const std::exception &) {
+      steady.clear();
+    }
+  }
+  std::string text = o.format == "json" ? showJson(c, steady) : showText(c, steady);
   if (o.output.empty()) {
     std::fputs(text.c_str(), stdout);
     return Ok;

@@ -42,7 +42,7 @@ public:
       : model_(model), evaluator_(evaluator), diags_(diags), out_(out), k_(out.kernel) {}
 
   bool run(const Program &program, const ProtocolDecl *protocol) {
-    out_.name = model_.header ? model_.header->name : "model";
+    out_.name = model_.header ? model_.header->name : ""; // no header: unnamed
     out_.temperature = model_.temperature.value_or(NAN);
     if (!model_.temperature) {
       diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no temperature to simulate at");

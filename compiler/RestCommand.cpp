@@ -79,7 +79,7 @@ std::string eigenvalueText(std::complex<double> e) {
 
 std::string text(const std::string &modelName, const std::vector<rest::CompartmentRest> &result,
                  const rest::Options &o) {
-  std::string out = "model " + modelName + ": steady states from " + format("%g", o.from * 1e3) + " to " +
+  std::string out = "model " + (modelName.empty() ? "(unnamed)" : modelName) + ": steady states from " + format("%g", o.from * 1e3) + " to " +
                     format("%g", o.to * 1e3) + " mV (gates at their steady values, no injected current)\n";
   for (const rest::CompartmentRest &c : result) {
     size_t n = c.steadyStates.size();
@@ -122,7 +122,7 @@ std::string json(const std::string &modelName, const std::vector<rest::Compartme
   doc["tool"] = "saltpan";
   doc["version"] = SALTPAN_VERSION;
   doc["caution"] = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
-  doc["model"] = modelName;
+  doc["model"] = modelName.empty() ? nlohmann::ordered_json(nullptr) : nlohmann::ordered_json(modelName);
   doc["range_mV"] = {o.from * 1e3, o.to * 1e3};
   doc["conventions"] = {{"membrane_potential", "inside minus outside"}, {"membrane_current", "positive outward"}};
   nlohmann::ordered_json comps = nlohmann::ordered_json::array();
@@ -160,7 +160,7 @@ std::string json(const std::string &modelName, const std::vector<rest::Compartme
     comps.push_back(jc);
   }
   doc["compartments"] = comps;
-  return doc.dump(1) + "\n";
+  return doc.dump(2) + "\n";
 }
 
 } // namespace

@@ -15,6 +15,7 @@
 #include "JIT.h"
 #endif
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -194,7 +195,7 @@ int runCommand(const std::vector<std::string> &args) {
   }
   if (!o.plot.empty()) {
     std::string error;
-    if (!writeFileAtomically(o.plot, plotSvg(trace, model.name + ": " + model.protocol.name), error)) {
+    if (!writeFileAtomically(o.plot, plotSvg(trace, (model.name.empty() ? "" : model.name + ": ") + model.protocol.name), error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
@@ -211,14 +212,22 @@ int runCommand(const std::vector<std::string> &args) {
     std::vector<double> values;
     for (size_t r = 0; r < trace.time.size(); ++r)
       values.push_back(trace.at(r, col) * 1e-3);
-    auto spikes = measures::spikeTimes(trace.time, values, o.threshold);
-    auto rate = measures::firingRate(spikes);
-    std::fprintf(stderr, "%s: %zu spike%s above %g mV", trace.names[col].c_str(), spikes.size(),
-                 spikes.size() == 1 ? "" : "s", o.threshold * 1e3);
-    if (!spikes.empty())
-      std::fprintf(stderr, ", first at %.4f ms", spikes.front() * 1e3);
-    if (rate)
-      std::fprintf(stderr, ", %.3f Hz", *rate);
+    // A clamped potential follows its command: crossings of the threshold are not spikes.
+    bool clamped = std::any_of(model.compartments.begin(), model.compartments.end(), [&](const ir::Compartment &k) {
+      return k.clampedOutput >= 0 && trace.names[col] == k.name + ".V";
+    });
+    if (clamped) {
+      std::fprintf(stderr, "%s: under voltage clamp", trace.names[col].c_str());
+    } else {
+      auto spikes = measures::spikeTimes(trace.time, values, o.threshold);
+      auto rate = measures::firingRate(spikes);
+      std::fprintf(stderr, "%s: %zu spike%s above %g mV", trace.names[col].c_str(), spikes.size(),
+                   spikes.size() == 1 ? "" : "s", o.threshold * 1e3);
+      if (!spikes.empty())
+        std::fprintf(stderr, ", first at %.4f ms", spikes.front() * 1e3);
+      if (rate)
+        std::fprintf(stderr, ", %.3f Hz", *rate);
+    }
     std::fprintf(stderr, "; peak %.3f mV, minimum %.3f mV, mean %.3f mV, final %.3f mV\n",
                  measures::peak(values) * 1e3, measures::minimum(values) * 1e3,
                  measures::mean(trace.time, values) * 1e3, values.empty() ? NAN : values.back() * 1e3);

@@ -64,13 +64,30 @@ const char *reversalSource(ReversalKind k) {
   return "none";
 }
 
-json compartmentJson(const CompartmentValues &c, const Model &m) {
+bool isDynamic(const CompartmentValues &c, const IonDecl *ion) {
+  return std::any_of(c.pools.begin(), c.pools.end(), [ion](auto &p) { return p.ion == ion; });
+}
+
+// The steady states found for compartment `name`, or null when it was not analysed.
+const rest::CompartmentRest *steadyOf(const std::vector<rest::CompartmentRest> &steady, const std::string &name) {
+  for (const rest::CompartmentRest &r : steady)
+    if (r.name == name)
+      return &r;
+  return nullptr;
+}
+
+// Whether the GHK potential of the ungated permeabilities is the compartment's rest: only when
+// nothing else (gated or ohmic channels, pumps) carries current.
+bool ghkIsRest(const CompartmentValues &c) { return c.ghkRest && c.ghkChannels == c.placements.size(); }
+
+json compartmentJson(const CompartmentValues &c, const Model &m, const rest::CompartmentRest *steady) {
   json ions = json::array();
   for (const IonDecl *ion : c.ions) {
     auto z = integerValence(*ion);
     ions.push_back({{"ion", ion->name},
                     {"charge", z ? json(*z) : json(nullptr)},
                     {"inside_mM", optional(c.inside.get(ion))},
+                    {"inside_dynamic", isDynamic(c, ion)},
                     {"outside_mM", optional(c.outside ? c.outside->get(ion) : std::nullopt)},
                     {"reversal_mV", optional(m.temperature ? c.nernst(ion, *m.temperature) : std::nullopt, 1e3)}});
   }
@@ -85,6 +102,12 @@ json compartmentJson(const CompartmentValues &c, const Model &m) {
       entry["reversal_from"] = reversalSource(p.reversalKind);
     }
     membrane.push_back(entry);
+  }
+  json states = nullptr;
+  if (steady) {
+    states = json::array();
+    for (const rest::SteadyState &st : steady->steadyStates)
+      states.push_back({{"V_mV", tidy(st.v * 1e3)}, {"stable", st.stable}});
   }
   json shape = nullptr;
   if (c.decl->geometry.shape == Shape::Sphere)
@@ -102,12 +125,14 @@ json compartmentJson(const CompartmentValues &c, const Model &m) {
           {"ions", ions},
           {"ghk_rest_mV", optional(c.ghkRest, 1e3)},
           {"ghk_channels", c.ghkChannels},
+          {"ghk_rest_is_rest", ghkIsRest(c)},
+          {"steady_states", states},
           {"membrane", membrane}};
 }
 
 } // namespace
 
-std::string showJson(const Compilation &c) {
+std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
   const Model &m = c.model;
   json doc;
   doc["tool"] = "saltpan";
@@ -124,7 +149,7 @@ std::string showJson(const Compilation &c) {
   doc["temperature_degC"] = m.temperature ? json(*m.temperature - physics::zeroCelsius) : json(nullptr);
   json compartments = json::array();
   for (const CompartmentValues &cv : m.compartments)
-    compartments.push_back(compartmentJson(cv, m));
+    compartments.push_back(compartmentJson(cv, m, steadyOf(steady, cv.decl->name)));
   doc["compartments"] = compartments;
   json pumps = json::array();
   std::vector<std::pair<const PumpDecl *, PumpValues>> sorted(m.pumps.begin(), m.pumps.end());
@@ -153,7 +178,7 @@ std::string num(const char *format, std::optional<double> v, double scale = 1) {
 }
 } // namespace
 
-std::string showText(const Compilation &c) {
+std::string showText(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
   const Model &m = c.model;
   std::string out;
   auto line = [&](const std::string &s) { out += s + "\n"; };
@@ -178,15 +203,29 @@ std::string showText(const Compilation &c) {
     for (const IonDecl *ion : cv.ions) {
       auto z = integerValence(*ion);
       char row[160];
+      std::string inside = num("%.6g", cv.inside.get(ion)) + (isDynamic(cv, ion) ? "*" : "");
       std::snprintf(row, sizeof row, "  %-8s %6s %12s %12s %14s", ion->name.c_str(), z ? num("%+.0f", double(*z)).c_str() : "?",
-                    num("%.6g", cv.inside.get(ion)).c_str(),
+                    inside.c_str(),
                     num("%.6g", cv.outside ? cv.outside->get(ion) : std::nullopt).c_str(),
                     num("%.3f", m.temperature ? cv.nernst(ion, *m.temperature) : std::nullopt, 1e3).c_str());
       line(row);
     }
-    if (cv.ghkRest)
-      line("  GHK resting potential " + num("%.3f mV", cv.ghkRest, 1e3) + " (from " + std::to_string(cv.ghkChannels) +
-           " ungated permeability channel" + (cv.ghkChannels == 1 ? "" : "s") + ")");
+    if (!cv.pools.empty())
+      line("  * dynamic: changed by the ion's currents during a run (the initial value is shown)");
+    std::string channels = std::to_string(cv.ghkChannels) + " ungated permeability channel" +
+                           (cv.ghkChannels == 1 ? "" : "s");
+    if (ghkIsRest(cv))
+      line("  GHK resting potential " + num("%.3f mV", cv.ghkRest, 1e3) + " (from " + channels + ")");
+    else if (cv.ghkRest)
+      line("  GHK potential of the " + channels + " " + num("%.3f mV", cv.ghkRest, 1e3) +
+           " (not the rest: other channels or pumps carry current too)");
+    if (const rest::CompartmentRest *r = steadyOf(steady, cv.decl->name); r && !ghkIsRest(cv)) {
+      std::string states;
+      for (const rest::SteadyState &st : r->steadyStates)
+        states += (states.empty() ? "" : ", ") + num("%.3f mV", st.v, 1e3) + (st.stable ? " (stable)" : " (unstable)");
+      line("  rest with every channel and pump: " +
+           (states.empty() ? std::string("none between -150 and +100 mV") : states));
+    }
     for (const Placement &p : cv.placements) {
       std::string s = "  " + p.entry->name + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
                       densityUnit(p.densityKind);

@@ -105,7 +105,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
     }
     const Trace &t = run.trace;
     char buf[160];
-    std::string text = "# saltpan " + std::string(SALTPAN_VERSION) + " snapshot of model " + model.name +
+    std::string text = "# saltpan " + std::string(SALTPAN_VERSION) + " snapshot of model " + (model.name.empty() ? "(unnamed)" : model.name) +
                        ", protocol " + p->name + "\n";
     std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n",
                   ir::methodName(model.protocol.method), model.protocol.step * 1e3, model.protocol.duration * 1e3);
@@ -131,8 +131,8 @@ int snapshotCommand(const std::vector<std::string> &args) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
-    std::fprintf(stderr, "wrote %s (%zu samples of %zu quantities)\n", out.string().c_str(), t.time.size(),
-                 t.columns());
+    std::fprintf(stderr, "wrote %s (%zu samples of %zu %s)\n", out.string().c_str(), t.time.size(),
+                 t.columns(), t.columns() == 1 ? "quantity" : "quantities");
     ++written;
   }
   if (written == 0) {

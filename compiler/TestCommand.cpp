@@ -43,12 +43,14 @@ options:
   --junit FILE            also write JUnit XML (one test suite per file) atomically
   --json FILE             also write the results as JSON atomically
   --jobs N                files checked at once (default: the number of cores)
+  --allow-empty           succeed when the paths hold no expectations (by default that
+                          fails: a test run that tests nothing is a mistake)
   --engine jit|interpreter   native code (default) or the reference interpreter for runs
   --version               print the version
   --help                  show this help
 
-exit status: 0 every expectation passed, 1 some failed, 64 bad usage, 65 a spec has errors,
-             70 internal fault, 73 an output file could not be written
+exit status: 0 every expectation passed, 1 some failed or there were none, 64 bad usage,
+             65 a spec has errors, 70 internal fault, 73 an output file could not be written
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -109,6 +111,7 @@ std::string xmlEscape(const std::string &s) {
 int testCommand(const std::vector<std::string> &args) {
   std::vector<std::string> paths;
   std::string junit, jsonPath, engine = "jit";
+  bool allowEmpty = false;
   unsigned jobs = std::max(1u, std::thread::hardware_concurrency());
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string &a = args[i];
@@ -120,6 +123,8 @@ int testCommand(const std::vector<std::string> &args) {
     } else if (a == "--version") {
       std::printf("saltpan %s\n", SALTPAN_VERSION);
       return Ok;
+    } else if (a == "--allow-empty") {
+      allowEmpty = true;
     } else if (value("--junit", junit) || value("--json", jsonPath)) {
     } else if (value("--engine", engine)) {
       if (engine != "jit" && engine != "interpreter") {
@@ -258,6 +263,13 @@ int testCommand(const std::vector<std::string> &args) {
   }
   if (broken)
     return SpecErrors;
+  // CI that tests nothing must not pass by accident.
+  if (passed + failed == 0 && !allowEmpty) {
+    std::fprintf(stderr, "saltpan: error: no expectations in %zu spec file%s: nothing was tested (--allow-empty "
+                         "accepts this)\n",
+                 files.size(), files.size() == 1 ? "" : "s");
+    return ExpectationsFailed;
+  }
   return failed ? ExpectationsFailed : Ok;
 }
 

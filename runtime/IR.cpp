@@ -124,7 +124,7 @@ std::string dump(const Model &m) {
     std::snprintf(buf, sizeof buf, "%.17g", v);
     return std::string(buf);
   };
-  out << "model " << m.name << " temperature " << num(m.temperature) << " K\n";
+  out << "model " << (m.name.empty() ? "(unnamed)" : m.name) << " temperature " << num(m.temperature) << " K\n";
   for (size_t i = 0; i < m.stateNames.size(); ++i)
     out << "state " << i << " " << m.stateNames[i] << " = " << num(m.initialState[i]) << "\n";
   for (size_t i = 0; i < m.paramNames.size(); ++i)

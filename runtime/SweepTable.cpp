@@ -95,7 +95,7 @@ std::string toJson(const Table &t) {
     points.push_back(std::move(p));
   }
   doc["points"] = std::move(points);
-  return doc.dump(1) + "\n";
+  return doc.dump(2) + "\n";
 }
 
 bool fromJson(const std::string &text, Table &t, std::string &error) {
