@@ -1,6 +1,8 @@
 // IR.cpp - building kernels (with shared identical nodes) and the IR text dump.
 #include "IR.h"
 
+#include "Decimal.h"
+
 #include <cstdio>
 #include <cstring>
 #include <sstream>
@@ -119,11 +121,7 @@ int Model::findProbe(const std::string &wanted) const {
 
 std::string dump(const Model &m) {
   std::ostringstream out;
-  char buf[64];
-  auto num = [&](double v) {
-    std::snprintf(buf, sizeof buf, "%.17g", v);
-    return std::string(buf);
-  };
+  auto num = [](double v) { return shortestDecimal(v); };
   out << "model " << (m.name.empty() ? "(unnamed)" : m.name) << " temperature " << num(m.temperature) << " K\n";
   for (size_t i = 0; i < m.stateNames.size(); ++i)
     out << "state " << i << " " << m.stateNames[i] << " = " << num(m.initialState[i]) << "\n";

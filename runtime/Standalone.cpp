@@ -72,10 +72,22 @@ std::string helpText(const ModelBundle &b) {
                   m.protocol.every * 1e3);
     text += line;
   }
-  text += "\nparameters (value in SI units; --set takes any unit of the same dimension):\n";
+  text += "\nparameters (--set takes any unit of the same dimension):\n";
   for (size_t i = 0; i < first.paramNames.size(); ++i) {
-    std::snprintf(line, sizeof line, "  %-44s %-12.6g %s\n", first.paramNames[i].c_str(), first.params[i],
-                  describeDimension(first.paramDims[i]).c_str());
+    // The value in the unit the description names ("a voltage (mV)"), so label and number agree.
+    std::string what = describeDimension(first.paramDims[i]);
+    std::string unit;
+    double value = first.params[i];
+    if (size_t open = what.rfind('('); open != std::string::npos && what.back() == ')') {
+      unit = what.substr(open + 1, what.size() - open - 2);
+      auto scale = parseQuantity("1 " + unit);
+      if (scale && scale->second == first.paramDims[i] && scale->first != 0)
+        value /= scale->first;
+      else
+        unit = "(SI)";
+    }
+    std::snprintf(line, sizeof line, "  %-44s %-10.6g %-9s %s\n", first.paramNames[i].c_str(), value, unit.c_str(),
+                  what.c_str());
     text += line;
   }
   text += "\n" + sweepList(b);

@@ -72,4 +72,19 @@ expect_rc empty-test 1 test "$TMP/cell.saltpan"
 expect_grep empty-test err "no expectations in 1 spec file: nothing was tested"
 expect_rc empty-allowed 0 test --allow-empty "$TMP/cell.saltpan"
 
+# --emit ir prints numbers that read back exactly, without binary noise.
+expect_rc emit-ir 0 check --emit ir "$SRC/specs/reference/squid_axon_1952.saltpan"
+expect_grep emit-ir out "^model SquidAxon1952 temperature 279.45 K$"
+expect_grep emit-ir out "^param [0-9]+ axon.SquidSodium1952.density = 1200$"
+
+# A built executable's --help gives each parameter in the unit its label names.
+if timeout 120 "$SALTPAN" build "$SRC/specs/reference/squid_axon_1952.saltpan" -o "$TMP/squid" >/dev/null 2>&1; then
+  "$TMP/squid" --help >"$TMP/squid-help.out"
+  grep -Eq "axon.SquidSodium1952.density +120 +mS/cm2 " "$TMP/squid-help.out" || fail "squid --help: g_Na not in mS/cm2"
+  grep -Eq "axon.SquidSodium1952.reversal +50 +mV " "$TMP/squid-help.out" || fail "squid --help: E_Na not in mV"
+  grep -Eq "axon.capacitance +1 +uF/cm2 " "$TMP/squid-help.out" || fail "squid --help: C not in uF/cm2"
+else
+  fail "build: could not build the squid axon executable"
+fi
+
 finish
