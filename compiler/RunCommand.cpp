@@ -16,9 +16,11 @@
 #endif
 
 #include <algorithm>
+#include <cctype>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
 
 #ifndef SALTPAN_VERSION
 #define SALTPAN_VERSION "unknown"
@@ -44,7 +46,9 @@ options:
   --engine jit|interpreter   native code (default) or the reference interpreter
   --threshold V        spike threshold for the summary (default 0 mV)
   -o FILE              write FILE (.csv or .json) atomically instead of CSV on standard output
-  --plot FILE          also draw the recorded quantities as an SVG figure in FILE
+  --plot FILE.svg      also draw the recorded quantities as an SVG figure in FILE.svg
+  --keep-partial       when the simulation fails, write what was recorded up to the failure
+                       to STEM.partial.EXT beside -o FILE (the full output is never written)
   --version            print the version
   --help               show this help
 
@@ -56,6 +60,7 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 struct RunOptions {
   std::string file, protocol, output, engine = "jit";
+  bool keepPartial = false;
   std::string plot;
   std::vector<std::string> sets;
   std::string duration, every;
@@ -84,6 +89,8 @@ int runCommand(const std::vector<std::string> &args) {
       return Ok;
     } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--plot", o.plot) ||
                value("--duration", o.duration) || value("--every", o.every)) {
+    } else if (a == "--keep-partial") {
+      o.keepPartial = true;
     } else if (value("--engine", o.engine)) {
       if (o.engine != "jit" && o.engine != "interpreter")
         return usage("--engine must be 'jit' or 'interpreter'");
@@ -104,6 +111,15 @@ int runCommand(const std::vector<std::string> &args) {
   }
   if (o.file.empty())
     return usage("no spec file given");
+  if (o.keepPartial && o.output.empty())
+    return usage("--keep-partial needs -o FILE: the partial trace is written beside it");
+  // --plot draws SVG only: a .png (or any other) name would get SVG under a false extension.
+  if (!o.plot.empty()) {
+    std::string ext = std::filesystem::path(o.plot).extension().string();
+    std::transform(ext.begin(), ext.end(), ext.begin(), [](unsigned char ch) { return char(std::tolower(ch)); });
+    if (ext != ".svg")
+      return usage("--plot writes SVG; name the file *.svg, not '" + o.plot + "'");
+  }
 
   Compilation c;
   compileFile(o.file, c);
@@ -179,7 +195,22 @@ int runCommand(const std::vector<std::string> &args) {
   if (failure.failed) {
     std::fprintf(stderr, "saltpan: error: the simulation failed at t = %.6g ms: '%s' %s\n", failure.time * 1e3,
                  failure.variable.c_str(), failure.reason.c_str());
-    std::fprintf(stderr, "note: no output was written\n");
+    if (!o.keepPartial) {
+      std::fprintf(stderr, "note: no output was written (--keep-partial keeps what was recorded)\n");
+      return SpecErrors;
+    }
+    // Named so that it cannot be taken for a finished run's output.
+    std::filesystem::path out(o.output);
+    std::string partial = (out.parent_path() / (out.stem().string() + ".partial" + out.extension().string())).string();
+    std::string text = isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION)
+                                            : traceCsv(trace);
+    std::string error;
+    if (!writeFileAtomically(partial, text, error)) {
+      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
+      return CannotWrite;
+    }
+    std::fprintf(stderr, "note: %zu samples up to the failure written to %s; %s was not written\n", trace.time.size(),
+                 partial.c_str(), o.output.c_str());
     return SpecErrors;
   }
   std::string text =

@@ -72,6 +72,18 @@ expect_rc empty-test 1 test "$TMP/cell.saltpan"
 expect_grep empty-test err "no expectations in 1 spec file: nothing was tested"
 expect_rc empty-allowed 0 test --allow-empty "$TMP/cell.saltpan"
 
+# A failed run writes nothing, or with --keep-partial what it recorded, under a name that says so.
+sed 's/method rk4 step 10 us/method rk4 step 0.8 ms/; s/record axon.V every 0.01 ms/record axon.V every 0.8 ms/' \
+  "$SRC/specs/reference/squid_axon_1952.saltpan" >"$TMP/unstable.saltpan"
+expect_rc failed-run 65 run "$TMP/unstable.saltpan" -o "$TMP/unstable.csv"
+[ ! -e "$TMP/unstable.csv" ] && [ ! -e "$TMP/unstable.partial.csv" ] || fail "failed-run: wrote an output"
+expect_rc partial-run 65 run "$TMP/unstable.saltpan" -o "$TMP/unstable.csv" --keep-partial
+[ ! -e "$TMP/unstable.csv" ] || fail "partial-run: wrote the full output's name"
+[ "$(head -1 "$TMP/unstable.partial.csv")" = "time (ms),axon.V (mV)" ] || fail "partial-run: no partial trace"
+[ "$(wc -l <"$TMP/unstable.partial.csv")" -ge 2 ] || fail "partial-run: the partial trace has no samples"
+expect_grep partial-run err "up to the failure written to .*unstable.partial.csv"
+expect_rc partial-stdout 64 run "$TMP/unstable.saltpan" --keep-partial
+
 # --emit ir prints numbers that read back exactly, without binary noise.
 expect_rc emit-ir 0 check --emit ir "$SRC/specs/reference/squid_axon_1952.saltpan"
 expect_grep emit-ir out "^model SquidAxon1952 temperature 279.45 K$"

@@ -35,4 +35,10 @@ error_spec "$TMP/error.saltpan"
 expect_rc error 65 run --plot "$TMP/error.svg" "$TMP/error.saltpan"
 [ -e "$TMP/error.svg" ] && fail "error: a plot was written for a spec with errors"
 
+# Only SVG is drawn: a .png name is refused rather than given SVG under a false extension.
+expect_rc png 64 run --engine interpreter --duration 1ms --plot "$TMP/hh.png" -o "$TMP/png.csv" "$HH"
+expect_grep png err "--plot writes SVG; name the file \*.svg"
+[ -e "$TMP/hh.png" ] && fail "png: a .png file was written"
+[ -e "$TMP/png.csv" ] && fail "png: the run went ahead"
+
 finish
