@@ -429,7 +429,7 @@ private:
         fail(inj.range, "pulses need a positive width no longer than their interval");
         return num(0);
       }
-      double count = std::ceil((*to - *from) / *period);
+      double count = trainCount(*from, *to, *period);
       if (count > 1000) {
         fail(inj.range, "a pulse train may have at most 1000 pulses");
         return num(0);
@@ -443,6 +443,13 @@ private:
     }
     }
     return num(0);
+  }
+
+  // How many events a train `every P from T1 to T2` has: one at T1 + k P for each k with
+  // T1 + k P < T2 (T2 itself is excluded), the same for pulses and synaptic trains. A start
+  // within rounding of T2 (20 ms + 5 * 20 ms against 120 ms) counts as at T2.
+  static double trainCount(double from, double to, double every) {
+    return std::max(0.0, std::ceil((to - from) / every - 1e-9));
   }
 
   // The time course of one synaptic event, peak 1, at s = t - onset >= 0.
@@ -508,8 +515,9 @@ private:
         fail(syn.range, "a synaptic train needs a positive interval and an end after its start");
         return;
       }
-      for (double t = *from; t < *to && onsets.size() <= 1000; t = *from + static_cast<double>(onsets.size()) * *every)
-        onsets.push_back(t);
+      double count = std::min(trainCount(*from, *to, *every), 1001.0);
+      for (int i = 0; i < static_cast<int>(count); ++i)
+        onsets.push_back(*from + i * *every);
     }
     if (onsets.size() > 1000) {
       fail(syn.range, "a synapse may have at most 1000 events");
@@ -526,7 +534,15 @@ private:
     cur.g = add(cur.g, g);
     cur.ge = add(cur.ge, mul(g, num(*reversal)));
     std::string prefix = c.decl->name + ".synapse" + std::to_string(number);
-    probe(prefix + ".conductance", "mS/cm2", 0.1, g);
+    // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
+    if (perArea == 1)
+      // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
+    if (perArea == 1)
+      probe(prefix + ".conductance", "mS/cm2", 0.1, g);
+    else
+      probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
+    else
+      probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
     probe(prefix + ".current", "uA/cm2", 100, mul(g, sub(env.voltage, num(*reversal))));
   }
 

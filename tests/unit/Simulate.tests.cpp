@@ -120,6 +120,42 @@ TEST_CASE("a synaptic conductance follows its time course", "[simulate]") {
   }
 }
 
+TEST_CASE("a synapse given in nS is recorded in nS", "[simulate]") {
+  // 100 um2 of membrane: 2 nS over it is 2 mS/cm2 (common practice: 1 nS / 100 um2 = 1 mS/cm2).
+  Run r = simulateSpec("temperature 20 degC\n"
+                       "compartment c {\n  area 100 um2\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+                       "  membrane { L 0.1 mS/cm2 }\n}\n"
+                       "channel L { reversal -70 mV }\n"
+                       "protocol p {\n  method exponential_euler step 10 us\n  duration 6 ms\n"
+                       "  clamp c at -70 mV\n"
+                       "  synapse c 2 nS reversal 0 mV decay 2 ms at 2 ms\n"
+                       "  record c.synapse1.conductance, c.synapse1.current every 1 ms\n}\n");
+  REQUIRE_FALSE(r.failure.failed);
+  CHECK(r.trace.units[0] == "nS");
+  CHECK(r.trace.units[1] == "uA/cm2");
+  for (size_t i = 0; i < r.trace.time.size(); ++i) {
+    double t = r.trace.time[i];
+    double g = t >= 2e-3 ? 2 * std::exp(-(t - 2e-3) / 2e-3) : 0; // nS
+    CHECK_THAT(r.trace.at(i, 0), WithinAbs(g, 1e-12));
+    CHECK_THAT(r.trace.at(i, 1), WithinAbs(g * -70, 1e-9)); // 1 nS over 100 um2 is 1 mS/cm2: uA/cm2
+  }
+}
+
+TEST_CASE("a train's end time is not one of its events, even within rounding", "[simulate]") {
+  // 1 ms + 9 ms is 0.009999999999999998 s in binary, just before the 10 ms end: still not an event.
+  Run r = simulateSpec("temperature 20 degC\n"
+                       "compartment c {\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+                       "  membrane { L 0.1 mS/cm2 }\n}\n"
+                       "channel L { reversal -70 mV }\n"
+                       "protocol p {\n  method exponential_euler step 10 us\n  duration 12 ms\n"
+                       "  clamp c at -70 mV\n"
+                       "  synapse c 1 mS/cm2 reversal 0 mV decay 2 ms every 9 ms from 1 ms to 10 ms\n"
+                       "  record c.synapse1.conductance every 1 ms\n}\n");
+  REQUIRE_FALSE(r.failure.failed);
+  REQUIRE(r.trace.time.size() == 13);
+  CHECK_THAT(r.trace.at(11, 0), WithinAbs(std::exp(-10.0 / 2), 1e-12)); // only the event at 1 ms
+}
+
 TEST_CASE("the double-exponential and alpha time courses peak at 1", "[simulate]") {
   for (std::string shape : {"rise 0.5 ms decay 3 ms", "peak 1 ms"}) {
     Run r = simulateSpec("temperature 20 degC\n"
