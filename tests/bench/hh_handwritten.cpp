@@ -3,7 +3,7 @@
 // the baseline for saltpan's JIT in tests/bench/sim_bench.sh. Not a test.
 //
 // Equations and parameters: Hodgkin & Huxley 1952 in the modern convention, 6.3 degC
-// (see the project's references.md); units mV, ms, uA/cm2, mS/cm2, uF/cm2.
+// (see docs/references.md); units mV, ms, uA/cm2, mS/cm2, uF/cm2.
 #include <chrono>
 #include <cmath>
 #include <cstdio>

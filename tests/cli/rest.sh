@@ -28,7 +28,7 @@ expect_rc error 65 rest "$TMP/error.saltpan"
 expect_grep error err "error.saltpan:2:16: error: "
 expect_rc missing 65 rest "$TMP/does-not-exist.saltpan"
 
-# Text: the HH 1952 rest, -64.996379 mV (computed, references.md), stable.
+# Text: the HH 1952 rest, -64.996379 mV (computed, docs/references.md), stable.
 expect_rc text 0 rest "$HH"
 expect_grep text out "^  V = -64\.99637[89] mV  stable"
 
@@ -45,7 +45,7 @@ states = c["steady_states"]
 assert len(states) == 1, states
 s = states[0]
 assert {"V_mV", "stable", "max_real_eigenvalue_per_ms", "gates", "currents_uA_per_cm2"} <= set(s), sorted(s)
-# computed, references.md: -64.996379 mV
+# computed, docs/references.md: -64.996379 mV
 assert abs(s["V_mV"] - -64.996379) < 1e-5, s["V_mV"]
 assert s["stable"] is True and s["max_real_eigenvalue_per_ms"] < 0, s
 assert len(s["eigenvalues_per_ms"]) == 4

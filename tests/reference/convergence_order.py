@@ -8,7 +8,7 @@ recovery after it), V recorded every 0.08 ms. The model is specs/reference/squid
 with its protocol replaced in a temporary copy. Reference: dormand_prince at tolerance 1e-12
 (Dormand & Prince 1980). The slope of log(max |V - V_ref|) against log(step), fitted by least
 squares, must be about the method's order: exponential Euler (Rush & Larsen 1978; first order
-overall, references.md) 0.8-1.2 at steps 8, 4, 2, 1 us; classical RK4 (fourth order) 3.5-4.5 at
+overall, docs/references.md) 0.8-1.2 at steps 8, 4, 2, 1 us; classical RK4 (fourth order) 3.5-4.5 at
 40, 20, 10, 5 us.
 Exit status 0 when every check passes; otherwise 1, with one line per failure.
 """
@@ -34,7 +34,7 @@ PROTOCOL = """protocol convergence {{
 REFERENCE_METHOD = "dormand_prince step 1 us tolerance 1e-12"
 CASES = [
     # (method, steps in us, accepted slope range, source of the expected order)
-    ("exponential_euler", (8, 4, 2, 1), (0.8, 1.2), "first order: Rush & Larsen 1978 (references.md)"),
+    ("exponential_euler", (8, 4, 2, 1), (0.8, 1.2), "first order: Rush & Larsen 1978 (docs/references.md)"),
     ("rk4", (40, 20, 10, 5), (3.5, 4.5), "fourth order: classical Runge-Kutta"),
 ]
 # The reference must be far more accurate than the smallest error it measures.

@@ -18,22 +18,22 @@ import subprocess
 import sys
 import tempfile
 
-R = 8.31446261815324  # J/(mol K), exact (CODATA 2018; references.md, seen)
-F = 96485.33212331001  # C/mol, exact (CODATA 2018; references.md, seen)
+R = 8.31446261815324  # J/(mol K), exact (CODATA 2018; docs/references.md, seen)
+F = 96485.33212331001  # C/mol, exact (CODATA 2018; docs/references.md, seen)
 ZERO_CELSIUS = 273.15
 EXACT_TOLERANCE_MV = 1e-6
 
-# Squid axon concentrations in mM, (inside, outside) (Purves/Kandel, from memory; references.md).
+# Squid axon concentrations in mM, (inside, outside) (Purves/Kandel, from memory; docs/references.md).
 SQUID = {"K": (400.0, 20.0), "Na": (50.0, 440.0), "Cl": (40.0, 560.0)}
-CELSIUS = 20.0  # the textbook worked example's temperature (references.md)
+CELSIUS = 20.0  # the textbook worked example's temperature (docs/references.md)
 # P_K : P_Na : P_Cl at rest, Hodgkin & Katz 1949, J. Physiol. 108:37-77 (ratios from memory).
 REST_RATIOS = {"K": 1.0, "Na": 0.04, "Cl": 0.45}
 # ... and near the peak of the action potential (Hodgkin & Katz 1949, from memory).
 PEAK_RATIOS = {"K": 1.0, "Na": 20.0, "Cl": 0.45}
-# The closed form with these values, rounded to 0.01 mV (references.md, computed).
+# The closed form with these values, rounded to 0.01 mV (docs/references.md, computed).
 REST_COMPUTED_MV = -62.27
 PEAK_COMPUTED_MV = +42.37
-# "GHK gives about -60 mV for the squid axon" (textbook statement, from memory; references.md):
+# "GHK gives about -60 mV for the squid axon" (textbook statement, from memory; docs/references.md):
 # "about" read as within 3 mV.
 TEXTBOOK_REST_MV, TEXTBOOK_TOLERANCE_MV = -60.0, 3.0
 # For context only, not tested: the 1949 paper reports a measured resting potential of "about
@@ -123,7 +123,7 @@ def check_reference_spec(saltpan, source_dir):
     else:
         ok(f"Hodgkin & Katz 1949 rest: saltpan {rest!r} mV, closed form {expected!r} mV")
     if abs(rest - REST_COMPUTED_MV) > 0.005:
-        fail(f"{path}: ghk_rest_mV = {rest} mV, references.md computes {REST_COMPUTED_MV} mV")
+        fail(f"{path}: ghk_rest_mV = {rest} mV, docs/references.md computes {REST_COMPUTED_MV} mV")
     if abs(rest - TEXTBOOK_REST_MV) > TEXTBOOK_TOLERANCE_MV:
         fail(f"{path}: ghk_rest_mV = {rest} mV is not 'about -60 mV' (textbook, from memory)")
     else:
@@ -148,9 +148,9 @@ def check_temporary(saltpan, directory):
     if peak is None or abs(peak - expected) > EXACT_TOLERANCE_MV:
         fail(f"peak ratios 1:20:0.45: ghk_rest_mV = {peak}, closed form {expected!r} mV")
     elif abs(peak - PEAK_COMPUTED_MV) > 0.005:
-        fail(f"peak ratios 1:20:0.45: {peak} mV, references.md computes {PEAK_COMPUTED_MV} mV")
+        fail(f"peak ratios 1:20:0.45: {peak} mV, docs/references.md computes {PEAK_COMPUTED_MV} mV")
     else:
-        ok(f"peak ratios: saltpan {peak!r} mV, closed form {expected!r} mV, references.md {PEAK_COMPUTED_MV:+.2f} mV")
+        ok(f"peak ratios: saltpan {peak!r} mV, closed form {expected!r} mV, docs/references.md {PEAK_COMPUTED_MV:+.2f} mV")
 
     rest = ghk_voltage_mV(REST_RATIOS, SQUID, CELSIUS)
     # Only the ratios matter: scaling every permeability by 100 leaves the rest unchanged.

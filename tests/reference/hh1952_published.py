@@ -19,24 +19,24 @@ import tempfile
 
 import numpy as np
 
-# Check values at 6.3 degC with E_L = -54.387 mV (references.md, computed, agreeing with a
+# Check values at 6.3 degC with E_L = -54.387 mV (docs/references.md, computed, agreeing with a
 # computer-assisted-proof preprint on the 1952 parameters).
 REST_MV = -64.996379
 REST_TOLERANCE_MV = 1e-3
 GATES_AT_MINUS_65 = {"axon.SquidSodium1952.m": 0.052932, "axon.SquidSodium1952.h": 0.596121,
                      "axon.SquidPotassium1952.n": 0.317677}  # rounded to 6 decimals
 GATE_TOLERANCE = 1e-6
-RATE_10_HZ = 68.32  # at 10 uA/cm2 (references.md, computed)
+RATE_10_HZ = 68.32  # at 10 uA/cm2 (docs/references.md, computed)
 RATE_TOLERANCE_HZ = 0.1
-PERIOD_10_MS = 14.63621  # (references.md, computed)
+PERIOD_10_MS = 14.63621  # (docs/references.md, computed)
 PERIOD_TOLERANCE_MS = 1e-3
-# Onset of repetitive firing for a step from rest: 6.2603 uA/cm2 at about 50.3 Hz (references.md,
+# Onset of repetitive firing for a step from rest: 6.2603 uA/cm2 at about 50.3 Hz (docs/references.md,
 # computed; Rinzel & Miller 1980, Math. Biosci. 49:27-59: about 6.26, from memory). The protocols
 # below_onset (6.2) and above_onset (6.3) bracket it.
 BELOW_ONSET, ABOVE_ONSET = 6.2, 6.3
 SUSTAINED_WINDOW_MS = 200.0  # the last 200 ms of a 500 ms step
 SUSTAINED_MIN_SPIKES = 5  # a train near 50 Hz gives about 10 there
-# "The f-I curve starts discontinuously near 50 Hz" (references.md): the rate just above onset.
+# "The f-I curve starts discontinuously near 50 Hz" (docs/references.md): the rate just above onset.
 ONSET_RATE_RANGE_HZ = (45.0, 60.0)
 
 failures = []
@@ -100,10 +100,10 @@ def check_rate(label, period):
     rate = 1000.0 / period
     print(f"{label}: steady period {period:.5f} ms, rate {rate:.3f} Hz")
     if abs(rate - RATE_10_HZ) > RATE_TOLERANCE_HZ:
-        fail(f"{label}: firing rate {rate:.3f} Hz at 10 uA/cm2, references.md (computed) gives {RATE_10_HZ} Hz "
+        fail(f"{label}: firing rate {rate:.3f} Hz at 10 uA/cm2, docs/references.md (computed) gives {RATE_10_HZ} Hz "
              f"(tolerance {RATE_TOLERANCE_HZ} Hz)")
     else:
-        ok(f"{label}: {rate:.3f} Hz at 10 uA/cm2, references.md (computed) {RATE_10_HZ} Hz")
+        ok(f"{label}: {rate:.3f} Hz at 10 uA/cm2, docs/references.md (computed) {RATE_10_HZ} Hz")
     return rate
 
 
@@ -121,24 +121,24 @@ def main():
         fail(f"the model in {spec} is no longer the one in {base}")
 
     with tempfile.TemporaryDirectory(prefix="saltpan-hh-published-") as directory:
-        # Gates at -65 mV and the resting potential (references.md, computed).
+        # Gates at -65 mV and the resting potential (docs/references.md, computed).
         rest = run(saltpan, spec, "rest", directory)
         if rest is not None:
             for name, expected in GATES_AT_MINUS_65.items():
                 got = rest[name][0]
                 if abs(got - expected) > GATE_TOLERANCE:
-                    fail(f"{name} at -65 mV is {got!r}, references.md (computed) gives {expected}")
+                    fail(f"{name} at -65 mV is {got!r}, docs/references.md (computed) gives {expected}")
                 else:
-                    ok(f"{name} at -65 mV: {got:.7f} (references.md, computed: {expected})")
+                    ok(f"{name} at -65 mV: {got:.7f} (docs/references.md, computed: {expected})")
             v = rest["axon.V"]
             settled = abs(v[-1] - v[-11])
             print(f"rest: V = {v[-1]:.7f} mV after {rest['time'][-1]:g} ms (moved {settled:.2g} mV in its "
-                  f"last 10 ms); references.md (computed) {REST_MV} mV")
+                  f"last 10 ms); docs/references.md (computed) {REST_MV} mV")
             if abs(v[-1] - REST_MV) > REST_TOLERANCE_MV or settled > 1e-5:
-                fail(f"resting potential {v[-1]!r} mV (moving by {settled:.2g} mV per 10 ms), references.md "
+                fail(f"resting potential {v[-1]!r} mV (moving by {settled:.2g} mV per 10 ms), docs/references.md "
                      f"(computed) gives {REST_MV} mV")
             else:
-                ok(f"resting potential within {REST_TOLERANCE_MV} mV of {REST_MV} mV (references.md, computed)")
+                ok(f"resting potential within {REST_TOLERANCE_MV} mV of {REST_MV} mV (docs/references.md, computed)")
 
         # Firing at 10 uA/cm2: the accurate protocol, then the shipped one.
         dp = run(saltpan, spec, "step10_dp", directory)
@@ -147,9 +147,9 @@ def main():
             if period is not None:
                 check_rate("step10_dp (dormand_prince 1e-10)", period)
                 if abs(period - PERIOD_10_MS) > PERIOD_TOLERANCE_MS:
-                    fail(f"step10_dp: period {period:.6f} ms, references.md (computed) gives {PERIOD_10_MS} ms")
+                    fail(f"step10_dp: period {period:.6f} ms, docs/references.md (computed) gives {PERIOD_10_MS} ms")
                 else:
-                    ok(f"step10_dp: period within {PERIOD_TOLERANCE_MS} ms of {PERIOD_10_MS} ms (references.md, "
+                    ok(f"step10_dp: period within {PERIOD_TOLERANCE_MS} ms of {PERIOD_10_MS} ms (docs/references.md, "
                        f"computed)")
         shipped = run(saltpan, base, "step10", directory)
         if shipped is not None:
@@ -158,7 +158,7 @@ def main():
                 check_rate("step10 as shipped (squid_axon_1952.saltpan, exponential_euler 10 us)", period)
 
         # Onset of repetitive firing between 6.2 and 6.3 uA/cm2 (Rinzel & Miller 1980, about 6.26,
-        # from memory; references.md computes 6.2603).
+        # from memory; docs/references.md computes 6.2603).
         counts = {}
         for protocol, amplitude in (("below_onset", BELOW_ONSET), ("above_onset", ABOVE_ONSET)):
             c = run(saltpan, spec, protocol, directory)
@@ -191,10 +191,10 @@ def main():
                 low, high = ONSET_RATE_RANGE_HZ
                 print(f"rate just above onset ({amplitude} uA/cm2): {rate:.3f} Hz")
                 if not low <= rate <= high:
-                    fail(f"rate just above onset {rate:.3f} Hz; the f-I curve starts near 50 Hz (references.md: "
+                    fail(f"rate just above onset {rate:.3f} Hz; the f-I curve starts near 50 Hz (docs/references.md: "
                          f"about 50.3 Hz at onset)")
                 else:
-                    ok(f"the f-I curve starts near 50 Hz: {rate:.2f} Hz at {amplitude} uA/cm2 (references.md: "
+                    ok(f"the f-I curve starts near 50 Hz: {rate:.2f} Hz at {amplitude} uA/cm2 (docs/references.md: "
                        f"about 50.3 Hz at onset)")
 
     if failures:

@@ -4,7 +4,7 @@
 usage: hh1952_scipy.py SALTPAN SOURCE_DIR
 
 The published HH 1952 equations (modern convention, 6.3 degC; written out below from the project's
-references.md, not from saltpan's stdlib) are integrated with SciPy's solve_ivp (Virtanen et al. 2020,
+docs/references.md, not from saltpan's stdlib) are integrated with SciPy's solve_ivp (Virtanen et al. 2020,
 Nature Methods 17:261-272) at rtol 1e-10, atol 1e-12, for the 10 uA/cm2 step of 200 ms from
 V = -65 mV with the gates at their steady state. saltpan runs specs/reference/squid_axon_1952.saltpan,
 protocol step10 (exponential Euler, 10 us, as shipped), and a temporary copy with the method
@@ -23,7 +23,7 @@ import tempfile
 import numpy as np
 from scipy.integrate import solve_ivp
 
-# --- the published model (references.md, "Hodgkin-Huxley 1952 squid axon, modern convention") ---
+# --- the published model (docs/references.md, "Hodgkin-Huxley 1952 squid axon, modern convention") ---
 # C = 1 uF/cm2; gNa, gK, gL = 120, 36, 0.3 mS/cm2 (HH 1952 Table 3, seen secondhand).
 C_M = 1.0
 G_NA, G_K, G_L = 120.0, 36.0, 0.3
@@ -39,7 +39,7 @@ SPIKE_TOLERANCE_MS = 0.05
 # equations to ~1e-9 ms, and parameter drift (E_L rounded to -54.4 mV moves the 14th spike by
 # 0.03 ms) must not hide inside the 0.05 ms criterion.
 ACCURATE_TOLERANCE_MS = 1e-4
-# Period at 10 uA/cm2: 14.63621 ms (computed; references.md). A sanity check on the Python model.
+# Period at 10 uA/cm2: 14.63621 ms (computed; docs/references.md). A sanity check on the Python model.
 PERIOD_COMPUTED_MS = 14.63621
 
 
@@ -48,7 +48,7 @@ def exprel(x):
     return 1.0 if x == 0.0 else math.expm1(x) / x
 
 
-# Rates in 1/ms at 6.3 degC (HH 1952 forms in modern V; references.md). phi = 1 at 6.3 degC.
+# Rates in 1/ms at 6.3 degC (HH 1952 forms in modern V; docs/references.md). phi = 1 at 6.3 degC.
 def alpha_m(v):  # 0.1(V+40)/(1 - e^(-(V+40)/10)); alpha_m(-40) = 1
     return 1.0 / exprel(-(v + 40.0) / 10.0)
 
@@ -153,11 +153,11 @@ def scipy_reference():
         fail(f"linear interpolation at {SAMPLE} ms moves SciPy's spike times by {interp_error:.3g} ms")
     period = np.mean(np.diff(sampled[-5:]))
     if abs(period - PERIOD_COMPUTED_MS) > 1e-4:
-        fail(f"SciPy period {period:.6f} ms, references.md computes {PERIOD_COMPUTED_MS} ms")
+        fail(f"SciPy period {period:.6f} ms, docs/references.md computes {PERIOD_COMPUTED_MS} ms")
     else:
         ok(f"SciPy solve_ivp (Virtanen et al. 2020), DOP853/LSODA agree to "
            f"{np.max(np.abs(other - sampled)):.2g} ms; {len(sampled)} spikes, period {period:.5f} ms "
-           f"(references.md, computed: {PERIOD_COMPUTED_MS} ms)")
+           f"(docs/references.md, computed: {PERIOD_COMPUTED_MS} ms)")
     return sampled
 
 

@@ -8,7 +8,7 @@ Checks, in order:
      follows from the tables' rounding, see TABLE_TOLERANCE_MV);
   2. every compartment and ion of every shipped spec (specs/**/*.saltpan) against an independent
      computation from the exact CODATA 2018 constants, to 1e-6 mV;
-  3. RT/F at 6.3, 20 and 37 degC: Python, the computed values in references.md, GNU units and
+  3. RT/F at 6.3, 20 and 37 degC: Python, the computed values in docs/references.md, GNU units and
      saltpan itself, to 1e-6 relative;
   4. invariants on small temporary specs: z*E is unchanged when the valence flips sign, swapping
      the sides flips the sign of E, E/T is constant, equal concentrations give E = 0.
@@ -24,7 +24,7 @@ import subprocess
 import sys
 import tempfile
 
-# Exact since the 2019 SI (CODATA 2018 = CODATA 2022 for these; references.md, "seen").
+# Exact since the 2019 SI (CODATA 2018 = CODATA 2022 for these; docs/references.md, "seen").
 E_CHARGE = 1.602176634e-19  # C
 N_A = 6.02214076e23  # 1/mol
 K_B = 1.380649e-23  # J/K
@@ -39,7 +39,7 @@ EXACT_TOLERANCE_MV = 1e-6
 RELATIVE_TOLERANCE = 1e-6
 
 # Hille, Ion Channels of Excitable Membranes, 3rd ed. (2001), Table 1.1, mammalian skeletal
-# muscle, 37 degC (from memory: numbers fairly sure, table number less so; references.md).
+# muscle, 37 degC (from memory: numbers fairly sure, table number less so; docs/references.md).
 HILLE_2001_MUSCLE = {
     # ion: (out mM, in mM, listed E mV)
     "Na": (145.0, 12.0, +67.0),  # Hille 2001, Table 1.1 (from memory)
@@ -50,15 +50,15 @@ HILLE_2001_MUSCLE = {
 HILLE_2001_CELSIUS = 37.0  # Hille 2001, Table 1.1 is for 37 degC (from memory)
 
 # Kandel et al., Principles of Neural Science, 5th ed., Table 6-1, squid giant axon
-# (concentrations seen secondhand; listed E from memory; references.md), room temperature.
+# (concentrations seen secondhand; listed E from memory; docs/references.md), room temperature.
 KANDEL_5_SQUID = {
     "K": (20.0, 400.0, -75.0),  # Kandel 5th ed., Table 6-1 (E from memory)
     "Na": (440.0, 50.0, +55.0),  # Kandel 5th ed., Table 6-1 (E from memory)
     "Cl": (560.0, 52.0, -60.0),  # Kandel 5th ed., Table 6-1 (E from memory)
 }
-KANDEL_5_CELSIUS = 20.0  # the table is for room temperature, ~20 degC (references.md)
+KANDEL_5_CELSIUS = 20.0  # the table is for room temperature, ~20 degC (docs/references.md)
 
-# RT/F in mV (computed with the exact constants; references.md).
+# RT/F in mV (computed with the exact constants; docs/references.md).
 RT_OVER_F_COMPUTED_MV = {6.3: 24.081138, 20.0: 25.261712, 37.0: 26.726659}
 
 failures = []
@@ -219,7 +219,7 @@ def check_rt_over_f(saltpan, directory):
         doc = show(saltpan, path)
         mine = ions_of(doc)["Xp"]["reversal_mV"] if doc else None
         for label, value, tol in (("GNU units", theirs, RELATIVE_TOLERANCE),
-                                  ("references.md (computed, 8 figures)", listed, 5e-7 / listed + 1e-12),
+                                  ("docs/references.md (computed, 8 figures)", listed, 5e-7 / listed + 1e-12),
                                   ("saltpan", mine, RELATIVE_TOLERANCE)):
             if value is None or abs(value - ours) > tol * ours:
                 fail(f"RT/F at {celsius} degC: {label} gives {value} mV, exact constants give {ours!r} mV")

@@ -89,12 +89,12 @@ TEST_CASE("the HH 1952 squid axon has one stable steady state", "[rest]") {
   CHECK_FALSE(axon.ghkRest.has_value());
   REQUIRE(axon.steadyStates.size() == 1);
   const rest::SteadyState &s = axon.steadyStates[0];
-  // Rest at I = 0: -64.996379 mV (computed, references.md), within 1e-5 mV.
+  // Rest at I = 0: -64.996379 mV (computed, docs/references.md), within 1e-5 mV.
   CHECK(s.v * 1e3 == Approx(-64.996379).margin(1e-5));
   CHECK(s.stable);
   CHECK(s.maxRealEigenvalue < 0);
   REQUIRE(s.eigenvalues.size() == 4); // V, m, h, n
-  // m, h, n at -65 mV: 0.052932, 0.596121, 0.317677 (computed, references.md). The rest is
+  // m, h, n at -65 mV: 0.052932, 0.596121, 0.317677 (computed, docs/references.md). The rest is
   // 3.6 uV away from -65 mV, which moves them by less than 2e-4.
   CHECK(gate(s, "SquidSodium1952.m") == Approx(0.052932).margin(2e-4));
   CHECK(gate(s, "SquidSodium1952.h") == Approx(0.596121).margin(2e-4));
