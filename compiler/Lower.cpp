@@ -1,10 +1,13 @@
 // Lower.cpp - Stage 8: builds the IR kernel of a model for one protocol.
 #include "Lower.h"
 
+#include "Nearest.h"
+
 #include "Analyze.h"
 #include "Diagnostics.h"
 #include "Evaluate.h"
 #include "Interpret.h"
+#include "Nearest.h"
 #include "Physics.h"
 
 #include <algorithm>
@@ -728,10 +731,20 @@ private:
       int index = out_.findProbe(r.path);
       if (index < 0) {
         fail(r.range, "there is nothing called '" + r.path + "' to record");
+        std::vector<std::string> names;
+        for (const ir::Probe &probe : out_.probes)
+          names.push_back(probe.name);
+        std::vector<std::string> near = nearestNames(r.path, names);
         std::string some;
-        for (size_t i = 0; i < out_.probes.size() && i < 6; ++i)
-          some += (i ? ", " : "") + out_.probes[i].name;
-        DiagnosticEngine::note(*diags_.last(), {}, "probes (recorded quantities) include " + some);
+        for (size_t i = 0; i < near.size(); ++i)
+          some += (i ? " or '" : "'") + near[i] + "'";
+        if (!some.empty())
+          DiagnosticEngine::note(*diags_.last(), {}, "did you mean " + some + "?");
+        else if (!names.empty()) {
+          for (size_t i = 0; i < names.size() && i < 6; ++i)
+            some += (i ? ", " : "") + names[i];
+          DiagnosticEngine::note(*diags_.last(), {}, "probes (recorded quantities) include " + some);
+        }
       } else {
         proto.record.push_back(index);
       }

@@ -137,8 +137,15 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
     else
       message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
     bool keyword = offending && isKeyword(vocabulary, offending->getType());
-    if (keyword && expected.find("a name") != std::string::npos)
+    if (keyword && expected.find("a name") != std::string::npos) {
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
+      keywordNameLine_ = range.begin.line;
+    } else if (keywordNameLine_ == range.begin.line && range.begin.offset > lastOffset_) {
+      // Recovery may read the keyword as the start of its own construct ('sweep' as a sweep):
+      // what follows on that line is noise after the one real mistake.
+      --count_;
+      return;
+    }
   }
   // ANTLR may complain twice at one token while recovering; keep the more helpful message.
   if (range.begin.offset == lastOffset_ && diags_.last()) {
