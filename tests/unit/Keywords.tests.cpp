@@ -2,6 +2,7 @@
 // docs/language.md and the "is a keyword" hint must agree, word for word.
 #include "Diagnostics.h"
 #include "Source.h"
+#include "TestSupport.h"
 #include "parse/Parse.h"
 
 #include <catch2/catch.hpp>
@@ -12,15 +13,9 @@
 #include <sstream>
 
 using namespace saltpan;
+using testing::readFile;
 
 namespace {
-
-std::string readFile(const std::string &path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
 
 // Lexer rules of the form `NAME : 'word' ;` in the grammar.
 std::set<std::string> grammarKeywords() {

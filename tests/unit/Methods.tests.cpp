@@ -14,15 +14,9 @@
 
 using namespace saltpan;
 using testing::compile;
+using testing::readFile;
 
 namespace {
-
-std::string readFile(const std::string &path) {
-  std::ifstream in(path, std::ios::binary);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
 
 std::string normaliseVersion(std::string text) {
   const std::string version = std::string("saltpan ") + methodsToolVersion();

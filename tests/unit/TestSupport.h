@@ -4,7 +4,9 @@
 
 #include <catch2/catch.hpp>
 
+#include <fstream>
 #include <memory>
+#include <sstream>
 #include <string>
 
 namespace saltpan::testing {
@@ -49,6 +51,14 @@ inline bool hasError(const Compilation &c, const std::string &text) {
     if (d.severity == Severity::Error && d.message.find(text) != std::string::npos)
       return true;
   return false;
+}
+
+/// The whole file at `path`, or "" when it cannot be read.
+inline std::string readFile(const std::string &path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream s;
+  s << in.rdbuf();
+  return s.str();
 }
 
 } // namespace saltpan::testing
