@@ -191,7 +191,7 @@ TEST_CASE("golden AST dumps", "[golden]") {
       std::string actual = ast::dump(*module);
       fs::path expectedPath = p;
       expectedPath.replace_extension(".ast.expected");
-      if (std::getenv("SALTPAN_UPDATE_GOLDEN")) {
+      if (const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN"); update && std::string(update) == "1") {
         std::ofstream(expectedPath, std::ios::binary) << actual;
         SUCCEED("updated " << expectedPath);
       } else {
