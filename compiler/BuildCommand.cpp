@@ -2,6 +2,7 @@
 // library: every protocol lowered, its kernels emitted as one object (EmitObject.h) and linked
 // with `c++` against the runtime archives, which hold no LLVM and no ANTLR.
 #include "Commands.h"
+#include "Version.h"
 
 #include "EmitObject.h"
 #include "Fuse.h"
@@ -26,9 +27,6 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 // The build tree's archives and header (configure time); see compiler/CMakeLists.txt.
 #ifndef SALTPAN_LINK_DRIVER
 #define SALTPAN_LINK_DRIVER "c++"

@@ -1,5 +1,6 @@
 // Commands.cpp - `saltpan check` and `saltpan show`: options, output and exit codes.
 #include "Commands.h"
+#include "Version.h"
 
 #include "Fuse.h"
 #include "Lower.h"
@@ -17,10 +18,6 @@
 #include <fstream>
 #include <memory>
 #include <unistd.h>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -1,5 +1,6 @@
 // FmtCommand.cpp - `saltpan fmt`: rewrites specs in the canonical layout (parse/Format.h).
 #include "Commands.h"
+#include "Version.h"
 
 #include "Diagnostics.h"
 #include "Source.h"
@@ -7,10 +8,6 @@
 
 #include <cstdio>
 #include <unistd.h>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -4,6 +4,7 @@
 // last): its name and its bare canonical form (parse/Format.h), which has no comments and no
 // layout left. Reformatting or editing comments keeps the hash; changing any token changes it.
 #include "Commands.h"
+#include "Version.h"
 
 #include "Diagnostics.h"
 #include "ModelHash.h"
@@ -16,10 +17,6 @@
 #include <filesystem>
 #include <nlohmann/json.hpp>
 #include <unistd.h>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -1,6 +1,7 @@
 // MergeCommand.cpp - `saltpan merge`: the JSON results of a sweep's shards, joined into the
 // file (CSV or JSON) that one unsharded run of the sweep writes.
 #include "Commands.h"
+#include "Version.h"
 
 #include "SweepTable.h"
 #include "TraceOutput.h"
@@ -9,10 +10,6 @@
 #include <cstdio>
 #include <fstream>
 #include <sstream>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

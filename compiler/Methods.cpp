@@ -6,6 +6,7 @@
 // are either as written in the spec or printed with %.6g.
 #include "ModelHash.h"
 #include "Methods.h"
+#include "Version.h"
 
 #include "Analyze.h"
 #include "Physics.h"
@@ -21,10 +22,6 @@
 #include <string>
 #include <utility>
 #include <vector>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan {
 

@@ -1,6 +1,7 @@
 // MethodsCommand.cpp - `saltpan methods`: a methods-section description of a checked model
 // (the text is generated in Methods.cpp).
 #include "Commands.h"
+#include "Version.h"
 
 #include "Methods.h"
 #include "Pipeline.h"
@@ -9,10 +10,6 @@
 #include <cstdlib>
 #include <filesystem>
 #include <unistd.h>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -1,5 +1,6 @@
 // ModelHash.cpp - the model hash over canonical forms (see ModelHash.h).
 #include "ModelHash.h"
+#include "Version.h"
 
 #include "Diagnostics.h"
 #include "Modules.h"
@@ -7,10 +8,6 @@
 #include "parse/Format.h"
 
 #include <filesystem>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan {
 

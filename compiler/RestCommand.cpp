@@ -1,6 +1,7 @@
 // RestCommand.cpp - `saltpan rest`: every steady state of each compartment, its stability,
 // gates and currents (the analysis is in Rest.cpp).
 #include "Commands.h"
+#include "Version.h"
 
 #include "Lower.h"
 #include "Pipeline.h"
@@ -13,10 +14,6 @@
 #include <exception>
 #include <nlohmann/json.hpp>
 #include <optional>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -1,6 +1,7 @@
 // RunCommand.cpp - `saltpan run`: lower a checked spec for one protocol, compile its kernel
 // (JIT, or the reference interpreter), simulate, and write the recorded traces.
 #include "Commands.h"
+#include "Version.h"
 
 #include "Lower.h"
 #include "Measures.h"
@@ -21,10 +22,6 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

@@ -1,5 +1,6 @@
 // Show.cpp - renders the analysed model: concentrations, reversal potentials, GHK rest.
 #include "Show.h"
+#include "Version.h"
 
 #include "ModelHash.h"
 #include "Physics.h"
@@ -8,10 +9,6 @@
 #include <algorithm>
 #include <cstdio>
 #include <nlohmann/json.hpp>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan {
 

@@ -1,6 +1,7 @@
 // SnapshotCommand.cpp - `saltpan snapshot`: records a model's protocols into reference files
 // that expectations compare later runs with (snapshot_max_error, snapshot_rms_error).
 #include "Commands.h"
+#include "Version.h"
 
 #include "Lower.h"
 #include "Pipeline.h"
@@ -12,10 +13,6 @@
 
 #include <cstdio>
 #include <filesystem>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

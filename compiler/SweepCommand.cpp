@@ -1,6 +1,7 @@
 // SweepCommand.cpp - `saltpan sweep`: many runs of one model, one per point of a grid or a
 // sample, on every core, in SIMD lanes, checkpointed; `--shard` splits it across machines.
 #include "Commands.h"
+#include "Version.h"
 
 #include "Diagnostics.h"
 #include "ModelHash.h"
@@ -19,10 +20,6 @@
 #include <cstdlib>
 #include <filesystem>
 #include <thread>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

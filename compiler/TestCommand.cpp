@@ -1,6 +1,7 @@
 // TestCommand.cpp - `saltpan test`: finds specs with expectations, measures every one (in
 // parallel across files), reports measured vs expected, and writes JUnit XML and JSON.
 #include "Commands.h"
+#include "Version.h"
 
 #include "Expect.h"
 #include "ModelHash.h"
@@ -16,10 +17,6 @@
 #include <filesystem>
 #include <nlohmann/json.hpp>
 #include <thread>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace saltpan::cli {
 

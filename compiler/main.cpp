@@ -1,14 +1,11 @@
 // main.cpp - the saltpan command line: dispatches to a subcommand.
 #include "Commands.h"
+#include "Version.h"
 
 #include <cstdio>
 #include <exception>
 #include <string>
 #include <vector>
-
-#ifndef SALTPAN_VERSION
-#define SALTPAN_VERSION "unknown"
-#endif
 
 namespace {
 
