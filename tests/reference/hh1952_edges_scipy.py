@@ -34,6 +34,7 @@ import numpy as np
 from scipy.integrate import solve_ivp
 from scipy.optimize import curve_fit
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import hh1952_scipy as hh  # noqa: E402  (the same published equations, one copy)
 
