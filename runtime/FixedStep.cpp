@@ -64,6 +64,16 @@ double StepGrid::nextBreak(double t, double until) const {
   return it != events_.end() && *it < until ? *it : until;
 }
 
+bool holdClamps(const ir::Model &m, double *y, const double *out) {
+  bool moved = false;
+  for (const ir::Compartment &c : m.compartments)
+    if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0 && y[c.voltageState] != out[c.commandOutput]) {
+      y[c.voltageState] = out[c.commandOutput];
+      moved = true;
+    }
+  return moved;
+}
+
 void stateDerivative(const ir::Model &m, const double *p, const double *y, const double *out, double *dydt) {
   for (const ir::Gate &g : m.gates)
     dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
@@ -93,13 +103,7 @@ void FixedStepper::evaluate(const double *y, double t, double *out) {
 
 void FixedStepper::settle(double *y, double *out, double t) {
   evaluate(y, t, out);
-  bool moved = false;
-  for (const ir::Compartment &c : m_.compartments)
-    if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0 && y[c.voltageState] != out[c.commandOutput]) {
-      y[c.voltageState] = out[c.commandOutput];
-      moved = true;
-    }
-  if (moved)
+  if (holdClamps(m_, y, out))
     evaluate(y, t, out);
 }
 

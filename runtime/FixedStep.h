@@ -46,6 +46,10 @@ private:
   std::vector<double> events_;
 };
 
+/// Sets each clamped potential in y to its command, from the kernel outputs `out` at y; true
+/// when one moved (the outputs must then be evaluated again).
+bool holdClamps(const ir::Model &model, double *y, const double *out);
+
 /// dy/dt of every state from the kernel outputs at y (a clamped potential does not move).
 void stateDerivative(const ir::Model &model, const double *params, const double *y, const double *out, double *dydt);
 

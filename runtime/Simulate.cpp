@@ -144,13 +144,7 @@ private:
 
   // Holds clamped potentials at their command; re-evaluates when a potential moved.
   void applyClamps(double t) {
-    bool moved = false;
-    for (const ir::Compartment &c : m_.compartments)
-      if (c.clampedOutput >= 0 && out_[c.clampedOutput] != 0 && y_[c.voltageState] != out_[c.commandOutput]) {
-        y_[c.voltageState] = out_[c.commandOutput];
-        moved = true;
-      }
-    if (moved)
+    if (holdClamps(m_, y_.data(), out_.data()))
       evaluate(y_.data(), t, out_.data());
   }
 
