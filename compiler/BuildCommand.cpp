@@ -188,18 +188,18 @@ struct Kernels {
   }
 };
 
-// Every kernel runModel (Run.cpp) can ask for under any --every: the fused exponential Euler
-// step (and its state-only form when there are no dynamic concentrations), else the plain one.
+// Every kernel runModel (Run.cpp) and the C interface can ask for under any --every: the plain
+// one (steps that meet a stimulus edge take it), and for exponential Euler the fused step (and
+// its state-only form when there are no dynamic concentrations).
 void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kernels) {
   std::vector<const ir::Kernel *> plain;
   for (const ir::Model *m : models) {
+    plain.push_back(&m->kernel);
     std::optional<ir::Kernel> fused;
     if (m->protocol.method == ir::Method::ExponentialEuler)
       fused = fuseExponentialEuler(*m, m->protocol.step);
-    if (!fused) {
-      plain.push_back(&m->kernel);
+    if (!fused)
       continue;
-    }
     kernels.owned.push_back(std::move(*fused));
     if (m->pools.empty())
       if (auto stateOnly = fuseExponentialEuler(*m, m->protocol.step, false))

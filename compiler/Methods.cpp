@@ -504,7 +504,9 @@ struct MethodRef {
 
 MethodRef methodInfo(const std::string &method) {
   if (method == "rk4")
-    return {"the classical fourth-order Runge" "\u2013" "Kutta method (RK4) on the full system", ""};
+    return {"the classical fourth-order Runge" "\u2013" "Kutta method (RK4) on the full system, with steps split "
+            "at the edges of stimuli and clamp steps",
+            ""};
   if (method == "dormand_prince")
     return {"the adaptive embedded Runge" "\u2013" "Kutta 5(4) pair of Dormand & Prince (1980), keeping the error of "
             "each step below " + M("\\mathrm{atol} + \\mathrm{rtol}\\,|y|"),
@@ -515,10 +517,11 @@ MethodRef methodInfo(const std::string &method) {
             "first-order solution and a finite-difference Jacobian at every step",
             "J. G. Verwer, E. J. Spee, J. G. Blom and W. Hundsdorfer (1999). A second-order Rosenbrock method applied "
             "to photochemical dispersion problems. SIAM Journal on Scientific Computing 20(4):1456" "\u2013" "1480."};
-  return {"the exponential Euler (Rush" "\u2013" "Larsen) scheme (Rush & Larsen 1978): first order; each gate follows "
-          "its exact exponential relaxation towards its steady value with V frozen over the step, and V follows the "
-          "exact exponential relaxation of the linear membrane equation with the gates frozen; pump, GHK and injected "
-          "currents are held over the step",
+  return {"exponential Euler with Rush" "\u2013" "Larsen gate updates (Rush & Larsen 1978), gates first: each gate "
+          "follows its exact exponential relaxation towards its steady value at the potential of the step's start, "
+          "then V follows the exact exponential relaxation of the linear membrane equation with the conductances of "
+          "the updated gates, pump, GHK and injected currents taken at the middle of the step (second order in V); "
+          "steps are split at the edges of stimuli and clamp steps",
           "S. Rush and H. Larsen (1978). A practical algorithm for solving dynamic membrane equations. IEEE "
           "Transactions on Biomedical Engineering 25(4):389" "\u2013" "392."};
 }

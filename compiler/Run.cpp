@@ -1,6 +1,7 @@
 // Run.cpp - fuse, compile (or interpret), simulate.
 #include "Run.h"
 
+#include "FixedStep.h"
 #include "Fuse.h"
 #include "Interpret.h"
 
@@ -38,10 +39,15 @@ RunOutcome runModel(const ir::Model &model, const std::vector<double> &params, c
   if (compile) {
     KernelFn native = compile(fused ? *fused : model.kernel, out.compileError);
     KernelFn nativeStateOnly = native && stateOnly ? compile(*stateOnly, out.compileError) : nullptr;
-    if (native && (!stateOnly || nativeStateOnly)) {
+    // Steps that meet a stimulus edge are split by the general stepper, with the model's kernel.
+    bool plainToo = fused && StepGrid(model).meetsEvents();
+    KernelFn nativePlain = native && plainToo ? compile(model.kernel, out.compileError) : nullptr;
+    if (native && (!stateOnly || nativeStateOnly) && (!plainToo || nativePlain)) {
       (fused ? step.kernel : kernel).native = native;
       if (stateOnly)
         step.stateOnly.native = nativeStateOnly;
+      if (plainToo)
+        kernel.native = nativePlain;
       out.native = true;
     }
   }

@@ -109,8 +109,9 @@ private:
     bool steady = m.measure == "rest" || m.measure == "input_resistance";
     if (!measuredOnRun(m) && !steady) {
       auto &d = diags_.error(m.measureRange, "'" + m.measure + "' does not change from point to point of a sweep");
-      DiagnosticEngine::note(d, {}, "a sweep measures protocol runs, rest and input_resistance; test fixed "
-                                    "properties with 'expect'");
+      DiagnosticEngine::note(d, {},
+                             "a sweep measures protocol runs, rest and input_resistance; test fixed "
+                             "properties with 'expect'");
     } else if (m.measure.rfind("snapshot_", 0) == 0)
       diags_.error(m.measureRange, "'" + m.measure + "' compares with one snapshot and cannot be swept");
   }
@@ -246,7 +247,7 @@ struct SweepEvaluator::Impl {
     std::vector<int> axisParam; // parameter index of each axis
     bool lanes = false;
     LaneKernels laneKernels;
-    FusedStep fused;            // native scalar kernels (engine scalar, or not fusable)
+    FusedStep fused; // native scalar kernels (engine scalar, or not fusable)
     KernelFn plain = nullptr;
     std::optional<ir::Kernel> fusedKernel, stateOnlyKernel;
     std::vector<std::unique_ptr<Interpreter>> plainInterp, fusedInterp, stateOnlyInterp; // per worker
@@ -374,7 +375,9 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
       run.laneKernels.lanes = im.lanes;
       run.laneKernels.full = compile(*laneFull, im.lanes, err);
       run.laneKernels.stateOnly = run.laneKernels.full ? compile(*stateOnly, im.lanes, err) : nullptr;
-      if (!run.laneKernels.stateOnly && im.error.empty())
+      // Steps split at an event run the scalar stepper with the model's kernel, as scalar points do.
+      run.laneKernels.plain = run.laneKernels.stateOnly ? compile(run.model.kernel, 1, err) : nullptr;
+      if (!run.laneKernels.plain && im.error.empty())
         im.error = "cannot compile the lane kernel of protocol '" + p->name + "': " + err;
       run.lanes = true;
       anyLanes = true;

@@ -1,10 +1,11 @@
 // CApi.cpp - saltpan_model.h: a built model stepped from C, one fixed step at a time.
 //
-// Exponential Euler runs the fused step kernel (Fuse.h) exactly as `saltpan run` does, so the
-// states agree with its output bit for bit; RK4, and exponential Euler under a voltage clamp,
-// follow Simulate.cpp's fixed-step loop (evaluate, hold clamps, step).
+// Each step is the one `saltpan run` takes, so the states agree with its output bit for bit:
+// the fused exponential Euler kernel (Fuse.h) for a step that meets no stimulus edge, else the
+// shared fixed stepper (FixedStep.h: evaluate, hold clamps, step split at the edges).
 #include "saltpan_model.h"
 
+#include "FixedStep.h"
 #include "Fuse.h"
 #include "Simulate.h"
 #include "StandaloneModel.h"
@@ -38,36 +39,21 @@ const ModelBundle *bundle() {
 struct saltpan_model {
   ir::Model model;
   std::vector<double> params, y, out, buffer;
-  std::vector<double> k1, k2, k3, k4, tmp, scratch;
-  KernelFn fused = nullptr; // exponential Euler: next state, then every output
-  KernelFn plain = nullptr; // the model kernel: every output
+  std::optional<StepGrid> grid;
+  std::optional<FixedStepper> stepper; // Simulate's fixed steps, with the plain kernel
+  KernelFn fused = nullptr;            // exponential Euler: next state, then every output
+  KernelFn plain = nullptr;            // the model kernel: every output
   long steps = 0;
   bool failed = false;
   std::string failure; // why the simulation stopped, kept until reset
   std::string error;
 
-  double time() const { return static_cast<double>(steps) * model.protocol.step; }
-
-  void evaluate(const double *state, double t, double *outputs) { plain(state, params.data(), t, outputs); }
-
-  // Holds clamped potentials at their command, as Simulate.cpp's applyClamps does.
-  void applyClamps(double t) {
-    bool moved = false;
-    for (const ir::Compartment &c : model.compartments)
-      if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0 && y[c.voltageState] != out[c.commandOutput]) {
-        y[c.voltageState] = out[c.commandOutput];
-        moved = true;
-      }
-    if (moved)
-      evaluate(y.data(), t, out.data());
-  }
+  double time() const { return grid->time(steps); }
 
   // A state as `saltpan run` records it at the current time: clamps already applied.
   void settle() {
-    if (!fused) {
-      evaluate(y.data(), time(), out.data());
-      applyClamps(time());
-    }
+    if (!fused)
+      stepper->settle(y.data(), out.data(), time());
   }
 
   bool healthy() {
@@ -90,66 +76,17 @@ struct saltpan_model {
     return false;
   }
 
-  void derivative(const double *state, const double *outputs, double *dydt) {
-    for (const ir::Gate &g : model.gates)
-      dydt[g.state] = (outputs[g.infOutput] - state[g.state]) / outputs[g.tauOutput];
-    for (const ir::Pool &pool : model.pools)
-      dydt[pool.state] = outputs[pool.derivativeOutput];
-    for (const ir::Compartment &c : model.compartments) {
-      double v = state[c.voltageState];
-      double current = outputs[c.gOutput] * v - outputs[c.geOutput] + outputs[c.iOtherOutput];
-      bool clamped = c.clampedOutput >= 0 && outputs[c.clampedOutput] != 0;
-      dydt[c.voltageState] = clamped ? 0 : -current / params[c.capacitanceParam];
-    }
-  }
-
-  void rk4Step(double t, double dt) {
-    size_t n = y.size();
-    derivative(y.data(), out.data(), k1.data());
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y[i] + 0.5 * dt * k1[i];
-    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k2.data());
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y[i] + 0.5 * dt * k2[i];
-    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k3.data());
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y[i] + dt * k3[i];
-    evaluate(tmp.data(), t + dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k4.data());
-    for (size_t i = 0; i < n; ++i)
-      y[i] += dt / 6 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
-  }
-
-  void exponentialEulerStep(double dt) {
-    for (const ir::Pool &pool : model.pools)
-      y[pool.state] += dt * out[pool.derivativeOutput];
-    for (const ir::Gate &g : model.gates) {
-      double inf = out[g.infOutput], tau = out[g.tauOutput];
-      y[g.state] = inf + (y[g.state] - inf) * std::exp(-dt / tau);
-    }
-    for (const ir::Compartment &c : model.compartments) {
-      if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0)
-        continue;
-      double g = out[c.gOutput], ge = out[c.geOutput], other = out[c.iOtherOutput];
-      double cap = params[c.capacitanceParam];
-      double &v = y[c.voltageState];
-      v = exponentialEulerVoltage(v, g, ge, other, cap, dt);
-    }
-  }
-
+  // The step Simulate.cpp takes at this time: the fused kernel for a smooth step, else the
+  // general stepper split at the events inside the step.
   bool step() {
-    double dt = model.protocol.step, t = time();
-    if (fused) {
+    double t = time();
+    if (fused && grid->smooth(steps)) {
       fused(y.data(), params.data(), t, buffer.data());
       std::copy(buffer.begin(), buffer.begin() + static_cast<long>(y.size()), y.begin());
     } else {
-      // out already holds the outputs at (y, t): settle() ran after the last step.
-      if (model.protocol.method == ir::Method::RungeKutta4)
-        rk4Step(t, dt);
-      else
-        exponentialEulerStep(dt);
+      if (fused) // out is kept only without a fused kernel
+        stepper->settle(y.data(), out.data(), t);
+      stepper->step(*grid, steps, y.data(), out.data(), nullptr);
     }
     ++steps;
     if (!healthy())
@@ -258,9 +195,8 @@ saltpan_model *saltpan_model_create(const char *protocol) {
           fusedKernel = fuseExponentialEuler(m->model, m->model.protocol.step);
         if (fusedKernel)
           m->fused = embeddedKernel(*fusedKernel, error);
-        else
-          m->plain = embeddedKernel(m->model.kernel, error);
-        if (!m->fused && !m->plain) {
+        m->plain = embeddedKernel(m->model.kernel, error);
+        if ((fusedKernel && !m->fused) || !m->plain) {
           createError = "internal error: " + error;
           return nullptr;
         }
@@ -269,9 +205,8 @@ saltpan_model *saltpan_model_create(const char *protocol) {
         m->y = m->model.initialState;
         m->out.assign(outputs, 0);
         m->buffer.assign(n + outputs, 0);
-        for (auto *v : {&m->k1, &m->k2, &m->k3, &m->k4, &m->tmp})
-          v->assign(n, 0);
-        m->scratch.assign(outputs, 0);
+        m->grid.emplace(m->model);
+        m->stepper.emplace(m->model, m->params.data(), KernelRef{m->plain, nullptr});
         m->settle();
         return m.release();
       },

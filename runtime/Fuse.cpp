@@ -12,8 +12,7 @@ namespace {
 
 // Copies `src` into `k` with its states read from `states` and its time from `time` (the copy
 // re-shares and re-folds as it goes); returns the node of each of src's nodes.
-std::vector<NodeId> inlineKernel(ir::Kernel &k, const ir::Kernel &src, const std::vector<NodeId> &states,
-                                 NodeId time) {
+std::vector<NodeId> inlineKernel(ir::Kernel &k, const ir::Kernel &src, const std::vector<NodeId> &states, NodeId time) {
   const auto &nodes = src.nodes();
   std::vector<NodeId> map(nodes.size());
   for (size_t i = 0; i < nodes.size(); ++i) {
@@ -24,8 +23,7 @@ std::vector<NodeId> inlineKernel(ir::Kernel &k, const ir::Kernel &src, const std
     case Op::Param: map[i] = k.param(n.index); break;
     case Op::Time: map[i] = time; break;
     case Op::Select: map[i] = k.select(map[n.a], map[n.b], map[n.c], n.loc); break;
-    default:
-      map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
+    default: map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
     }
   }
   return map;
@@ -78,9 +76,10 @@ std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &m, double dt, bool wi
   std::vector<NodeId> k4 = derivative(along(k3, dt), full);
   NodeId two = k.constant(2);
   for (size_t s = 0; s < n; ++s) {
-    NodeId sum = k.binary(Op::Add, k.binary(Op::Add, k.binary(Op::Add, k1[s], k.binary(Op::Mul, two, k2[s])),
-                                            k.binary(Op::Mul, two, k3[s])),
-                          k4[s]);
+    NodeId sum = k.binary(
+        Op::Add,
+        k.binary(Op::Add, k.binary(Op::Add, k1[s], k.binary(Op::Mul, two, k2[s])), k.binary(Op::Mul, two, k3[s])),
+        k4[s]);
     k.addOutput(k.binary(Op::Add, y[s], k.binary(Op::Mul, k.constant(dt / 6), sum)));
   }
   if (withOutputs)
@@ -105,8 +104,7 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
     case Op::Param: map[i] = k.param(n.index); break;
     case Op::Time: map[i] = k.time(); break;
     case Op::Select: map[i] = k.select(map[n.a], map[n.b], map[n.c], n.loc); break;
-    default:
-      map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
+    default: map[i] = ir::arity(n.op) == 1 ? k.unary(n.op, map[n.a], n.loc) : k.binary(n.op, map[n.a], map[n.b], n.loc);
     }
   }
   auto output = [&](int slot) { return map[m.kernel.outputs[slot]]; };
@@ -126,9 +124,21 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
       decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.constant(dt), tau)));
     next[g.state] = k.binary(Op::Add, inf, k.binary(Op::Mul, k.binary(Op::Sub, x, inf), decay));
   }
-  // V: the exact exponential relaxation of C V' = GE - G V - Iother with the gates frozen.
+  // Dynamic concentrations: a forward Euler step of their currents.
+  for (const ir::Pool &pool : m.pools)
+    next[pool.state] =
+        k.binary(Op::Add, k.state(pool.state), k.binary(Op::Mul, k.constant(dt), output(pool.derivativeOutput)));
+  // V: the exact exponential relaxation of C V' = GE - G V - Iother with the conductances of
+  // the new gates and the stimulus at the step's middle, as FixedStep.cpp's step. The kernel
+  // is copied once more for them; what depends on V and the parameters only (the rates) is
+  // shared with the first copy, so the second costs little.
+  std::vector<NodeId> gatesFirst = next;
+  for (const ir::Compartment &c : m.compartments)
+    gatesFirst[c.voltageState] = k.state(c.voltageState);
+  std::vector<NodeId> middle = inlineKernel(k, m.kernel, gatesFirst, k.binary(Op::Add, k.time(), k.constant(0.5 * dt)));
+  auto newOutput = [&](int slot) { return middle[m.kernel.outputs[static_cast<size_t>(slot)]]; };
   for (const ir::Compartment &c : m.compartments) {
-    NodeId g = output(c.gOutput), ge = output(c.geOutput), other = output(c.iOtherOutput);
+    NodeId g = newOutput(c.gOutput), ge = newOutput(c.geOutput), other = newOutput(c.iOtherOutput);
     NodeId v = k.state(c.voltageState), cap = k.param(c.capacitanceParam);
     NodeId vInf = k.binary(Op::Div, k.binary(Op::Sub, ge, other), g);
     NodeId dtOverC = k.binary(Op::Div, k.constant(dt), cap); // one division, shared
@@ -139,10 +149,6 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
     NodeId explicitStep = k.binary(Op::Sub, v, k.binary(Op::Mul, dtOverC, current));
     next[c.voltageState] = k.select(k.binary(Op::Gt, g, k.constant(0)), relaxed, explicitStep);
   }
-  // Dynamic concentrations: a forward Euler step of their currents.
-  for (const ir::Pool &pool : m.pools)
-    next[pool.state] = k.binary(Op::Add, k.state(pool.state),
-                                k.binary(Op::Mul, k.constant(dt), output(pool.derivativeOutput)));
   for (NodeId n : next)
     k.addOutput(n);
   if (withOutputs)

@@ -2,7 +2,9 @@
 //
 // The fused kernel computes, from (y, p, t), the next state after a step of `dt` in
 // out[0..states) followed by every output of the model's kernel (for recording), so a
-// step is one call into native code with nothing left for the C++ loop but a copy.
+// step is one call into native code with nothing left for the C++ loop but a copy. It is
+// the step FixedStep.cpp takes (in its arithmetic for RK4, bit for bit); it knows only the
+// step's start, so steps that meet a stimulus edge are left to FixedStepper.
 // Both the JIT and the interpreter run the same fused kernel, so they stay comparable.
 #pragma once
 #include "IR.h"

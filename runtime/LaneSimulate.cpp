@@ -1,7 +1,10 @@
-// LaneSimulate.cpp - the lockstep exponential Euler loop over interleaved lanes.
+// LaneSimulate.cpp - the lockstep fixed-step loop over interleaved lanes.
 #include "LaneSimulate.h"
 
+#include "FixedStep.h"
+
 #include <algorithm>
+#include <cassert>
 #include <cmath>
 
 namespace saltpan {
@@ -31,15 +34,39 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
   for (int r : proto.record)
     statesOnly = statesOnly && m.probes[r].state >= 0;
 
-  double dt = proto.step;
-  long steps = std::lround(proto.duration / dt);
-  long every = std::max(1L, std::lround(proto.every / dt));
+  StepGrid grid(m);
+  long steps = grid.steps(), every = grid.every();
+  // A step with an event inside or at its end is taken lane by lane by the scalar stepper of
+  // Simulate, exactly as a scalar run takes it, into the fused kernel's layout.
+  std::vector<FixedStepper> steppers;
+  std::vector<std::vector<double>> laneParams(lanes);
+  for (size_t l = 0; l < lanes; ++l)
+    laneParams[l] = params[l];
+  if (kernels.plain)
+    for (size_t l = 0; l < lanes; ++l)
+      steppers.emplace_back(m, laneParams[l].data(), KernelRef{kernels.plain, nullptr});
+  std::vector<double> laneY(n), laneOut(outputs);
+  auto splitStep = [&](long i, double t) {
+    assert(steppers.size() == lanes && "simulateLanes needs kernels.plain for a step that meets an event");
+    for (size_t l = 0; l < lanes; ++l) {
+      for (size_t s = 0; s < n; ++s)
+        laneY[s] = y[s * lanes + l];
+      steppers[l].settle(laneY.data(), laneOut.data(), t);
+      for (size_t o = 0; o < outputs; ++o)
+        buffer[(n + o) * lanes + l] = laneOut[o];
+      steppers[l].step(grid, i, laneY.data(), laneOut.data(), nullptr);
+      for (size_t s = 0; s < n; ++s)
+        buffer[s * lanes + l] = laneY[s];
+    }
+  };
   std::vector<char> alive(lanes, 1);
   size_t living = lanes;
   for (long i = 0; i <= steps && living > 0; ++i) {
-    double t = static_cast<double>(i) * dt;
+    double t = grid.time(i);
     bool recording = i % every == 0 || i == steps;
-    if (statesOnly || (!recording && kernels.stateOnly))
+    if (i < steps && !grid.smooth(i))
+      splitStep(i, t);
+    else if (statesOnly || (!recording && kernels.stateOnly))
       kernels.stateOnly(y.data(), p.data(), t, buffer.data());
     else
       kernels.full(y.data(), p.data(), t, buffer.data());
@@ -60,7 +87,7 @@ LaneRun simulateLanes(const ir::Model &m, const std::vector<std::vector<double>>
       break;
     std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n * lanes), y.begin());
     for (size_t l = 0; l < lanes; ++l) {
-      if (!alive[l] || healthyState(m, y.data() + l, lanes, t + dt, run.failures[l]))
+      if (!alive[l] || healthyState(m, y.data() + l, lanes, grid.time(i + 1), run.failures[l]))
         continue;
       // Park the failed lane at its initial state so it computes harmless numbers.
       alive[l] = 0;

@@ -1,6 +1,7 @@
 // Simulate.cpp - fixed-step and adaptive integration of a lowered model.
 #include "Simulate.h"
 
+#include "FixedStep.h"
 #include "Interpret.h"
 
 #include <algorithm>
@@ -117,17 +118,11 @@ public:
       if (fused_.available)
         fusedSteps();
       else
-        fixedStep(false);
+        fixedStep();
       break;
-    case ir::Method::RungeKutta4:
-      fixedStep(true);
-      break;
-    case ir::Method::DormandPrince:
-      dormandPrince();
-      break;
-    case ir::Method::Rosenbrock:
-      rosenbrock();
-      break;
+    case ir::Method::RungeKutta4: fixedStep(); break;
+    case ir::Method::DormandPrince: dormandPrince(); break;
+    case ir::Method::Rosenbrock: rosenbrock(); break;
     }
   }
 
@@ -140,6 +135,7 @@ private:
   SimulationStats &stats_;
   std::vector<double> y_, out_;
   Trace trace_;
+  StepGrid grid_{m_};
 
   void evaluate(const double *y, double t, double *out) {
     kernel_(y, p_.data(), t, out);
@@ -148,13 +144,7 @@ private:
 
   // Holds clamped potentials at their command; re-evaluates when a potential moved.
   void applyClamps(double t) {
-    bool moved = false;
-    for (const ir::Compartment &c : m_.compartments)
-      if (c.clampedOutput >= 0 && out_[c.clampedOutput] != 0 && y_[c.voltageState] != out_[c.commandOutput]) {
-        y_[c.voltageState] = out_[c.commandOutput];
-        moved = true;
-      }
-    if (moved)
+    if (holdClamps(m_, y_.data(), out_.data()))
       evaluate(y_.data(), t, out_.data());
   }
 
@@ -178,111 +168,60 @@ private:
     return false;
   }
 
-  // dy/dt from the kernel outputs at y.
-  void derivative(const double *y, const double *out, double *dydt) {
-    for (const ir::Gate &g : m_.gates)
-      dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
-    for (const ir::Pool &pool : m_.pools)
-      dydt[pool.state] = out[pool.derivativeOutput];
-    for (const ir::Compartment &c : m_.compartments) {
-      double v = y[c.voltageState];
-      double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
-      bool clamped = c.clampedOutput >= 0 && out[c.clampedOutput] != 0;
-      dydt[c.voltageState] = clamped ? 0 : -current / p_[c.capacitanceParam];
-    }
-  }
+  void derivative(const double *y, const double *out, double *dydt) { stateDerivative(m_, p_.data(), y, out, dydt); }
 
-  // Rush-Larsen gates and an exact exponential V step for frozen gates (first order).
-  void exponentialEulerStep(double dt) {
-    for (const ir::Pool &pool : m_.pools) // forward Euler; their currents change slowly
-      y_[pool.state] += dt * out_[pool.derivativeOutput];
-    for (const ir::Gate &g : m_.gates) {
-      double inf = out_[g.infOutput], tau = out_[g.tauOutput];
-      y_[g.state] = inf + (y_[g.state] - inf) * std::exp(-dt / tau);
-    }
-    for (const ir::Compartment &c : m_.compartments) {
-      if (c.clampedOutput >= 0 && out_[c.clampedOutput] != 0)
-        continue; // held by the clamp; set again at the next step's start
-      double g = out_[c.gOutput], ge = out_[c.geOutput], other = out_[c.iOtherOutput];
-      double cap = p_[c.capacitanceParam];
-      double &v = y_[c.voltageState];
-      v = exponentialEulerVoltage(v, g, ge, other, cap, dt);
-    }
-  }
-
-  void rk4Step(double t, double dt, std::vector<double> &k1, std::vector<double> &k2, std::vector<double> &k3,
-               std::vector<double> &k4, std::vector<double> &tmp, std::vector<double> &scratch) {
-    size_t n = y_.size();
-    derivative(y_.data(), out_.data(), k1.data()); // out_ already holds the outputs at (y, t)
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y_[i] + 0.5 * dt * k1[i];
-    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k2.data());
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y_[i] + 0.5 * dt * k2[i];
-    evaluate(tmp.data(), t + 0.5 * dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k3.data());
-    for (size_t i = 0; i < n; ++i)
-      tmp[i] = y_[i] + dt * k3[i];
-    evaluate(tmp.data(), t + dt, scratch.data());
-    derivative(tmp.data(), scratch.data(), k4.data());
-    for (size_t i = 0; i < n; ++i)
-      y_[i] += dt / 6 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
-  }
-
-  // Exponential Euler with the step inside the kernel: one call per step.
+  // Exponential Euler with the step inside the kernel: one call per step. A step with an
+  // event inside or at its end is taken by the general stepper, split at the event.
   void fusedSteps() {
-    const ir::Protocol &proto = m_.protocol;
-    double dt = proto.step;
-    long steps = std::lround(proto.duration / dt);
-    long every = std::max(1L, std::lround(proto.every / dt));
+    const StepGrid &grid = grid_;
+    FixedStepper stepper(m_, p_.data(), kernel_, &stats_);
+    long steps = grid.steps(), every = grid.every();
     size_t n = y_.size();
     std::vector<double> buffer(n + out_.size());
     for (long i = 0; i <= steps; ++i) {
-      double t = i * dt;
+      double t = grid.time(i);
       bool recording = i % every == 0 || i == steps;
-      if (recording || !fused_.hasStateOnly)
-        fused_.kernel(y_.data(), p_.data(), t, buffer.data());
-      else
-        fused_.stateOnly(y_.data(), p_.data(), t, buffer.data());
-      ++stats_.kernelCalls;
-      if (recording) {
-        std::copy(buffer.begin() + static_cast<long>(n), buffer.end(), out_.begin());
-        record(t);
+      if (i < steps && !grid.smooth(i)) {
+        stepper.settle(y_.data(), out_.data(), t);
+        if (recording)
+          record(t);
+        stepper.step(grid, i, y_.data(), out_.data(), injected_.data());
+      } else {
+        if (recording || !fused_.hasStateOnly)
+          fused_.kernel(y_.data(), p_.data(), t, buffer.data());
+        else
+          fused_.stateOnly(y_.data(), p_.data(), t, buffer.data());
+        ++stats_.kernelCalls;
+        if (recording) {
+          std::copy(buffer.begin() + static_cast<long>(n), buffer.end(), out_.begin());
+          record(t);
+        }
+        if (i == steps)
+          break;
+        std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
+        if (!fused_.hasStateOnly) // only needed for a charge balance, which has no state-only kernel
+          accumulateInjection(buffer.data() + n, grid.step());
       }
-      if (i == steps)
-        break;
-      std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
-      if (!fused_.hasStateOnly) // only needed for a charge balance, which has no state-only kernel
-        accumulateInjection(buffer.data() + n, dt);
       ++stats_.steps;
-      if (!healthy(y_, t + dt))
+      if (!healthy(y_, grid.time(i + 1)))
         return;
     }
   }
 
-  void fixedStep(bool rk4) {
-    const ir::Protocol &proto = m_.protocol;
-    double dt = proto.step;
-    long steps = std::lround(proto.duration / dt);
-    long every = std::max(1L, std::lround(proto.every / dt));
-    size_t n = y_.size();
-    std::vector<double> k1(n), k2(n), k3(n), k4(n), tmp(n), scratch(out_.size());
+  void fixedStep() {
+    const StepGrid &grid = grid_;
+    FixedStepper stepper(m_, p_.data(), kernel_, &stats_);
+    long steps = grid.steps(), every = grid.every();
     for (long i = 0; i <= steps; ++i) {
-      double t = i * dt; // no accumulated rounding in time
-      evaluate(y_.data(), t, out_.data());
-      applyClamps(t);
+      double t = grid.time(i); // no accumulated rounding in time
+      stepper.settle(y_.data(), out_.data(), t);
       if (i % every == 0 || i == steps)
         record(t);
       if (i == steps)
         break;
-      accumulateInjection(out_.data(), dt);
-      if (rk4)
-        rk4Step(t, dt, k1, k2, k3, k4, tmp, scratch);
-      else
-        exponentialEulerStep(dt);
+      stepper.step(grid, i, y_.data(), out_.data(), injected_.data());
       ++stats_.steps;
-      if (!healthy(y_, t + dt))
+      if (!healthy(y_, grid.time(i + 1)))
         return;
     }
   }
@@ -306,26 +245,53 @@ private:
 
   enum class Verdict { Accepted, Rejected, Stop };
 
-  // The step control shared by the adaptive methods. `ynew` is the solution at t + step and
-  // `scratch` its kernel outputs. Accepts it (recording when it lands on a recording time)
-  // or rejects it, and picks the next step from the error norm `err` of a method of `order`.
-  Verdict acceptOrReject(double err, int order, double step, double target, bool hitsTarget, double &t, double &h,
-                         long &recordIndex, std::vector<double> &ynew, std::vector<double> &scratch) {
+  // Where an adaptive step from t may go: up to the next recording time or event, whichever
+  // comes first. A step never crosses an event, and its stages at an event see what held
+  // before it (`end`); the step after it starts from what follows.
+  struct Target {
+    double time = 0;          // the recording time or event ahead
+    bool hits = false;        // this step lands on it
+    bool records = false;     // it is a recording time
+    bool event = false;       // it is an event
+    double step = 0, end = 0; // the step, and the time of its stages at its end
+  };
+  Target target(double t, double h, long recordIndex) const {
+    const ir::Protocol &proto = m_.protocol;
+    Target to;
+    double recordTime = std::min(static_cast<double>(recordIndex) * proto.every, proto.duration);
+    to.time = grid_.nextBreak(t, recordTime);
+    to.records = to.time == recordTime;
+    to.event = grid_.isEvent(to.time);
+    to.hits = t + h >= to.time;
+    to.step = to.hits ? to.time - t : h;
+    to.end = to.hits && to.event ? std::nextafter(to.time, t) : t + to.step;
+    return to;
+  }
+
+  // The step control shared by the adaptive methods. `ynew` is the solution at the step's end
+  // and `scratch` its kernel outputs there. Accepts it (recording when it lands on a recording
+  // time) or rejects it, and picks the next step from the error norm `err` of a method of `order`.
+  Verdict acceptOrReject(double err, int order, const Target &to, double &t, double &h, long &recordIndex,
+                         std::vector<double> &ynew, std::vector<double> &scratch) {
+    double step = to.step;
+    bool hitsTarget = to.hits;
     double factor = err == 0 ? 5 : std::clamp(0.9 * std::pow(err, -1.0 / order), 0.2, 5.0);
     Verdict verdict = err <= 1 ? Verdict::Accepted : Verdict::Rejected;
     if (verdict == Verdict::Accepted) {
       accumulateTrapezoid(out_.data(), scratch.data(), step);
-      t = hitsTarget ? target : t + step;
+      t = hitsTarget ? to.time : t + step;
       y_.swap(ynew);
       out_.swap(scratch);
+      if (hitsTarget && to.event)
+        evaluate(y_.data(), t, out_.data()); // what follows the edge
       applyClamps(t);
       if (!healthy(y_, t))
         return Verdict::Stop;
-      if (hitsTarget) {
+      if (hitsTarget && to.records) {
         record(t);
         ++recordIndex;
       }
-      // A step cut short to land on a recording time says little about the next one.
+      // A step cut short to land on a recording time or event says little about the next one.
       h = hitsTarget ? std::max(h, step * factor) : step * factor;
     } else {
       ++stats_.rejected;
@@ -386,9 +352,8 @@ private:
     record(t);
     ++recordIndex;
     while (recordIndex <= recordCount) {
-      double target = std::min(recordIndex * proto.every, proto.duration);
-      bool hitsTarget = t + h >= target;
-      double step = hitsTarget ? target - t : h;
+      Target to = target(t, h, recordIndex);
+      double step = to.step;
       derivative(y_.data(), out_.data(), f0.data());
       for (size_t j = 0; j < n; ++j) { // J[i][j] = d f_i / d y_j
         double delta = 1e-7 * std::max(std::fabs(y_[j]), 1e-3);
@@ -410,7 +375,7 @@ private:
       bool ok = solve(a, k1, n);
       for (size_t i = 0; i < n; ++i)
         tmp[i] = y_[i] + step * k1[i];
-      evaluate(tmp.data(), t + step, scratch.data());
+      evaluate(tmp.data(), to.end, scratch.data());
       derivative(tmp.data(), scratch.data(), k2.data());
       for (size_t i = 0; i < n; ++i)
         k2[i] -= 2 * k1[i];
@@ -430,8 +395,8 @@ private:
       err = std::sqrt(err / static_cast<double>(n));
       if (!stepUsable(err, ynew, t, step))
         return;
-      evaluate(ynew.data(), t + step, scratch.data());
-      if (acceptOrReject(err, 2, step, target, hitsTarget, t, h, recordIndex, ynew, scratch) == Verdict::Stop)
+      evaluate(ynew.data(), to.end, scratch.data());
+      if (acceptOrReject(err, 2, to, t, h, recordIndex, ynew, scratch) == Verdict::Stop)
         return;
     }
   }
@@ -460,9 +425,8 @@ private:
     ++recordIndex;
     derivative(y_.data(), out_.data(), k1.data());
     while (recordIndex <= recordCount) {
-      double target = std::min(recordIndex * proto.every, proto.duration);
-      bool hitsTarget = t + h >= target;
-      double step = hitsTarget ? target - t : h;
+      Target to = target(t, h, recordIndex);
+      double step = to.step;
       auto stage = [&](std::vector<double> &k, double ct,
                        std::initializer_list<std::pair<double, const double *>> terms) {
         for (size_t i = 0; i < n; ++i) {
@@ -471,7 +435,7 @@ private:
             s += step * a * kj[i];
           tmp[i] = s;
         }
-        evaluate(tmp.data(), t + ct * step, scratch.data());
+        evaluate(tmp.data(), ct == 1 ? to.end : t + ct * step, scratch.data());
         derivative(tmp.data(), scratch.data(), k.data());
       };
       stage(k2, c2, {{a21, k1.data()}});
@@ -481,7 +445,7 @@ private:
       stage(k6, 1, {{a61, k1.data()}, {a62, k2.data()}, {a63, k3.data()}, {a64, k4.data()}, {a65, k5.data()}});
       for (size_t i = 0; i < n; ++i)
         ynew[i] = y_[i] + step * (b1 * k1[i] + b3 * k3[i] + b4 * k4[i] + b5 * k5[i] + b6 * k6[i]);
-      evaluate(ynew.data(), t + step, scratch.data());
+      evaluate(ynew.data(), to.end, scratch.data());
       derivative(ynew.data(), scratch.data(), k7.data());
       double err = 0;
       for (size_t i = 0; i < n; ++i) {
@@ -492,11 +456,11 @@ private:
       err = std::sqrt(err / static_cast<double>(n));
       if (!stepUsable(err, ynew, t, step))
         return;
-      Verdict verdict = acceptOrReject(err, 5, step, target, hitsTarget, t, h, recordIndex, ynew, scratch);
+      Verdict verdict = acceptOrReject(err, 5, to, t, h, recordIndex, ynew, scratch);
       if (verdict == Verdict::Stop)
         return;
-      if (verdict == Verdict::Accepted)
-        k1.swap(k7); // first same as last
+      if (verdict == Verdict::Accepted) // first same as last, unless an edge or a clamp changed the outputs
+        derivative(y_.data(), out_.data(), k1.data());
     }
   }
 };

@@ -1,6 +1,7 @@
 // Simulate.h - Stage 10: the steppers. Advance an ir::Model through its protocol with
-// exponential Euler (Rush-Larsen gates, exact exponential V update with frozen gates),
-// classical RK4, or adaptive Dormand-Prince 5(4), recording at the protocol's interval.
+// exponential Euler (Rush-Larsen gates first, then an exact exponential V update with the new
+// gates), classical RK4 (both in FixedStep.h), or adaptive Dormand-Prince 5(4) or Rosenbrock,
+// recording at the protocol's interval. Stimulus edges are break points of every method.
 #pragma once
 #include "IR.h"
 
@@ -50,13 +51,13 @@ struct SimulationStats {
 /// A fused exponential Euler step (Fuse.h): out[0..states) is the next state, then the
 /// model kernel's outputs at the current state.
 struct FusedStep {
-  KernelRef kernel;        // next state and every output (recording steps)
-  KernelRef stateOnly;     // next state only (the other steps); may be unset
+  KernelRef kernel;    // next state and every output (recording steps)
+  KernelRef stateOnly; // next state only (the other steps); may be unset
   bool available = false;
   bool hasStateOnly = false;
 };
 
-/// The exponential Euler update of a potential with the gates frozen: the exact relaxation
+/// The exponential Euler update of a potential with frozen conductances: the exact relaxation
 /// of C V' = GE - G V - Iother when G > 0, otherwise an explicit step of the whole current.
 double exponentialEulerVoltage(double v, double g, double ge, double other, double cap, double dt);
 
@@ -66,8 +67,9 @@ double exponentialEulerVoltage(double v, double g, double ge, double other, doub
 bool healthyState(const ir::Model &model, const double *y, size_t stride, double t, SimulationFailure &failure);
 
 /// Runs the model's protocol with parameters `params` (same layout as model.params). With
-/// exponential Euler and a fused step available, each step is one call of `fused`.
-Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel,
-               SimulationFailure &failure, SimulationStats *stats = nullptr, FusedStep fused = {});
+/// exponential Euler and a fused step available, each step is one call of `fused`, except the
+/// steps that meet a stimulus edge, which `kernel` takes split at the edge.
+Trace simulate(const ir::Model &model, const std::vector<double> &params, KernelRef kernel, SimulationFailure &failure,
+               SimulationStats *stats = nullptr, FusedStep fused = {});
 
 } // namespace saltpan

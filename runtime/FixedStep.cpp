@@ -1,0 +1,183 @@
+// FixedStep.cpp - the one implementation of the fixed-step methods and of their step grid.
+#include "FixedStep.h"
+
+#include <algorithm>
+#include <cassert>
+#include <cmath>
+
+namespace saltpan {
+
+std::vector<double> eventTimes(const ir::Kernel &kernel) {
+  const std::vector<ir::Node> &nodes = kernel.nodes();
+  std::vector<double> events;
+  auto is = [&](ir::NodeId id, ir::Op op) { return id >= 0 && nodes[static_cast<size_t>(id)].op == op; };
+  for (const ir::Node &n : nodes) {
+    if (n.op != ir::Op::Ge && n.op != ir::Op::Lt && n.op != ir::Op::Gt && n.op != ir::Op::Le)
+      continue;
+    if (is(n.a, ir::Op::Time) && is(n.b, ir::Op::Const))
+      events.push_back(nodes[static_cast<size_t>(n.b)].constant);
+    else if (is(n.b, ir::Op::Time) && is(n.a, ir::Op::Const))
+      events.push_back(nodes[static_cast<size_t>(n.a)].constant);
+  }
+  std::sort(events.begin(), events.end());
+  events.erase(std::unique(events.begin(), events.end()), events.end());
+  return events;
+}
+
+StepGrid::StepGrid(const ir::Model &model) : dt_(model.protocol.step), events_(eventTimes(model.kernel)) {
+  steps_ = std::lround(model.protocol.duration / dt_);
+  every_ = std::max(1L, std::lround(model.protocol.every / dt_));
+}
+
+double StepGrid::time(long i) const {
+  double t = static_cast<double>(i) * dt_;
+  // An edge written as a whole number of steps may differ from i * dt by rounding (10 us is
+  // not a double): it is that grid time, so the step starts exactly on the edge.
+  double tolerance = 1e-9 * dt_;
+  auto it = std::lower_bound(events_.begin(), events_.end(), t - tolerance);
+  return it != events_.end() && *it <= t + tolerance ? *it : t;
+}
+
+bool StepGrid::smooth(long i) const {
+  double start = time(i), end = std::max(time(i + 1), start + dt_);
+  auto it = std::upper_bound(events_.begin(), events_.end(), start);
+  return it == events_.end() || *it > end;
+}
+
+std::span<const double> StepGrid::cuts(long i) const {
+  auto first = std::upper_bound(events_.begin(), events_.end(), time(i));
+  auto last = std::lower_bound(first, events_.end(), time(i + 1));
+  return {first, last};
+}
+
+bool StepGrid::meetsEvents() const {
+  if (steps_ <= 0)
+    return false;
+  auto it = std::upper_bound(events_.begin(), events_.end(), time(0));
+  return it != events_.end() && *it <= std::max(time(steps_), time(steps_ - 1) + dt_);
+}
+
+bool StepGrid::isEvent(double t) const { return std::binary_search(events_.begin(), events_.end(), t); }
+
+double StepGrid::nextBreak(double t, double until) const {
+  auto it = std::upper_bound(events_.begin(), events_.end(), t);
+  return it != events_.end() && *it < until ? *it : until;
+}
+
+bool holdClamps(const ir::Model &m, double *y, const double *out) {
+  bool moved = false;
+  for (const ir::Compartment &c : m.compartments)
+    if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0 && y[c.voltageState] != out[c.commandOutput]) {
+      y[c.voltageState] = out[c.commandOutput];
+      moved = true;
+    }
+  return moved;
+}
+
+void stateDerivative(const ir::Model &m, const double *p, const double *y, const double *out, double *dydt) {
+  for (const ir::Gate &g : m.gates)
+    dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
+  for (const ir::Pool &pool : m.pools)
+    dydt[pool.state] = out[pool.derivativeOutput];
+  for (const ir::Compartment &c : m.compartments) {
+    double v = y[c.voltageState];
+    double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
+    bool clamped = c.clampedOutput >= 0 && out[c.clampedOutput] != 0;
+    dydt[c.voltageState] = clamped ? 0 : -current / p[c.capacitanceParam];
+  }
+}
+
+FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelRef kernel, SimulationStats *stats)
+    : m_(model), p_(params), kernel_(kernel), stats_(stats) {
+  size_t n = model.stateNames.size();
+  for (auto *v : {&k1_, &k2_, &k3_, &k4_, &tmp_})
+    v->assign(n, 0);
+  scratch_.assign(model.kernel.outputs.size(), 0);
+}
+
+void FixedStepper::evaluate(const double *y, double t, double *out) {
+  kernel_(y, p_, t, out);
+  if (stats_)
+    ++stats_->kernelCalls;
+}
+
+void FixedStepper::settle(double *y, double *out, double t) {
+  evaluate(y, t, out);
+  if (holdClamps(m_, y, out))
+    evaluate(y, t, out);
+}
+
+void FixedStepper::rk4Step(double *y, const double *out, double t, double h, double end) {
+  size_t n = k1_.size();
+  stateDerivative(m_, p_, y, out, k1_.data());
+  for (size_t i = 0; i < n; ++i)
+    tmp_[i] = y[i] + 0.5 * h * k1_[i];
+  evaluate(tmp_.data(), t + 0.5 * h, scratch_.data());
+  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k2_.data());
+  for (size_t i = 0; i < n; ++i)
+    tmp_[i] = y[i] + 0.5 * h * k2_[i];
+  evaluate(tmp_.data(), t + 0.5 * h, scratch_.data());
+  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k3_.data());
+  for (size_t i = 0; i < n; ++i)
+    tmp_[i] = y[i] + h * k3_[i];
+  evaluate(tmp_.data(), end, scratch_.data());
+  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k4_.data());
+  for (size_t i = 0; i < n; ++i)
+    y[i] += h / 6 * (k1_[i] + 2 * k2_[i] + 2 * k3_[i] + k4_[i]);
+}
+
+// Gates first (Rush-Larsen, rates at the step's start), then V relaxed exactly with the
+// conductances of the new gates and the stimulus at the step's middle. Read as a staggered
+// scheme (gates at half steps), it is second order in V; freezing the old gates instead, as
+// the plain Rush-Larsen ordering does, is first order.
+void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, double h) {
+  for (const ir::Pool &pool : m_.pools) // forward Euler; their currents change slowly
+    y[pool.state] += h * out[pool.derivativeOutput];
+  for (const ir::Gate &g : m_.gates) {
+    double inf = out[g.infOutput], tau = out[g.tauOutput];
+    y[g.state] = inf + (y[g.state] - inf) * std::exp(-h / tau);
+  }
+  auto clamped = [&](const ir::Compartment &c) { return c.clampedOutput >= 0 && out[c.clampedOutput] != 0; };
+  if (std::all_of(m_.compartments.begin(), m_.compartments.end(), clamped))
+    return;                                  // every potential is held by its clamp; set again at the next step's start
+  evaluate(y, t + 0.5 * h, scratch_.data()); // new gates and pools, old potentials
+  for (const ir::Compartment &c : m_.compartments) {
+    if (clamped(c))
+      continue;
+    double g = scratch_[c.gOutput], ge = scratch_[c.geOutput], other = scratch_[c.iOtherOutput];
+    double &v = y[c.voltageState];
+    v = exponentialEulerVoltage(v, g, ge, other, p_[c.capacitanceParam], h);
+  }
+}
+
+void FixedStepper::piece(double *y, const double *out, double t, double h, double end, double *injected) {
+  if (injected)
+    for (size_t c = 0; c < m_.compartments.size(); ++c)
+      injected[c] += out[m_.compartments[c].injectedOutput] * h;
+  if (m_.protocol.method == ir::Method::RungeKutta4)
+    rk4Step(y, out, t, h, end);
+  else
+    exponentialEulerStep(y, out, t, h);
+}
+
+void FixedStepper::step(const StepGrid &grid, long i, double *y, double *out, double *injected) {
+  assert(m_.protocol.method == ir::Method::RungeKutta4 || m_.protocol.method == ir::Method::ExponentialEuler);
+  double start = grid.time(i);
+  if (grid.smooth(i)) { // as a fused kernel takes it: a whole dt from the start
+    piece(y, out, start, grid.step(), start + grid.step(), injected);
+    return;
+  }
+  std::span<const double> cuts = grid.cuts(i);
+  double from = start, last = grid.time(i + 1);
+  for (size_t k = 0; k <= cuts.size(); ++k) {
+    double to = k < cuts.size() ? cuts[k] : last;
+    if (k > 0)
+      settle(y, out, from); // just after the edge: the new stimulus, the new clamp command
+    // A stage at the piece's end sees what held before the edge there.
+    double end = grid.isEvent(to) ? std::nextafter(to, from) : to;
+    piece(y, out, from, to - from, end, injected);
+    from = to;
+  }
+}
+
+} // namespace saltpan
