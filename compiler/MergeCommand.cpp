@@ -72,6 +72,16 @@ int mergeCommand(const std::vector<std::string> &args) {
   if (inputs.empty())
     return usage("no shard files given");
 
+  std::vector<NamedFile> named, shardFiles;
+  for (const std::string &out : outputs)
+    named.push_back({"-o", out});
+  for (const std::string &in : inputs)
+    shardFiles.push_back({"the shard", in});
+  if (std::string clash = findOutputClash(named, shardFiles); !clash.empty()) {
+    std::fprintf(stderr, "saltpan merge: error: %s\n", clash.c_str());
+    return Usage;
+  }
+
   std::vector<sweep::Table> shards(inputs.size());
   for (size_t i = 0; i < inputs.size(); ++i) {
     std::ifstream in(inputs[i], std::ios::binary);
@@ -90,6 +100,10 @@ int mergeCommand(const std::vector<std::string> &args) {
     if (s.sweepHash != first.sweepHash || s.shardCount != first.shardCount)
       return refuse("'" + inputs[i] + "' comes from a different sweep than '" + inputs[0] +
                     "' (another spec, sweep, saltpan version, engine or shard count)");
+    // The hash is only text in the file: the columns themselves must agree too, or the merged
+    // table would be ragged.
+    if (std::string why = sweep::differingColumns(first, s); !why.empty())
+      return refuse("'" + inputs[i] + "' and '" + inputs[0] + "' do not have the same columns: " + why);
     int &slot = holder[static_cast<size_t>(s.shardIndex)];
     if (slot >= 0)
       return refuse("shard " + std::to_string(s.shardIndex) + " is given twice: '" + inputs[static_cast<size_t>(slot)] +

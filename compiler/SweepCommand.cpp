@@ -230,6 +230,16 @@ int sweepCommand(const std::vector<std::string> &args) {
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
     return SpecErrors;
+  std::vector<NamedFile> outputs;
+  for (const std::string &out : o.outputs)
+    outputs.push_back({"-o", out});
+  if (!o.outputs.empty())
+    outputs.push_back({"the journal", o.outputs.front() + ".journal"});
+  std::string clash = outputClash(outputs, c.sources);
+  if (clash.empty())
+    clash = findOutputClash(outputs, {{"the spec", o.file}});
+  if (!clash.empty())
+    return usage(clash);
   auto sweeps = rootSweeps(c.program);
   const ast::SweepDecl *chosen = nullptr;
   for (const ast::SweepDecl *s : sweeps)
@@ -302,10 +312,13 @@ int sweepCommand(const std::vector<std::string> &args) {
   run.chunk = o.checkpoint;
   run.fingerprint = sweep::journalFingerprint(table);
   sweep::parseProgress(o.progress, run.progress);
+  sweep::Journal journal;
   if (!o.outputs.empty()) {
-    run.journal = o.outputs.front() + ".journal";
-    if (o.restart)
-      std::filesystem::remove(run.journal);
+    if (!journal.open(o.outputs.front() + ".journal", o.restart, error)) {
+      std::fprintf(stderr, "saltpan sweep: error: %s\n", error.c_str());
+      return CannotWrite;
+    }
+    run.journal = &journal;
   }
   sweep::RunReport report;
   auto evaluate = [&](const std::vector<size_t> &local, std::vector<sweep::PointResult> &out, int worker) {
@@ -321,7 +334,7 @@ int sweepCommand(const std::vector<std::string> &args) {
 
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
     std::fprintf(stderr, "saltpan sweep: %s\n", error.c_str());
-    std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
+    std::fprintf(stderr, "note: the finished points are kept in '%s'\n", journal.path().c_str());
     return CannotWrite;
   }
   std::fputs(sweep::summary(table, report, threads).c_str(), stderr);

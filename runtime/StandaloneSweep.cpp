@@ -113,6 +113,13 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
       return bad("unknown option '" + a + "'");
     }
   }
+  std::vector<NamedFile> outputs;
+  for (const std::string &out : o.outputs)
+    outputs.push_back({"-o", out});
+  if (!o.outputs.empty())
+    outputs.push_back({"the journal", o.outputs.front() + ".journal"});
+  if (std::string clash = findOutputClash(outputs, {{"this program", "/proc/self/exe"}}); !clash.empty())
+    return bad(clash);
   sweep::ShardChoice shard;
   std::string error;
   if (!o.shard.empty() && !sweep::parseShard(o.shard, shard, error))
@@ -193,10 +200,13 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   run.fingerprint = sweep::journalFingerprint(table);
   run.label = program + " sweep";
   sweep::parseProgress(o.progress, run.progress);
+  sweep::Journal journal;
   if (!o.outputs.empty()) {
-    run.journal = o.outputs.front() + ".journal";
-    if (o.restart)
-      std::filesystem::remove(run.journal);
+    if (!journal.open(o.outputs.front() + ".journal", o.restart, error)) {
+      std::fprintf(stderr, "%s sweep: error: %s\n", program.c_str(), error.c_str());
+      return CannotWrite;
+    }
+    run.journal = &journal;
   }
   sweep::RunReport report;
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
@@ -207,7 +217,7 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   }
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
     std::fprintf(stderr, "%s sweep: error: %s\nnote: the finished points are kept in '%s'\n", program.c_str(),
-                 error.c_str(), run.journal.c_str());
+                 error.c_str(), journal.path().c_str());
     return CannotWrite;
   }
   std::fputs(sweep::summary(table, report, threads).c_str(), stderr);
