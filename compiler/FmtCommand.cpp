@@ -45,7 +45,8 @@ options:
 
 exit status: 0 success (with --check: every file is canonical), 1 with --check: some file
              would change, 64 bad usage, 65 a file has syntax errors or cannot be read,
-             70 internal fault, 73 a file could not be written
+             70 internal fault, 73 a file could not be written or was refused (read-only,
+             several hard links, a planted link)
 )";
 
 int usage(const std::string &message) {

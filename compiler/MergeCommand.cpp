@@ -26,9 +26,12 @@ Every shard from 0 to N-1 must be given once, and all must come from the same sw
 spec with the same saltpan version and engine (their sweep_hash fields agree).
 
 options:
-  -o FILE     the merged output (.csv or .json; repeatable)
+  -o FILE     the merged output (.csv or .json; repeatable; never one of the shards)
   --version   print the version
   --help      show this help
+
+Every point of every shard is checked (its number of values, their types), and the shards'
+columns must agree; anything else is refused, never joined into a ragged table.
 
 exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write
 

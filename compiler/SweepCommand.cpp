@@ -40,7 +40,9 @@ points in lockstep in the CPU's SIMD lanes (8 with AVX-512, 4 with AVX2). Each l
 only its own point, so a point's numbers do not depend on the thread count, the lanes beside it
 or the shard. With -o, finished points are checkpointed to FILE.journal: run the same command
 again after a crash or a kill and only unfinished points are computed; the final file is the
-same as an uninterrupted run's.
+same as an uninterrupted run's. The journal is locked while the sweep runs (a second sweep on
+the same output is refused), never followed through a link, and each of its lines is checked
+against the sweep before it is resumed.
 
 options:
   --sweep NAME            the sweep to run (default: the only one in FILE)
