@@ -152,7 +152,7 @@ TEST_CASE("SIGTERM during a write removes the temporary", "[safewrite]") {
     // Catch2 handles SIGTERM itself; a command-line program has the default action.
     std::signal(SIGTERM, SIG_DFL);
     // Large enough that the write is still going when the parent's signal arrives.
-    std::string big(size_t(512) << 20, 'x');
+    std::string big(size_t(128) << 20, 'x');
     std::string error;
     writeFileAtomically(s.at("out.csv"), big, error);
     ::_exit(0);
