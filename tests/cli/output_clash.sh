@@ -42,6 +42,22 @@ expect_rc junit 64 test spec.saltpan --junit spec.saltpan
 expect_grep junit err "--junit 'spec\.saltpan' is the same file as the spec"
 expect_rc jsonjunit 64 test spec.saltpan --junit r.xml --json ./r.xml
 cmp -s spec.saltpan spec.orig || fail "the spec was replaced"
+# A built executable does not write over itself, nor into a FIFO.
+expect_rc buildexe 0 build spec.saltpan -o cell
+if [ -x cell ]; then
+  cp cell cell.orig
+  rc=0
+  timeout 20 ./cell -o cell >self.out 2>self.err || rc=$?
+  [ "$rc" -eq 64 ] || fail "self: the executable given -o itself exited $rc, expected 64"
+  grep -q "^cell: error: -o 'cell' is the same file as this program" self.err ||
+    fail "self: no clear message: $(head -3 self.err)"
+  cmp -s cell cell.orig || fail "self: the executable was replaced by its output"
+  mkfifo exe.fifo
+  rc=0
+  timeout 20 ./cell -o exe.fifo >fifo.out 2>fifo.err || rc=$?
+  [ "$rc" -eq 64 ] && [ -p exe.fifo ] || fail "exefifo: exited $rc, or the FIFO was replaced"
+fi
+
 # Separate outputs still work.
 expect_rc fine 0 run spec.saltpan -o x.csv --plot x.svg
 [ -s x.csv ] && [ -s x.svg ] || fail "fine: the outputs were not written"
