@@ -10,6 +10,7 @@
 #include "ModelFile.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
+#include "SafeWrite.h"
 #include "Sweep.h"
 #include "TraceOutput.h"
 
@@ -63,7 +64,9 @@ The result runs only on CPUs with the features of the one that built it.
 
 options:
   -o FILE        the output (default: FILE's name without .saltpan, or libNAME.so with --shared);
-                 written atomically
+                 written atomically; never the spec itself. A library's file name is its
+                 soname, so it may not start with '@' or '-' nor hold commas, spaces, quotes,
+                 backslashes or control characters
   --shared       build a shared library instead of an executable
   --version      print the version
   --help         show this help
@@ -167,7 +170,10 @@ std::optional<std::string> readBinary(const std::string &path) {
 struct ScratchDirectory {
   fs::path path;
   ScratchDirectory() {
-    std::string pattern = (fs::temp_directory_path() / "saltpan-build-XXXXXX").string();
+    // Absolute, so no path handed to the driver can start with '@' or '-'.
+    std::error_code ec;
+    fs::path base = fs::absolute(fs::temp_directory_path(ec), ec);
+    std::string pattern = (base / "saltpan-build-XXXXXX").string();
     if (mkdtemp(pattern.data()))
       path = pattern;
   }
@@ -285,8 +291,24 @@ int buildCommand(const std::vector<std::string> &args) {
   if (o.file.empty())
     return usage("no spec file given");
   std::string stem = fs::path(o.file).stem().string();
-  if (o.output.empty())
+  bool defaultOutput = o.output.empty();
+  if (defaultOutput)
     o.output = o.shared ? "lib" + stem + ".so" : stem;
+  std::string header;
+  if (o.shared) {
+    header = (fs::path(o.output).parent_path() / "saltpan_model.h").string();
+    // The library's file name becomes its soname, an argument the linker reads.
+    std::string soname = fs::path(o.output).filename().string();
+    if (std::string why = linkerSpecialCharacter(soname); !why.empty())
+      return usage("the library name '" + soname + "' (its soname) has " + why + "; choose another name with -o");
+  }
+  std::vector<NamedFile> outputs = {{defaultOutput ? "the output" : "-o", o.output}};
+  if (o.shared)
+    outputs.push_back({"the header", header});
+  if (std::string clash = findOutputClash(outputs, {{"the spec", o.file}}); !clash.empty())
+    return usage(clash + (defaultOutput && stem == fs::path(o.file).filename().string()
+                              ? " (the spec's name has no .saltpan extension; name the output with -o)"
+                              : ""));
 
   Compilation c;
   compileFile(o.file, c);
@@ -358,9 +380,11 @@ int buildCommand(const std::vector<std::string> &args) {
     if (!writeFileAtomically(exports, "{\n  global: saltpan_model_*;\n  local: *;\n};\n", error))
       return fault(error);
     // -Bsymbolic: the library's own calls stay inside it even when another model library
-    // that exports the same names is loaded first.
-    link.insert(link.end(), {"-shared", "-Wl,-Bsymbolic", "-Wl,--version-script=" + exports,
-                             "-Wl,-soname," + fs::path(o.output).filename().string()});
+    // that exports the same names is loaded first. Paths and names reach the linker only as
+    // arguments of their own (-Xlinker), never inside a -Wl, list that the driver splits at
+    // commas: a TMPDIR or a file name with a comma stays one argument.
+    link.insert(link.end(), {"-shared", "-Wl,-Bsymbolic", "-Xlinker", "--version-script", "-Xlinker", exports,
+                             "-Xlinker", "-soname", "-Xlinker", fs::path(o.output).filename().string()});
   }
   link.insert(link.end(), {"-o", linked, object});
   if (o.shared)
@@ -377,18 +401,13 @@ int buildCommand(const std::vector<std::string> &args) {
   auto bytes = readBinary(linked);
   if (!bytes)
     return fault("cannot read the linked file '" + linked + "'");
-  if (!writeFileAtomically(o.output, *bytes, error)) {
+  WriteOptions program;
+  program.executable = true;
+  if (!writeFileAtomically(o.output, *bytes, error, program)) {
     std::fprintf(stderr, "saltpan build: error: %s\n", error.c_str());
     return CannotWrite;
   }
-  std::error_code ec;
-  fs::permissions(o.output,
-                  fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec | fs::perms::others_read |
-                      fs::perms::others_exec,
-                  ec);
-  std::string header;
   if (o.shared) {
-    header = (fs::path(o.output).parent_path() / "saltpan_model.h").string();
     auto text = readBinary(found[4]);
     if (!text)
       return fault("cannot read '" + found[4] + "'");

@@ -150,9 +150,15 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
   return false;
 }
 
-// The implementation lives in the runtime, which the standalone executables link too.
-bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
-  return saltpan::writeFileAtomically(path, text, error);
+std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources) {
+  std::vector<NamedFile> named, inputs;
+  for (const NamedFile &f : outputs)
+    if (!f.path.empty())
+      named.push_back(f);
+  std::vector<std::string> paths = sources.paths();
+  for (size_t i = 0; i < paths.size(); ++i)
+    inputs.push_back({i == 0 ? "the spec" : "the spec file", paths[i]});
+  return findOutputClash(named, inputs);
 }
 
 int checkCommand(const std::vector<std::string> &args) {
@@ -268,6 +274,8 @@ int showCommand(const std::vector<std::string> &args) {
   printDiagnostics(c.diags, useColour("auto"));
   if (c.diags.errorCount() > 0)
     return SpecErrors;
+  if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty())
+    return usageError(clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.
   std::vector<rest::CompartmentRest> steady;
   ir::Model model;

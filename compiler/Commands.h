@@ -1,7 +1,13 @@
 // Commands.h - the subcommands of the saltpan executable.
 #pragma once
+#include "SafeWrite.h"
+
 #include <string>
 #include <vector>
+
+namespace saltpan {
+class SourceManager;
+}
 
 namespace saltpan::cli {
 
@@ -24,7 +30,7 @@ int buildCommand(const std::vector<std::string> &args);
 /// If args[i] is "NAME=VALUE", or "NAME" followed by a value, stores the value (moving i
 /// past it) and returns true.
 bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
-
-/// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
-bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
+/// findOutputClash (SafeWrite.h) against every file `sources` read: "" when the outputs (empty
+/// paths skipped) may be written, else the message to refuse them with (exit status Usage).
+std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources);
 } // namespace saltpan::cli

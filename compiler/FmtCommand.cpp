@@ -6,7 +6,12 @@
 #include "Source.h"
 #include "parse/Format.h"
 
+#include <cerrno>
 #include <cstdio>
+#include <cstdlib>
+#include <cstring>
+#include <filesystem>
+#include <sys/stat.h>
 #include <unistd.h>
 
 namespace saltpan::cli {
@@ -21,15 +26,24 @@ between declarations. Comments stay where they are; numbers and units keep their
 Formatting is idempotent, and it never changes what a spec means: the result is re-parsed
 and compared before anything is written. A file with syntax errors is left untouched.
 
+A file is rewritten through a temporary in its directory that is renamed over it: it keeps
+its mode, owner and group. A symbolic link is followed and its target rewritten (the link
+stays); a link that another user planted in a shared sticky directory (such as /tmp) is
+refused. A read-only file, or one with several hard links (the other names would keep the
+old text), is refused unless --force.
+
 options:
   --check      write nothing; list the files that are not in canonical layout
   --stdout     print the canonical form to standard output instead of rewriting
+  --force      also rewrite read-only files (they stay read-only) and files with several
+               hard links (this name gets the new text, the other names keep the old)
   --version    print the version
   --help       show this help
 
 exit status: 0 success (with --check: every file is canonical), 1 with --check: some file
              would change, 64 bad usage, 65 a file has syntax errors or cannot be read,
-             70 internal fault, 73 a file could not be written
+             70 internal fault, 73 a file could not be written or was refused (read-only,
+             several hard links, a planted link)
 )";
 
 int usage(const std::string &message) {
@@ -37,11 +51,57 @@ int usage(const std::string &message) {
   return Usage;
 }
 
+// Where an in-place rewrite of `path` goes, or "" with `error` when it must not happen.
+std::string rewriteTarget(const std::string &path, bool force, std::string &error) {
+  struct stat link {};
+  if (::lstat(path.c_str(), &link) != 0) {
+    error = "cannot read '" + path + "': " + std::strerror(errno);
+    return "";
+  }
+  std::string target = path;
+  if (S_ISLNK(link.st_mode)) {
+    // The rule the kernel's protected_symlinks applies, kept here whatever the sysctl says:
+    // in a sticky world-writable directory only the directory's owner or the link's own
+    // user may have planted a link that is followed.
+    std::string directory = std::filesystem::path(path).parent_path().string();
+    struct stat dir {};
+    if (::stat(directory.empty() ? "." : directory.c_str(), &dir) == 0 && (dir.st_mode & S_ISVTX) &&
+        (dir.st_mode & S_IWOTH) && link.st_uid != ::geteuid() && link.st_uid != dir.st_uid) {
+      error = "'" + path + "' is a symbolic link that another user (uid " + std::to_string(link.st_uid) +
+              ") made in a shared sticky directory; saltpan fmt does not write through it";
+      return "";
+    }
+    char *resolved = ::realpath(path.c_str(), nullptr);
+    if (!resolved) {
+      error = "cannot follow the symbolic link '" + path + "': " + std::strerror(errno);
+      return "";
+    }
+    target = resolved;
+    std::free(resolved);
+  }
+  struct stat st {};
+  if (::stat(target.c_str(), &st) != 0 || !S_ISREG(st.st_mode)) {
+    error = "'" + path + "' is not a regular file";
+    return "";
+  }
+  bool readOnly = !(st.st_mode & S_IWUSR) || (::geteuid() != 0 && ::access(target.c_str(), W_OK) != 0);
+  if (readOnly && !force) {
+    error = "'" + path + "' is read-only; saltpan fmt leaves it alone (--force rewrites it, and it stays read-only)";
+    return "";
+  }
+  if (st.st_nlink > 1 && !force) {
+    error = "'" + path + "' has " + std::to_string(st.st_nlink) +
+            " hard links; rewriting it would give only this name the new text (--force does that)";
+    return "";
+  }
+  return target;
+}
+
 } // namespace
 
 int fmtCommand(const std::vector<std::string> &args) {
   std::vector<std::string> files;
-  bool check = false, toStdout = false;
+  bool check = false, toStdout = false, force = false;
   for (size_t i = 0; i < args.size(); ++i) {
     const std::string &a = args[i];
     if (a == "--help" || a == "-h") {
@@ -54,6 +114,8 @@ int fmtCommand(const std::vector<std::string> &args) {
     }
     if (a == "--check")
       check = true;
+    else if (a == "--force")
+      force = true;
     else if (a == "--stdout")
       toStdout = true;
     else if (a == "--") {
@@ -99,8 +161,12 @@ int fmtCommand(const std::vector<std::string> &args) {
       std::printf("%s\n", path.c_str());
       continue;
     }
-    if (!writeFileAtomically(path, *text, error)) {
-      std::fprintf(stderr, "saltpan: %s\n", error.c_str());
+    std::string target = rewriteTarget(path, force, error);
+    WriteOptions keep;
+    keep.keepOwner = true;
+    keep.ownerBestEffort = force;
+    if (target.empty() || !writeFileAtomically(target, *text, error, keep)) {
+      std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
       cannotWrite = true;
     }
   }

@@ -23,9 +23,12 @@ Every shard from 0 to N-1 must be given once, and all must come from the same sw
 spec with the same saltpan version and engine (their sweep_hash fields agree).
 
 options:
-  -o FILE     the merged output (.csv or .json; repeatable)
+  -o FILE     the merged output (.csv or .json; repeatable; never one of the shards)
   --version   print the version
   --help      show this help
+
+Every point of every shard is checked (its number of values, their types), and the shards'
+columns must agree; anything else is refused, never joined into a ragged table.
 
 exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write
 
@@ -69,6 +72,16 @@ int mergeCommand(const std::vector<std::string> &args) {
   if (inputs.empty())
     return usage("no shard files given");
 
+  std::vector<NamedFile> named, shardFiles;
+  for (const std::string &out : outputs)
+    named.push_back({"-o", out});
+  for (const std::string &in : inputs)
+    shardFiles.push_back({"the shard", in});
+  if (std::string clash = findOutputClash(named, shardFiles); !clash.empty()) {
+    std::fprintf(stderr, "saltpan merge: error: %s\n", clash.c_str());
+    return Usage;
+  }
+
   std::vector<sweep::Table> shards(inputs.size());
   for (size_t i = 0; i < inputs.size(); ++i) {
     std::ifstream in(inputs[i], std::ios::binary);
@@ -87,6 +100,10 @@ int mergeCommand(const std::vector<std::string> &args) {
     if (s.sweepHash != first.sweepHash || s.shardCount != first.shardCount)
       return refuse("'" + inputs[i] + "' comes from a different sweep than '" + inputs[0] +
                     "' (another spec, sweep, saltpan version, engine or shard count)");
+    // The hash is only text in the file: the columns themselves must agree too, or the merged
+    // table would be ragged.
+    if (std::string why = sweep::differingColumns(first, s); !why.empty())
+      return refuse("'" + inputs[i] + "' and '" + inputs[0] + "' do not have the same columns: " + why);
     int &slot = holder[static_cast<size_t>(s.shardIndex)];
     if (slot >= 0)
       return refuse("shard " + std::to_string(s.shardIndex) + " is given twice: '" + inputs[static_cast<size_t>(slot)] +

@@ -114,6 +114,10 @@ int methodsCommand(const std::vector<std::string> &args) {
     std::fputs(renderText(d, colour).c_str(), stderr);
   if (c.diags.errorCount() > 0 || !c.checked)
     return SpecErrors;
+  if (std::string clash = outputClash({{"-o", output}}, c.sources); !clash.empty()) {
+    std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
+    return Usage;
+  }
 
   MethodsOptions options;
   options.format = formatName == "latex" ? MethodsFormat::Latex : MethodsFormat::Markdown;

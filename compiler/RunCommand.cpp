@@ -124,6 +124,10 @@ int runCommand(const std::vector<std::string> &args) {
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
     return SpecErrors;
+  if (std::string clash = outputClash({{"-o", o.output}, {"--plot", o.plot}}, c.sources); !clash.empty()) {
+    std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
+    return Usage;
+  }
   auto all = protocols(c.program);
   const ast::ProtocolDecl *protocol = nullptr;
   if (!o.protocol.empty()) {

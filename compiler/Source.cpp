@@ -120,4 +120,11 @@ const SourceFile *SourceManager::find(const std::string &path) const {
   return nullptr;
 }
 
+std::vector<std::string> SourceManager::paths() const {
+  std::vector<std::string> out;
+  for (auto &f : files_)
+    out.push_back(f->path());
+  return out;
+}
+
 } // namespace saltpan

@@ -59,6 +59,8 @@ public:
   /// Adds in-memory text (stdlib modules, tests).
   const SourceFile *add(std::string path, std::string text);
   const SourceFile *find(const std::string &path) const;
+  /// The paths of every file held, in load order (outputs must not replace any of them).
+  std::vector<std::string> paths() const;
 
 private:
   std::vector<std::unique_ptr<SourceFile>> files_;

@@ -37,7 +37,9 @@ points in lockstep in the CPU's SIMD lanes (8 with AVX-512, 4 with AVX2). Each l
 only its own point, so a point's numbers do not depend on the thread count, the lanes beside it
 or the shard. With -o, finished points are checkpointed to FILE.journal: run the same command
 again after a crash or a kill and only unfinished points are computed; the final file is the
-same as an uninterrupted run's.
+same as an uninterrupted run's. The journal is locked while the sweep runs (a second sweep on
+the same output is refused), never followed through a link, and each of its lines is checked
+against the sweep before it is resumed.
 
 options:
   --sweep NAME            the sweep to run (default: the only one in FILE)
@@ -227,6 +229,16 @@ int sweepCommand(const std::vector<std::string> &args) {
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
     return SpecErrors;
+  std::vector<NamedFile> outputs;
+  for (const std::string &out : o.outputs)
+    outputs.push_back({"-o", out});
+  if (!o.outputs.empty())
+    outputs.push_back({"the journal", o.outputs.front() + ".journal"});
+  std::string clash = outputClash(outputs, c.sources);
+  if (clash.empty())
+    clash = findOutputClash(outputs, {{"the spec", o.file}});
+  if (!clash.empty())
+    return usage(clash);
   auto sweeps = rootSweeps(c.program);
   const ast::SweepDecl *chosen = nullptr;
   for (const ast::SweepDecl *s : sweeps)
@@ -299,10 +311,13 @@ int sweepCommand(const std::vector<std::string> &args) {
   run.chunk = o.checkpoint;
   run.fingerprint = sweep::journalFingerprint(table);
   sweep::parseProgress(o.progress, run.progress);
+  sweep::Journal journal;
   if (!o.outputs.empty()) {
-    run.journal = o.outputs.front() + ".journal";
-    if (o.restart)
-      std::filesystem::remove(run.journal);
+    if (!journal.open(o.outputs.front() + ".journal", o.restart, error)) {
+      std::fprintf(stderr, "saltpan sweep: error: %s\n", error.c_str());
+      return CannotWrite;
+    }
+    run.journal = &journal;
   }
   sweep::RunReport report;
   auto evaluate = [&](const std::vector<size_t> &local, std::vector<sweep::PointResult> &out, int worker) {
@@ -318,7 +333,7 @@ int sweepCommand(const std::vector<std::string> &args) {
 
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
     std::fprintf(stderr, "saltpan sweep: %s\n", error.c_str());
-    std::fprintf(stderr, "note: the finished points are kept in '%s'\n", run.journal.c_str());
+    std::fprintf(stderr, "note: the finished points are kept in '%s'\n", journal.path().c_str());
     return CannotWrite;
   }
   std::fputs(sweep::summary(table, report, threads).c_str(), stderr);

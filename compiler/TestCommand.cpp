@@ -152,6 +152,16 @@ int testCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
     return Usage;
   }
+  std::vector<NamedFile> outputs, specs;
+  for (const NamedFile &out : {NamedFile{"--junit", junit}, NamedFile{"--json", jsonPath}})
+    if (!out.path.empty())
+      outputs.push_back(out);
+  for (const std::string &f : files)
+    specs.push_back({"the spec", f});
+  if (std::string clash = findOutputClash(outputs, specs); !clash.empty()) {
+    std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
+    return Usage;
+  }
   std::vector<FileResult> results(files.size());
   for (size_t i = 0; i < files.size(); ++i)
     results[i].path = files[i];

@@ -138,6 +138,10 @@ int run(const std::vector<std::string> &args) {
     }
   }
 
+  if (std::string clash = findOutputClash({{"-o", o.output}}, {{"this program", "/proc/self/exe"}});
+      !o.output.empty() && !clash.empty())
+    return usage(clash);
+
   const ir::Model *chosen = nullptr;
   if (!o.protocol.empty()) {
     std::string names;

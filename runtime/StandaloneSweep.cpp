@@ -27,7 +27,8 @@ std::string helpText(const ModelBundle &b, const std::string &program) {
          "at a time, and the outputs are byte for byte those of `saltpan sweep --engine scalar` for the\n"
          "same sweep and shard, so `saltpan merge` joins shards from either. With -o, finished points are\n"
          "checkpointed to FILE.journal: run the same command again after a crash or a kill and only\n"
-         "unfinished points are computed.\n\n"
+         "unfinished points are computed. The journal is locked while the sweep runs, never followed\n"
+         "through a link, and each of its lines is checked against the sweep before it is resumed.\n\n"
          "options:\n"
          "  --sweep NAME         the sweep to run (default: the only one)\n"
          "  -o FILE              write FILE (.csv or .json; repeatable) when the sweep is complete;\n"
@@ -113,6 +114,13 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
       return bad("unknown option '" + a + "'");
     }
   }
+  std::vector<NamedFile> outputs;
+  for (const std::string &out : o.outputs)
+    outputs.push_back({"-o", out});
+  if (!o.outputs.empty())
+    outputs.push_back({"the journal", o.outputs.front() + ".journal"});
+  if (std::string clash = findOutputClash(outputs, {{"this program", "/proc/self/exe"}}); !clash.empty())
+    return bad(clash);
   sweep::ShardChoice shard;
   std::string error;
   if (!o.shard.empty() && !sweep::parseShard(o.shard, shard, error))
@@ -193,10 +201,13 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   run.fingerprint = sweep::journalFingerprint(table);
   run.label = program + " sweep";
   sweep::parseProgress(o.progress, run.progress);
+  sweep::Journal journal;
   if (!o.outputs.empty()) {
-    run.journal = o.outputs.front() + ".journal";
-    if (o.restart)
-      std::filesystem::remove(run.journal);
+    if (!journal.open(o.outputs.front() + ".journal", o.restart, error)) {
+      std::fprintf(stderr, "%s sweep: error: %s\n", program.c_str(), error.c_str());
+      return CannotWrite;
+    }
+    run.journal = &journal;
   }
   sweep::RunReport report;
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
@@ -207,7 +218,7 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   }
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
     std::fprintf(stderr, "%s sweep: error: %s\nnote: the finished points are kept in '%s'\n", program.c_str(),
-                 error.c_str(), run.journal.c_str());
+                 error.c_str(), journal.path().c_str());
     return CannotWrite;
   }
   std::fputs(sweep::summary(table, report, threads).c_str(), stderr);

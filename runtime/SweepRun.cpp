@@ -4,14 +4,16 @@
 #include <nlohmann/json.hpp>
 
 #include <atomic>
+#include <cerrno>
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
 #include <cstdio>
+#include <cstring>
 #include <fcntl.h>
-#include <fstream>
 #include <mutex>
-#include <sstream>
+#include <sys/file.h>
+#include <sys/stat.h>
 #include <thread>
 #include <unistd.h>
 
@@ -28,31 +30,97 @@ std::string headerLine(const std::string &fingerprint, size_t points) {
   return h.dump() + "\n";
 }
 
+// Reads everything in the journal from its start.
+bool readWhole(int fd, std::string &text) {
+  text.clear();
+  char buf[65536];
+  for (off_t at = 0;;) {
+    ssize_t n = ::pread(fd, buf, sizeof buf, at);
+    if (n < 0 && errno == EINTR)
+      continue;
+    if (n < 0)
+      return false;
+    if (n == 0)
+      return true;
+    text.append(buf, static_cast<size_t>(n));
+    at += n;
+  }
+}
+
+// One journal line of finished points, checked against the table before anything is taken
+// from it: a line that parses but does not fit (another column count, a value that is no
+// number, a point outside the table) was not written by this sweep, so the journal is refused
+// rather than copied into the output.
+bool readChunk(const nlohmann::json &j, const Table &table, std::vector<size_t> &where, std::vector<PointResult> &rows,
+               std::string &why) {
+  if (!j.is_object() || !j.contains("points") || !j["points"].is_array()) {
+    why = "it is not a list of points";
+    return false;
+  }
+  for (auto &p : j["points"]) {
+    if (!p.is_array() || p.size() != 3 || !p[0].is_number_unsigned()) {
+      why = "an entry is not [point, measures, failure]";
+      return false;
+    }
+    uint64_t i = p[0].get<uint64_t>();
+    std::string point = "point " + std::to_string(i);
+    if (i >= table.results.size()) {
+      why = point + " is outside this sweep's " + std::to_string(table.results.size()) + " points";
+      return false;
+    }
+    if (!p[1].is_array() || p[1].size() != table.measures.size()) {
+      why = point + " has " + std::to_string(p[1].is_array() ? p[1].size() : 0) + " measures; the sweep has " +
+            std::to_string(table.measures.size());
+      return false;
+    }
+    PointResult r;
+    r.done = true;
+    for (size_t m = 0; m < p[1].size(); ++m) {
+      if (!p[1][m].is_number() && !p[1][m].is_null()) {
+        why = point + ": the value of '" + table.measures[m].name + "' is neither a number nor null";
+        return false;
+      }
+      r.measures.push_back(p[1][m].is_null() ? NAN : p[1][m].get<double>());
+    }
+    if (!p[2].is_null() && !p[2].is_string()) {
+      why = point + ": its failure is neither text nor null";
+      return false;
+    }
+    if (p[2].is_string())
+      r.failure = p[2].get<std::string>();
+    rows.push_back(std::move(r));
+    where.push_back(static_cast<size_t>(i));
+  }
+  return true;
+}
+
 // Reads the journal's complete lines into `table`; `goodBytes` is where the last complete
-// line ends (a line cut short by a kill is dropped). Returns false with `error` when the
-// journal belongs to another sweep.
-bool readJournal(const std::string &path, const std::string &fingerprint, Table &table, uint64_t &resumed,
+// line ends. A line cut short or damaged by a kill does not parse: it and all after it are
+// dropped and recomputed. Returns false with `error` when the journal belongs to another
+// sweep or holds a line that parses but does not fit this one.
+bool readJournal(const Journal &journal, const std::string &fingerprint, Table &table, uint64_t &resumed,
                  off_t &goodBytes, std::string &error) {
-  std::ifstream in(path, std::ios::binary);
+  const std::string &path = journal.path();
   goodBytes = 0;
-  if (!in)
-    return true; // nothing to resume
-  std::stringstream buffer;
-  buffer << in.rdbuf();
-  std::string text = buffer.str();
-  size_t pos = 0;
+  std::string text;
+  if (!readWhole(journal.fd(), text)) {
+    error = "cannot read the checkpoint journal '" + path + "': " + std::strerror(errno);
+    return false;
+  }
+  size_t pos = 0, lineNumber = 0;
   bool first = true;
   while (pos < text.size()) {
     size_t end = text.find('\n', pos);
     if (end == std::string::npos)
       break; // cut short
+    ++lineNumber;
     std::string line = text.substr(pos, end - pos);
     nlohmann::json j = nlohmann::json::parse(line, nullptr, false);
     if (j.is_discarded())
       break;
     if (first) {
-      if (!j.is_object() || !j.contains("fingerprint") || j["fingerprint"] != fingerprint ||
-          j.value("points", size_t(0)) != table.results.size()) {
+      if (!j.is_object() || !j.contains("fingerprint") || j["fingerprint"] != fingerprint || !j.contains("points") ||
+          !j["points"].is_number_unsigned() || j["points"].get<uint64_t>() != table.results.size()) {
         error = "the checkpoint journal '" + path +
                 "' was written for a different sweep (another spec, sweep, shard, engine or option); remove it "
                 "to start afresh";
@@ -60,29 +128,20 @@ bool readJournal(const std::string &path, const std::string &fingerprint, Table 
       }
       first = false;
     } else {
-      try {
-        std::vector<PointResult> rows;
-        std::vector<size_t> where;
-        for (auto &p : j.at("points")) {
-          size_t i = p.at(0).get<size_t>();
-          if (i >= table.results.size())
-            throw std::runtime_error("point out of range");
-          PointResult r;
-          r.done = true;
-          for (auto &v : p.at(1))
-            r.measures.push_back(v.is_null() ? NAN : v.get<double>());
-          if (!p.at(2).is_null())
-            r.failure = p.at(2).get<std::string>();
-          rows.push_back(std::move(r));
-          where.push_back(i);
-        }
-        for (size_t k = 0; k < rows.size(); ++k) {
-          if (!table.results[where[k]].done)
-            ++resumed;
-          table.results[where[k]] = std::move(rows[k]);
-        }
-      } catch (const std::exception &) {
-        break; // a damaged line: keep what came before it
+      std::vector<PointResult> rows;
+      std::vector<size_t> where;
+      std::string why;
+      if (!readChunk(j, table, where, rows, why)) {
+        error = "line " + std::to_string(lineNumber) + " of the checkpoint journal '" + path +
+                "' does not fit this sweep: " + why +
+                "; it was not written by this sweep, so nothing is resumed "
+                "(remove the journal, or run again with --restart)";
+        return false;
+      }
+      for (size_t k = 0; k < rows.size(); ++k) {
+        if (!table.results[where[k]].done)
+          ++resumed;
+        table.results[where[k]] = std::move(rows[k]);
       }
     }
     pos = end + 1;
@@ -174,23 +233,85 @@ private:
 
 } // namespace
 
+Journal::~Journal() {
+  if (fd_ >= 0)
+    ::close(fd_);
+}
+
+bool Journal::open(const std::string &path, bool restart, std::string &error) {
+  path_ = path;
+  auto refuse = [&](const std::string &why) {
+    error = "cannot write the checkpoint journal '" + path + "': " + why;
+    if (fd_ >= 0)
+      ::close(fd_);
+    fd_ = -1;
+    return false;
+  };
+  // A few tries: another sweep may delete the file between our open and our lock.
+  for (int attempt = 0; attempt < 10; ++attempt) {
+    fd_ = ::open(path.c_str(), O_RDWR | O_CREAT | O_NOFOLLOW | O_NONBLOCK | O_CLOEXEC, 0666);
+    int openError = fd_ < 0 ? errno : 0;
+    struct stat st {};
+    // On a failed open, say why from the name: the kernel reports a link as ELOOP, or in a
+    // sticky directory as EACCES.
+    if (fd_ < 0 ? ::lstat(path.c_str(), &st) != 0 : ::fstat(fd_, &st) != 0)
+      return refuse(std::strerror(fd_ < 0 ? openError : errno));
+    if (S_ISLNK(st.st_mode))
+      return refuse("it is a symbolic link, which saltpan does not follow there; remove it");
+    if (st.st_uid != ::geteuid() && restart && ::unlink(path.c_str()) == 0) {
+      if (fd_ >= 0)
+        ::close(fd_);
+      fd_ = -1;
+      continue; // --restart discards another user's journal where this user may delete it
+    }
+    if (st.st_uid != ::geteuid())
+      return refuse("it belongs to another user (uid " + std::to_string(st.st_uid) +
+                    "); saltpan resumes only its own user's journals; remove it");
+    if (!S_ISREG(st.st_mode))
+      return refuse("it is not a regular file");
+    if (fd_ < 0)
+      return refuse(std::strerror(openError));
+    ::fcntl(fd_, F_SETFL, ::fcntl(fd_, F_GETFL) & ~O_NONBLOCK);
+    if (::flock(fd_, LOCK_EX | LOCK_NB) != 0)
+      return refuse(errno == EWOULDBLOCK ? std::string("another sweep on the same output holds its lock (two sweeps "
+                                                       "would mix their points); wait for it to finish, or choose "
+                                                       "another -o")
+                                         : std::string(std::strerror(errno)));
+    // Locked; but is it still the file the name points to?
+    struct stat now {};
+    if (::lstat(path.c_str(), &now) == 0 && now.st_dev == st.st_dev && now.st_ino == st.st_ino) {
+      if (restart && ::ftruncate(fd_, 0) != 0)
+        return refuse(std::strerror(errno));
+      return true;
+    }
+    ::close(fd_);
+    fd_ = -1;
+  }
+  return refuse("it keeps being replaced");
+}
+
+void Journal::remove() {
+  if (fd_ < 0)
+    return;
+  ::unlink(path_.c_str());
+  ::close(fd_);
+  fd_ = -1;
+}
+
 bool runSweep(Table &t, const Evaluate &evaluate, const RunOptions &o, RunReport &report, std::string &error) {
   auto started = Clock::now();
   int fd = -1;
-  if (!o.journal.empty()) {
+  if (o.journal && o.journal->isOpen()) {
     off_t good = 0;
-    if (!readJournal(o.journal, o.fingerprint, t, report.resumed, good, error))
+    if (!readJournal(*o.journal, o.fingerprint, t, report.resumed, good, error))
       return false;
-    fd = ::open(o.journal.c_str(), O_WRONLY | O_CREAT, 0644);
-    if (fd < 0 || ::ftruncate(fd, good) != 0 || ::lseek(fd, 0, SEEK_END) < 0) {
-      error = "cannot write the checkpoint journal '" + o.journal + "'";
-      if (fd >= 0)
-        ::close(fd);
+    fd = o.journal->fd();
+    if (::ftruncate(fd, good) != 0 || ::lseek(fd, 0, SEEK_END) < 0) {
+      error = "cannot write the checkpoint journal '" + o.journal->path() + "'";
       return false;
     }
     if (good == 0 && !writeAll(fd, headerLine(o.fingerprint, t.results.size()))) {
-      error = "cannot write the checkpoint journal '" + o.journal + "'";
-      ::close(fd);
+      error = "cannot write the checkpoint journal '" + o.journal->path() + "'";
       return false;
     }
   }
@@ -281,8 +402,6 @@ bool runSweep(Table &t, const Evaluate &evaluate, const RunOptions &o, RunReport
     std::unique_lock<std::mutex> lock(mutex);
     flush(lock);
   }
-  if (fd >= 0)
-    ::close(fd);
   report.computed = done - alreadyDone;
   report.seconds = std::chrono::duration<double>(Clock::now() - started).count();
   if (!workerError.empty()) {
@@ -290,7 +409,7 @@ bool runSweep(Table &t, const Evaluate &evaluate, const RunOptions &o, RunReport
     return false;
   }
   if (writeFailed) {
-    error = "cannot write the checkpoint journal '" + o.journal + "'";
+    error = "cannot write the checkpoint journal '" + o.journal->path() + "'";
     return false;
   }
   progress.update(done, true);

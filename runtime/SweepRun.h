@@ -21,11 +21,34 @@ using Evaluate = std::function<void(const std::vector<size_t> &local, std::vecto
 
 enum class Progress { Auto, Bar, Log, Quiet };
 
+/// The checkpoint journal of one output (OUT.journal). It is opened without following a
+/// symbolic link, must be a regular file of this user, and is locked (flock) for as long as
+/// the object lives: a second sweep on the same output is refused, never interleaved.
+class Journal {
+public:
+  Journal() = default;
+  ~Journal();
+  Journal(const Journal &) = delete;
+  Journal &operator=(const Journal &) = delete;
+  /// Opens or creates `path` and locks it; `restart` discards what it holds. Returns false
+  /// with an `error` that starts "cannot write the checkpoint journal".
+  bool open(const std::string &path, bool restart, std::string &error);
+  bool isOpen() const { return fd_ >= 0; }
+  int fd() const { return fd_; }
+  const std::string &path() const { return path_; }
+  /// Deletes the journal once the outputs are written; the lock is held until then.
+  void remove();
+
+private:
+  int fd_ = -1;
+  std::string path_;
+};
+
 struct RunOptions {
   int threads = 0;        // 0: every core
   size_t batch = 1;       // points per evaluator call
   size_t chunk = 256;     // points per checkpoint (also written at least once a second)
-  std::string journal;    // empty: no checkpoints
+  Journal *journal = nullptr; // an open journal, or none: no checkpoints
   std::string fingerprint; // what the journal must have been written for
   Progress progress = Progress::Auto;
   std::string label = "saltpan sweep"; // prefix of progress lines

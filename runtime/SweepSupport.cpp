@@ -71,15 +71,14 @@ std::string failureText(const std::string &protocol, const SimulationFailure &f)
 
 void addFailure(PointResult &r, const std::string &text) { r.failure += (r.failure.empty() ? "" : "; ") + text; }
 
-bool writeOutputs(const Table &t, const std::vector<std::string> &outputs, const std::string &journal,
-                  std::string &error) {
+bool writeOutputs(const Table &t, const std::vector<std::string> &outputs, Journal *journal, std::string &error) {
   if (outputs.empty())
     std::fputs(toCsv(t).c_str(), stdout);
   for (const std::string &out : outputs)
     if (!writeFileAtomically(out, isJsonPath(out) ? toJson(t) : toCsv(t), error))
       return false;
-  if (!journal.empty())
-    std::filesystem::remove(journal);
+  if (journal)
+    journal->remove();
   return true;
 }
 

@@ -34,10 +34,9 @@ std::string failureText(const std::string &protocol, const SimulationFailure &f)
 void addFailure(PointResult &r, const std::string &text);
 
 /// Writes the finished table to each output (.json as JSON, anything else as CSV), or CSV to
-/// standard output when there is none, then removes `journal` (may be empty). False with
+/// standard output when there is none, then removes `journal` (may be null). False with
 /// `error` when an output cannot be written (the journal is kept).
-bool writeOutputs(const Table &t, const std::vector<std::string> &outputs, const std::string &journal,
-                  std::string &error);
+bool writeOutputs(const Table &t, const std::vector<std::string> &outputs, Journal *journal, std::string &error);
 /// Whether an error of runSweep is a journal that could not be written (exit 73) rather than
 /// one that cannot be used (bad usage).
 bool cannotWriteJournal(const std::string &error);

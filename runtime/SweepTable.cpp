@@ -131,25 +131,49 @@ bool fromJson(const std::string &text, Table &t, std::string &error) {
     t.parameterValues.clear();
     t.results.clear();
     uint64_t expected = t.first;
+    // Point by point, so a shard edited by hand or cut from another sweep is refused with the
+    // point and the value that do not fit, never joined into a ragged table.
     for (auto &p : doc.at("points")) {
-      if (p.at("point").get<uint64_t>() != expected++) {
-        error = "the points are not consecutive";
+      std::string where = "point " + std::to_string(expected);
+      if (!p.is_object() || !p.contains("point") || !p["point"].is_number_unsigned() ||
+          p["point"].get<uint64_t>() != expected++) {
+        error = "the points are not consecutive (" + where + " is missing or out of place)";
         return false;
       }
-      std::vector<double> params;
-      for (auto &v : p.at("parameters"))
-        params.push_back(v.get<double>());
+      const nlohmann::json &params = p.at("parameters"), &measures = p.at("measures");
+      if (!params.is_array() || params.size() != t.parameters.size() || !measures.is_array() ||
+          measures.size() != t.measures.size()) {
+        error = where + " has " + std::to_string(params.is_array() ? params.size() : 0) + " parameters and " +
+                std::to_string(measures.is_array() ? measures.size() : 0) + " measures; the columns name " +
+                std::to_string(t.parameters.size()) + " and " + std::to_string(t.measures.size()) +
+                " (a point has the wrong number of values)";
+        return false;
+      }
+      std::vector<double> values;
+      for (size_t k = 0; k < params.size(); ++k) {
+        if (!params[k].is_number()) {
+          error = where + ": the value of '" + t.parameters[k].name + "' is not a number";
+          return false;
+        }
+        values.push_back(params[k].get<double>());
+      }
       PointResult r;
       r.done = true;
-      for (auto &v : p.at("measures"))
-        r.measures.push_back(v.is_null() ? NAN : v.get<double>());
-      if (!p.at("failure").is_null())
-        r.failure = p["failure"].get<std::string>();
-      if (params.size() != t.parameters.size() || r.measures.size() != t.measures.size()) {
-        error = "a point has the wrong number of values";
+      for (size_t k = 0; k < measures.size(); ++k) {
+        if (!measures[k].is_number() && !measures[k].is_null()) {
+          error = where + ": the value of '" + t.measures[k].name + "' is neither a number nor null";
+          return false;
+        }
+        r.measures.push_back(measures[k].is_null() ? NAN : measures[k].get<double>());
+      }
+      const nlohmann::json &failure = p.at("failure");
+      if (!failure.is_null() && !failure.is_string()) {
+        error = where + ": its failure is neither text nor null";
         return false;
       }
-      t.parameterValues.push_back(std::move(params));
+      if (failure.is_string())
+        r.failure = failure.get<std::string>();
+      t.parameterValues.push_back(std::move(values));
       t.results.push_back(std::move(r));
     }
     return true;
@@ -157,6 +181,31 @@ bool fromJson(const std::string &text, Table &t, std::string &error) {
     error = std::string("not a saltpan sweep result: ") + e.what();
     return false;
   }
+}
+
+std::string differingColumns(const Table &a, const Table &b) {
+  auto describe = [](const std::vector<Column> &cs) {
+    std::string text;
+    for (const Column &c : cs)
+      text += (text.empty() ? "" : ", ") + heading(c) + " x" + exactNumber(c.scale);
+    return "(" + text + ")";
+  };
+  auto same = [](const std::vector<Column> &x, const std::vector<Column> &y) {
+    if (x.size() != y.size())
+      return false;
+    for (size_t i = 0; i < x.size(); ++i)
+      if (x[i].name != y[i].name || x[i].unit != y[i].unit || x[i].scale != y[i].scale)
+        return false;
+    return true;
+  };
+  if (!same(a.parameters, b.parameters))
+    return "parameters " + describe(b.parameters) + " against " + describe(a.parameters);
+  if (!same(a.measures, b.measures))
+    return "measures " + describe(b.measures) + " against " + describe(a.measures);
+  if (a.sweep != b.sweep || a.version != b.version || a.modelHash != b.modelHash || a.engine != b.engine ||
+      a.design != b.design || a.totalPoints != b.totalPoints)
+    return "their sweep, saltpan version, model hash, engine, design or point count differ";
+  return "";
 }
 
 } // namespace saltpan::sweep

@@ -47,6 +47,10 @@ std::string toJson(const Table &t);
 /// Reads a table written by toJson; returns false with `error` on anything unexpected.
 bool fromJson(const std::string &text, Table &t, std::string &error);
 
+/// How the two tables' provenance or columns (names, units, scales, in order) differ, or ""
+/// when they could be parts of one sweep.
+std::string differingColumns(const Table &a, const Table &b);
+
 /// Shortest text that reads back as the same double ("0.1", "1e-05").
 std::string exactNumber(double v);
 

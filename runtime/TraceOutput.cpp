@@ -1,13 +1,10 @@
-// TraceOutput.cpp - CSV and JSON of recorded traces; atomic writes.
+// TraceOutput.cpp - CSV and JSON of recorded traces.
 #include "TraceOutput.h"
 
 #include "Decimal.h"
 
 #include <cstdio>
-#include <filesystem>
-#include <fstream>
 #include <nlohmann/json.hpp>
-#include <unistd.h>
 
 namespace saltpan {
 
@@ -59,31 +56,5 @@ std::string traceJson(const Trace &trace, const ir::Model &model, const std::str
 }
 
 bool isJsonPath(const std::string &path) { return path.size() > 5 && path.substr(path.size() - 5) == ".json"; }
-
-bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error) {
-  std::string temporary = path + ".tmp-" + std::to_string(getpid());
-  {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    if (!out) {
-      error = "cannot create '" + temporary + "'";
-      return false;
-    }
-    out << text;
-    out.flush();
-    if (!out) {
-      error = "cannot write '" + temporary + "'";
-      std::remove(temporary.c_str());
-      return false;
-    }
-  }
-  std::error_code ec;
-  std::filesystem::rename(temporary, path, ec);
-  if (ec) {
-    error = "cannot rename '" + temporary + "' to '" + path + "': " + ec.message();
-    std::remove(temporary.c_str());
-    return false;
-  }
-  return true;
-}
 
 } // namespace saltpan

@@ -1,9 +1,10 @@
-// TraceOutput.h - the recorded traces as CSV or JSON text, and atomic file writes.
+// TraceOutput.h - the recorded traces as CSV or JSON text (written with SafeWrite.h).
 //
 // `saltpan run` and the standalone executables built by `saltpan build` both write through these,
 // so their outputs are the same bytes for the same run.
 #pragma once
 #include "IR.h"
+#include "SafeWrite.h"
 #include "Simulate.h"
 
 #include <string>
@@ -17,8 +18,5 @@ std::string traceJson(const Trace &trace, const ir::Model &model, const std::str
                       const std::string &version);
 /// True when `path` names a JSON output (ends in ".json"); anything else is CSV.
 bool isJsonPath(const std::string &path);
-
-/// Writes `text` to `path` atomically (temporary file, then rename). Returns false on failure.
-bool writeFileAtomically(const std::string &path, const std::string &text, std::string &error);
 
 } // namespace saltpan
