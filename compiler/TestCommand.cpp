@@ -5,6 +5,7 @@
 #include "Expect.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
+#include "Source.h"
 #ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
 #endif
@@ -61,24 +62,46 @@ struct FileResult {
   std::string hash; // the model hash of the file, for reports
 };
 
-std::vector<std::string> discover(const std::vector<std::string> &paths, std::string &error) {
+// Every .saltpan file under the paths, without following links to folders. A folder that
+// cannot be read becomes an entry in `unreadable` (reported with the files), not a stop.
+std::vector<std::string> discover(const std::vector<std::string> &paths, std::vector<std::string> &unreadable,
+                                  std::string &error) {
   std::vector<std::string> files;
   for (const std::string &p : paths) {
     std::error_code ec;
     if (fs::is_directory(p, ec)) {
-      for (auto &entry : fs::recursive_directory_iterator(p, ec))
-        if (entry.is_regular_file() && entry.path().extension() == ".saltpan" &&
-            entry.path().filename().string()[0] != '_')
-          files.push_back(entry.path().lexically_normal().string());
+      std::vector<fs::path> folders{fs::path(p)}; // a worklist, not recursion: depth is unbounded
+      while (!folders.empty()) {
+        fs::path folder = folders.back();
+        folders.pop_back();
+        fs::directory_iterator it(folder, ec), end;
+        if (ec) {
+          unreadable.push_back(folder.lexically_normal().string() + ": cannot read the folder (" + ec.message() + ")");
+          continue;
+        }
+        for (; it != end; it.increment(ec)) {
+          if (ec)
+            break;
+          const fs::path &path = it->path();
+          std::error_code kind;
+          if (it->is_directory(kind) && !it->is_symlink(kind))
+            folders.push_back(path);
+          else if (it->is_regular_file(kind) && path.extension() == ".saltpan" && path.filename().string()[0] != '_')
+            files.push_back(path.lexically_normal().string());
+        }
+        if (ec)
+          unreadable.push_back(folder.lexically_normal().string() + ": cannot list the folder (" + ec.message() + ")");
+      }
     } else if (fs::is_regular_file(p, ec)) {
       files.push_back(fs::path(p).lexically_normal().string());
     } else {
-      error = "cannot find '" + p + "'";
+      error = "cannot find '" + escapeControls(p) + "'";
       return {};
     }
   }
   std::sort(files.begin(), files.end());
   files.erase(std::unique(files.begin(), files.end()), files.end());
+  std::sort(unreadable.begin(), unreadable.end());
   return files;
 }
 
@@ -110,9 +133,11 @@ void runFile(FileResult &f, bool jit) {
   f.results = runExpectations(c, compile);
 }
 
+// Text for XML 1.0 attributes and content: control characters and bytes that are not UTF-8
+// are not allowed there, even as character references, so they are shown escaped first.
 std::string xmlEscape(const std::string &s) {
   std::string out;
-  for (char ch : s) {
+  for (char ch : escapeControls(s)) {
     switch (ch) {
     case '&': out += "&amp;"; break;
     case '<': out += "&lt;"; break;
@@ -120,6 +145,21 @@ std::string xmlEscape(const std::string &s) {
     case '"': out += "&quot;"; break;
     default: out += ch;
     }
+  }
+  return out;
+}
+
+// Diagnostics are rendered line by line; inside XML their newlines stay newlines.
+std::string xmlEscapeLines(const std::string &s) {
+  std::string out;
+  size_t start = 0;
+  while (start <= s.size()) {
+    size_t end = s.find('\n', start);
+    out += xmlEscape(s.substr(start, end == std::string::npos ? std::string::npos : end - start));
+    if (end == std::string::npos)
+      break;
+    out += '\n';
+    start = end + 1;
   }
   return out;
 }
@@ -165,7 +205,8 @@ int testCommand(const std::vector<std::string> &args) {
     return Usage;
   }
   std::string error;
-  std::vector<std::string> files = discover(paths, error);
+  std::vector<std::string> unreadable; // folders, reported like files with errors
+  std::vector<std::string> files = discover(paths, unreadable, error);
   if (!error.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
     return Usage;
@@ -175,8 +216,16 @@ int testCommand(const std::vector<std::string> &args) {
     results[i].path = files[i];
   std::atomic<size_t> next{0};
   auto worker = [&] {
-    for (size_t i = next++; i < results.size(); i = next++)
-      runFile(results[i], engine == "jit");
+    for (size_t i = next++; i < results.size(); i = next++) {
+      // An exception leaving a thread ends the process; it is this file's error instead.
+      try {
+        runFile(results[i], engine == "jit");
+      } catch (const std::exception &e) {
+        results[i].specErrors = true;
+        results[i].diagnostics += "saltpan: error: " + escapeControls(results[i].path) +
+                                  ": could not be checked: " + escapeControls(e.what()) + "\n";
+      }
+    }
   };
   std::vector<std::thread> pool;
   for (unsigned t = 0; t < std::min<size_t>(jobs, files.size()); ++t)
@@ -184,25 +233,29 @@ int testCommand(const std::vector<std::string> &args) {
   for (auto &t : pool)
     t.join();
 
-  size_t passed = 0, failed = 0, broken = 0;
+  size_t passed = 0, failed = 0, broken = unreadable.size();
   std::string out;
+  for (const std::string &u : unreadable) {
+    std::fprintf(stderr, "saltpan: error: %s\n", escapeControls(u).c_str());
+    out += escapeControls(u) + "; its expectations were not measured\n";
+  }
   for (const FileResult &f : results) {
     if (f.specErrors) {
       ++broken;
       std::fputs(f.diagnostics.c_str(), stderr);
-      out += f.path + ": the spec has errors; its expectations were not measured\n";
+      out += escapeControls(f.path) + ": the spec has errors; its expectations were not measured\n";
       continue;
     }
     if (f.results.empty())
       continue;
-    out += f.path + "  (" + f.hash + ")\n";
+    out += escapeControls(f.path) + "  (" + f.hash + ")\n";
     for (const ExpectResult &r : f.results) {
       (r.passed ? passed : failed)++;
       out += std::string("  ") + (r.passed ? "PASS" : "FAIL") + "  line " + std::to_string(r.decl->range.begin.line) +
-             "  " + r.decl->text + ": measured " + r.measuredText +
+             "  " + escapeControls(r.decl->text) + ": measured " + escapeControls(r.measuredText) +
              (r.expectedText.empty() ? "" : "; expected " + r.expectedText);
       if (!r.decl->source.empty())
-        out += "  [" + r.decl->source + "]";
+        out += "  [" + escapeControls(r.decl->source) + "]";
       out += "\n";
     }
   }
@@ -216,6 +269,11 @@ int testCommand(const std::vector<std::string> &args) {
     std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"saltpan\" tests=\"" +
                       std::to_string(passed + failed) + "\" failures=\"" + std::to_string(failed) + "\" errors=\"" +
                       std::to_string(broken) + "\">\n";
+    for (const std::string &u : unreadable)
+      xml += "  <testsuite name=\"" + xmlEscape(u.substr(0, u.find(": "))) +
+             "\" tests=\"0\" failures=\"0\" errors=\"1\">\n    <testcase classname=\"" +
+             xmlEscape(u.substr(0, u.find(": "))) + "\" name=\"discover\">\n      <error message=\"" + xmlEscape(u) +
+             "\"/>\n    </testcase>\n  </testsuite>\n";
     for (const FileResult &f : results) {
       if (!f.specErrors && f.results.empty())
         continue;
@@ -228,8 +286,9 @@ int testCommand(const std::vector<std::string> &args) {
         xml += "    <properties>\n      <property name=\"model_hash\" value=\"" + xmlEscape(f.hash) +
                "\"/>\n      <property name=\"saltpan_version\" value=\"" SALTPAN_VERSION "\"/>\n    </properties>\n";
       if (f.specErrors)
-        xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"check\">\n      <error message=\"the spec has errors\">" +
-               xmlEscape(f.diagnostics) + "</error>\n    </testcase>\n";
+        xml += "    <testcase classname=\"" + xmlEscape(f.path) +
+               "\" name=\"check\">\n      <error message=\"the spec has errors\">" + xmlEscapeLines(f.diagnostics) +
+               "</error>\n    </testcase>\n";
       for (const ExpectResult &r : f.results) {
         xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"line " +
                std::to_string(r.decl->range.begin.line) + ": " + xmlEscape(r.decl->text) + "\">";
@@ -271,7 +330,9 @@ int testCommand(const std::vector<std::string> &args) {
              {"expected", r.expectedText},
              {"source", r.decl->source}});
     doc["expectations"] = list;
-    if (!writeFileAtomically(jsonPath, doc.dump(2) + "\n", error)) {
+    // File names need not be UTF-8; JSON strings must be.
+    if (!writeFileAtomically(jsonPath, doc.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n",
+                             error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
