@@ -97,21 +97,41 @@ no_crash big
 expect_grep big err 'it is larger than 16 MiB'
 
 # --- Depth limits instead of stack overflows ---
-{
-  echo 'fn f0(x: mV) -> mV = x'
-  for i in $(seq 1 5000); do echo "fn f$i(x: mV) -> mV = f$((i - 1))(x)"; done
-  echo 'const deepest = f5000(1 mV)'
-} >"$TMP/fns.saltpan"
-run fns check "$TMP/fns.saltpan"
+# Each check runs with a 1 MiB stack, an eighth of the usual 8 MiB: the limits must leave room
+# for AddressSanitizer's larger frames.
+small_stack() { # small_stack NAME ARGS...: `run` with a 1 MiB stack
+  local name=$1
+  shift
+  rc=0
+  (ulimit -s 1024 && exec timeout 20 "$SALTPAN" "$@") >"$TMP/$name.out" 2>"$TMP/$name.err" || rc=$?
+}
+fn_chain() { # fn_chain FILE N: f1 .. fN, each calling the one before
+  {
+    echo 'fn f0(x: mV) -> mV = x'
+    for i in $(seq 1 "$2"); do echo "fn f$i(x: mV) -> mV = f$((i - 1))(x)"; done
+    echo "const deepest = f$2(1 mV)"
+  } >"$1"
+}
+fn_chain "$TMP/fns.saltpan" 5000
+small_stack fns check "$TMP/fns.saltpan"
 no_crash fns
 [ "$rc" -eq 65 ] || fail "fns: exited $rc, expected 65"
 expect_grep fns err 'fns.saltpan:[0-9]+:[0-9]+: error: .* is more than 256 constants and functions deep'
-mkdir "$TMP/chain"
-for i in $(seq 0 19999); do echo "use \"m$((i + 1)).saltpan\"" >"$TMP/chain/m$i.saltpan"; done
-echo 'const last = 1 mV' >"$TMP/chain/m20000.saltpan"
-run modules check "$TMP/chain/m0.saltpan"
+fn_chain "$TMP/fns_ok.saltpan" 250
+small_stack fns_ok check "$TMP/fns_ok.saltpan"
+[ "$rc" -eq 0 ] || fail "fns_ok: a chain of 250 functions exited $rc, expected 0"
+module_chain() { # module_chain DIR N: m0 uses m1 ... uses mN
+  mkdir "$1"
+  for i in $(seq 0 $(($2 - 1))); do echo "use \"m$((i + 1)).saltpan\"" >"$1/m$i.saltpan"; done
+  echo 'const last = 1 mV' >"$1/m$2.saltpan"
+}
+module_chain "$TMP/chain" 20000
+small_stack modules check "$TMP/chain/m0.saltpan"
 no_crash modules
 [ "$rc" -eq 65 ] || fail "modules: exited $rc, expected 65"
 expect_grep modules err 'm[0-9]+.saltpan:1:5: error: modules use each other more than 256 deep here'
+module_chain "$TMP/chain_ok" 250
+small_stack modules_ok check "$TMP/chain_ok/m0.saltpan"
+[ "$rc" -eq 0 ] || fail "modules_ok: a chain of 250 modules exited $rc, expected 0"
 
 finish
