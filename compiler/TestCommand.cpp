@@ -47,8 +47,11 @@ options:
   --version               print the version
   --help                  show this help
 
-exit status: 0 every expectation passed, 1 some failed, 64 bad usage, 65 a spec has errors,
-             70 internal fault, 73 an output file could not be written
+A folder that cannot be read is reported and counted with the files with errors; the other
+files are still measured. Control characters in names and strings are shown escaped (\x1b).
+
+exit status: 0 every expectation passed, 1 some failed, 64 bad usage, 65 a spec has errors
+             or a folder cannot be read, 70 internal fault, 73 an output file could not be written
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
