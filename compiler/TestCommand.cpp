@@ -67,7 +67,14 @@ struct FileResult {
 
 // Every .saltpan file under the paths, without following links to folders. A folder that
 // cannot be read becomes an entry in `unreadable` (reported with the files), not a stop.
-std::vector<std::string> discover(const std::vector<std::string> &paths, std::vector<std::string> &unreadable,
+// A folder `saltpan test` could not read, and why ("cannot read the folder (Permission denied)").
+struct UnreadableFolder {
+  std::string path, problem;
+  bool operator<(const UnreadableFolder &o) const { return path < o.path; }
+  std::string text() const { return path + ": " + problem; }
+};
+
+std::vector<std::string> discover(const std::vector<std::string> &paths, std::vector<UnreadableFolder> &unreadable,
                                   std::string &error) {
   std::vector<std::string> files;
   for (const std::string &p : paths) {
@@ -79,7 +86,7 @@ std::vector<std::string> discover(const std::vector<std::string> &paths, std::ve
         folders.pop_back();
         fs::directory_iterator it(folder, ec), end;
         if (ec) {
-          unreadable.push_back(folder.lexically_normal().string() + ": cannot read the folder (" + ec.message() + ")");
+          unreadable.push_back({folder.lexically_normal().string(), "cannot read the folder (" + ec.message() + ")"});
           continue;
         }
         for (; it != end; it.increment(ec)) {
@@ -93,7 +100,7 @@ std::vector<std::string> discover(const std::vector<std::string> &paths, std::ve
             files.push_back(path.lexically_normal().string());
         }
         if (ec)
-          unreadable.push_back(folder.lexically_normal().string() + ": cannot list the folder (" + ec.message() + ")");
+          unreadable.push_back({folder.lexically_normal().string(), "cannot list the folder (" + ec.message() + ")"});
       }
     } else if (fs::is_regular_file(p, ec)) {
       files.push_back(fs::path(p).lexically_normal().string());
@@ -208,7 +215,7 @@ int testCommand(const std::vector<std::string> &args) {
     return Usage;
   }
   std::string error;
-  std::vector<std::string> unreadable; // folders, reported like files with errors
+  std::vector<UnreadableFolder> unreadable; // reported like files with errors
   std::vector<std::string> files = discover(paths, unreadable, error);
   if (!error.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
@@ -238,9 +245,9 @@ int testCommand(const std::vector<std::string> &args) {
 
   size_t passed = 0, failed = 0, broken = unreadable.size();
   std::string out;
-  for (const std::string &u : unreadable) {
-    std::fprintf(stderr, "saltpan: error: %s\n", escapeControls(u).c_str());
-    out += escapeControls(u) + "; its expectations were not measured\n";
+  for (const UnreadableFolder &u : unreadable) {
+    std::fprintf(stderr, "saltpan: error: %s\n", escapeControls(u.text()).c_str());
+    out += escapeControls(u.text()) + "; its expectations were not measured\n";
   }
   for (const FileResult &f : results) {
     if (f.specErrors) {
@@ -272,11 +279,10 @@ int testCommand(const std::vector<std::string> &args) {
     std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"saltpan\" tests=\"" +
                       std::to_string(passed + failed) + "\" failures=\"" + std::to_string(failed) + "\" errors=\"" +
                       std::to_string(broken) + "\">\n";
-    for (const std::string &u : unreadable)
-      xml += "  <testsuite name=\"" + xmlEscape(u.substr(0, u.find(": "))) +
-             "\" tests=\"0\" failures=\"0\" errors=\"1\">\n    <testcase classname=\"" +
-             xmlEscape(u.substr(0, u.find(": "))) + "\" name=\"discover\">\n      <error message=\"" + xmlEscape(u) +
-             "\"/>\n    </testcase>\n  </testsuite>\n";
+    for (const UnreadableFolder &u : unreadable)
+      xml += "  <testsuite name=\"" + xmlEscape(u.path) + "\" tests=\"0\" failures=\"0\" errors=\"1\">\n" +
+             "    <testcase classname=\"" + xmlEscape(u.path) + "\" name=\"discover\">\n      <error message=\"" +
+             xmlEscape(u.problem) + "\"/>\n    </testcase>\n  </testsuite>\n";
     for (const FileResult &f : results) {
       if (!f.specErrors && f.results.empty())
         continue;
