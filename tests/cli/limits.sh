@@ -90,11 +90,11 @@ mkfifo "$TMP/pipe.saltpan"
 run fifo check "$TMP/pipe.saltpan"
 no_crash fifo
 expect_grep fifo err 'it is not a regular file'
-truncate -s 17M "$TMP/big.saltpan"
+truncate -s 5M "$TMP/big.saltpan"
 run big check "$TMP/big.saltpan"
 no_crash big
 [ "$rc" -eq 65 ] || fail "big: exited $rc, expected 65"
-expect_grep big err 'it is larger than 16 MiB'
+expect_grep big err 'it is larger than 4 MiB'
 
 # --- Depth limits instead of stack overflows ---
 # Each check runs with a 1 MiB stack, an eighth of the usual 8 MiB: the limits must leave room
