@@ -229,7 +229,12 @@ int checkCommand(const std::vector<std::string> &args) {
       continue;
     }
     std::string error;
-    std::vector<std::string> found = discoverSpecs({path}, error);
+    std::vector<UnreadableFolder> unreadable;
+    std::vector<std::string> found = discoverSpecs({path}, unreadable, error);
+    for (const UnreadableFolder &u : unreadable)
+      std::fprintf(stderr, "saltpan: error: %s\n", u.text().c_str());
+    if (!unreadable.empty())
+      return SpecErrors;
     if (found.empty()) {
       std::fprintf(stderr, "saltpan: error: %s\n",
                    error.empty() ? ("no spec files (*.saltpan) in '" + path + "'").c_str() : error.c_str());

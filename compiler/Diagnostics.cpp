@@ -65,12 +65,13 @@ void renderOne(std::string &out, Severity s, const SourceRange &range, const std
     tint = s == Severity::Error ? "\033[1;31m" : s == Severity::Warning ? "\033[1;35m" : "\033[1;36m";
   if (range.valid()) {
     const SourceFile &file = *range.begin.file;
-    out += bold + file.path() + ":" + std::to_string(range.begin.line) + ":" +
+    // Paths and messages may quote the user's text: escaped, a terminal never obeys it.
+    out += bold + escapeControls(file.path()) + ":" + std::to_string(range.begin.line) + ":" +
            std::to_string(range.begin.column) + ": " + reset;
   } else if (s != Severity::Note) {
     out += bold + std::string("saltpan: ") + reset;
   }
-  out += tint + std::string(severityName(s)) + ": " + reset + bold + message + reset + "\n";
+  out += tint + std::string(severityName(s)) + ": " + reset + bold + escapeControls(message) + reset + "\n";
   if (!range.valid())
     return;
   std::string_view line = range.begin.file->lineText(range.begin.line);

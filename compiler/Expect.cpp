@@ -176,6 +176,18 @@ std::optional<Dimension> measureDimension(const Compilation &c, const ExpectDecl
   return unitDimension(m->probes[r].unit);
 }
 
+// A whole cell read as a finite number ("nan", "inf", "", "1.5x" are not).
+std::optional<double> finiteNumber(const std::string &cell) {
+  const char *begin = cell.c_str();
+  char *end = nullptr;
+  double v = std::strtod(begin, &end);
+  while (*end == ' ' || *end == '\r')
+    ++end;
+  if (end == begin || *end != '\0' || !std::isfinite(v))
+    return std::nullopt;
+  return v;
+}
+
 class Validator {
 public:
   Validator(Compilation &c, DiagnosticEngine &diags) : c_(c), diags_(diags) {}
@@ -482,6 +494,13 @@ private:
   std::optional<double> snapshotError(const ExpectDecl &e, const std::string &file, const Trace &t, size_t column,
                                       double scale, bool rms, std::string &why) {
     std::filesystem::path path = std::filesystem::path(e.range.begin.file->path()).parent_path() / file;
+    // Opening a FIFO would block until a writer comes; a device need never end.
+    std::error_code ec;
+    auto status = std::filesystem::status(path, ec);
+    if (!ec && status.type() != std::filesystem::file_type::regular) {
+      why = "the snapshot '" + path.string() + "' is not a regular file";
+      return std::nullopt;
+    }
     std::ifstream in(path);
     if (!in) {
       why = "cannot read the snapshot '" + path.string() + "' (make it with `saltpan snapshot`)";
@@ -515,12 +534,26 @@ private:
         why = "the snapshot has more samples than the run, or a short row";
         return std::nullopt;
       }
-      double time = std::strtod(cells[0].c_str(), nullptr) * 1e-3;
-      if (std::fabs(time - t.time[row]) > 1e-9 * std::max(1.0, std::fabs(time)) + 1e-12) {
+      auto time = finiteNumber(cells[0]);
+      if (time)
+        *time *= 1e-3;
+      if (!time || std::fabs(*time - t.time[row]) > 1e-9 * std::max(1.0, std::fabs(*time)) + 1e-12) {
         why = "the snapshot's sample times differ from the run's";
         return std::nullopt;
       }
-      double diff = (std::strtod(cells[static_cast<size_t>(wanted)].c_str(), nullptr) - t.at(row, column)) / scale;
+      // A NaN on either side would drop out of max() and the sum; it fails the measure instead.
+      auto reference = finiteNumber(cells[static_cast<size_t>(wanted)]);
+      char at[64];
+      std::snprintf(at, sizeof at, " at %.6g ms", t.time[row] * 1e3);
+      if (!reference) {
+        why = "the snapshot's value" + std::string(at) + " is not a finite number";
+        return std::nullopt;
+      }
+      if (!std::isfinite(t.at(row, column))) {
+        why = "the recorded value" + std::string(at) + " is not a finite number";
+        return std::nullopt;
+      }
+      double diff = (*reference - t.at(row, column)) / scale;
       worst = std::max(worst, std::fabs(diff));
       sumSquares += diff * diff;
       ++row;

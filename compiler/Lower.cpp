@@ -9,6 +9,7 @@
 #include "Interpret.h"
 #include "Nearest.h"
 #include "Physics.h"
+#include "RunSettings.h"
 
 #include <algorithm>
 #include <cmath>
@@ -678,6 +679,7 @@ private:
   void lowerProtocol(const ProtocolDecl &p) {
     ir::Protocol &proto = out_.protocol;
     proto.name = p.name;
+    size_t errorsBefore = diags_.errorCount();
     if (!p.method.empty()) {
       if (p.method == "exponential_euler")
         proto.method = ir::Method::ExponentialEuler;
@@ -721,12 +723,8 @@ private:
       else
         proto.every = *v;
     }
-    bool adaptive = proto.method == ir::Method::DormandPrince || proto.method == ir::Method::Rosenbrock;
-    if (!adaptive && p.every) {
-      double ratio = proto.every / proto.step;
-      if (std::fabs(ratio - std::round(ratio)) > 1e-9 * ratio || ratio < 0.5)
-        fail(p.every->range, "the recording interval must be a whole number of steps");
-    }
+    if (diags_.errorCount() == errorsBefore && p.duration)
+      checkProtocolTiming(p);
     for (const RecordTarget &r : p.records) {
       int index = out_.findProbe(r.path);
       if (index < 0) {
@@ -752,6 +750,25 @@ private:
     if (p.records.empty())
       for (const ir::Compartment &c : out_.compartments)
         proto.record.push_back(out_.findProbe(c.name + ".V"));
+  }
+
+  // The counts a run derives from its timing (steps, samples) must be whole and bounded, or
+  // the steppers would stop early or record the wrong samples while claiming success.
+  void checkProtocolTiming(const ProtocolDecl &p) {
+    auto problem = checkTiming(out_.protocol);
+    if (!problem)
+      return;
+    using Field = TimingProblem::Field;
+    const Expr *at = problem->field == Field::Step    ? p.step.get()
+                     : problem->field == Field::Every ? (p.every ? p.every.get() : p.step.get())
+                                                      : p.duration.get();
+    fail(at ? at->range : p.duration->range, problem->message);
+    if (!problem->note.empty())
+      DiagnosticEngine::note(*diags_.last(), {}, problem->note);
+    if (problem->field == Field::Duration && p.step)
+      DiagnosticEngine::note(*diags_.last(), p.step->range, "the step is given here");
+    if (problem->field == Field::Every && !p.every)
+      DiagnosticEngine::note(*diags_.last(), {}, "without 'every', the recording interval is the step");
   }
 
   // Gates start at their steady values for the initial potentials.

@@ -20,6 +20,10 @@ namespace {
 
 namespace fs = std::filesystem;
 
+// Loading follows uses recursively; this bound keeps it far from the end of the stack, also
+// under AddressSanitizer, whose frames are larger.
+constexpr size_t maxModuleDepth = 256;
+
 class Loader {
 public:
   Loader(SourceManager &sources, DiagnosticEngine &diags, ast::Program &program)
@@ -131,6 +135,14 @@ private:
       file = sources_.find(found->path);
       if (!file)
         file = sources_.add(found->path, found->text);
+    }
+    if (stack_.size() >= maxModuleDepth) {
+      auto &d = diags_.error(use.targetRange,
+                             "modules use each other more than " + std::to_string(maxModuleDepth) + " deep here");
+      DiagnosticEngine::note(d, stack_.front().second->targetRange,
+                             "the chain of uses starts in '" + stack_.front().first + "' here");
+      ok_ = false;
+      return;
     }
     stack_.push_back({fromName, &use});
     load(*file, key, name);

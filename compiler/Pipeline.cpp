@@ -21,7 +21,8 @@ void run(const SourceFile &root, Compilation &c) {
   // Resolve and CheckUnits both run before stopping: a name error leaves its expression
   // "unknown", which CheckUnits never reports again.
   bool resolved = resolveNames(c.program, c.symbols, c.diags);
-  bool units = checkUnits(c.program, c.evaluator, c.diags);
+  // Unit checking follows chains of constants recursively; Resolve bounded their depth.
+  bool units = !c.symbols.chainTooDeep && checkUnits(c.program, c.evaluator, c.diags);
   if (!resolved || !units)
     return;
   if (!analyze(c.program, c.symbols, c.evaluator, c.diags, c.model))

@@ -107,6 +107,8 @@ public:
       if (decl->kind == DeclKind::Const || decl->kind == DeclKind::Fn) {
         std::vector<const Decl *> path;
         visit(decl, path);
+        if (symbols_.chainTooDeep)
+          return; // one report; every other start in the chain would repeat it
       }
   }
 
@@ -518,9 +520,21 @@ private:
                                      "' depends on itself: " + chain);
       return;
     }
+    if (path.size() >= maxDependencyDepth) {
+      auto &diag = diags_.error(d->nameRange, std::string(describe(d->kind)) + " '" + d->name + "' is more than " +
+                                                  std::to_string(maxDependencyDepth) + " constants and functions deep");
+      DiagnosticEngine::note(diag, path.front()->nameRange,
+                             "the chain of uses starts at '" + path.front()->name + "' here");
+      DiagnosticEngine::note(diag, {}, "split the chain, or compute the value in fewer steps");
+      symbols_.chainTooDeep = true;
+      return;
+    }
     path.push_back(d);
-    for (auto &[target, at] : uses_[d])
+    for (auto &[target, at] : uses_[d]) {
       visit(target, path);
+      if (symbols_.chainTooDeep)
+        return;
+    }
     path.pop_back();
     finished_.insert(d);
   }

@@ -17,7 +17,13 @@ struct SymbolTable {
   std::map<std::string, ast::Decl *> byName;
   ast::TemperatureDecl *temperature = nullptr;
   ast::ModelDecl *model = nullptr; // the root's header
+  bool chainTooDeep = false;       // set by Resolve: later stages would recurse too deeply
 };
+
+/// How many constants and functions a chain of uses may pass through. Checking and lowering
+/// follow such chains recursively; this bound keeps them far from the end of the stack, also
+/// under AddressSanitizer, whose frames are larger.
+constexpr size_t maxDependencyDepth = 256;
 
 /// Binds every name in the program. Returns false if it reported an error.
 bool resolveNames(ast::Program &program, SymbolTable &symbols, DiagnosticEngine &diags);

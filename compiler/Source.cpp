@@ -2,8 +2,13 @@
 #include "Source.h"
 
 #include <algorithm>
-#include <fstream>
-#include <sstream>
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 namespace saltpan {
 
@@ -91,21 +96,73 @@ SourceLoc SourceFile::locAtCodePoint(size_t index) const {
 
 SourceLoc SourceFile::endLoc() const { return locAtOffset(static_cast<uint32_t>(text_.size())); }
 
+std::string escapeControls(std::string_view text) {
+  std::string out;
+  char buf[16];
+  while (!text.empty()) {
+    auto bad = findInvalidUtf8(text);
+    std::string_view good = text.substr(0, bad ? *bad : text.size());
+    for (size_t i = 0; i < good.size(); ++i) {
+      auto c = static_cast<unsigned char>(good[i]);
+      auto next = i + 1 < good.size() ? static_cast<unsigned char>(good[i + 1]) : 0;
+      if (c < 0x20 || c == 0x7f) {
+        std::snprintf(buf, sizeof buf, "\\x%02x", c);
+        out += buf;
+      } else if (c == 0xC2 && next >= 0x80 && next <= 0x9F) { // C1 controls, e.g. U+009B (CSI)
+        std::snprintf(buf, sizeof buf, "\\u%04x", next);
+        out += buf;
+        ++i;
+      } else {
+        out += static_cast<char>(c);
+      }
+    }
+    if (!bad)
+      break;
+    std::snprintf(buf, sizeof buf, "\\x%02x", static_cast<unsigned char>(text[*bad]));
+    out += buf;
+    text.remove_prefix(*bad + 1);
+  }
+  return out;
+}
+
 const SourceFile *SourceManager::load(const std::string &path, std::string &error) {
   if (auto *f = find(path))
     return f;
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
-    error = "cannot open file";
+  // O_NONBLOCK: opening a FIFO must not wait for a writer; fstat then refuses it.
+  int fd = ::open(path.c_str(), O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+  if (fd < 0) {
+    error = std::string("cannot open file (") + std::strerror(errno) + ")";
     return nullptr;
   }
-  std::ostringstream buffer;
-  buffer << in.rdbuf();
-  if (in.bad()) {
-    error = "cannot read file";
+  struct FdCloser {
+    int fd;
+    ~FdCloser() { ::close(fd); }
+  } closer{fd};
+  struct stat info {};
+  if (::fstat(fd, &info) != 0 || !S_ISREG(info.st_mode)) {
+    error = S_ISDIR(info.st_mode) ? "it is a directory, not a spec file"
+                                  : "it is not a regular file (a device, FIFO or socket)";
     return nullptr;
   }
-  return add(path, buffer.str());
+  std::string text;
+  char chunk[65536];
+  for (;;) { // read to the end, not to st_size: the file may still grow
+    ssize_t n = ::read(fd, chunk, sizeof chunk);
+    if (n < 0 && (errno == EINTR || errno == EAGAIN))
+      continue;
+    if (n < 0) {
+      error = std::string("cannot read file (") + std::strerror(errno) + ")";
+      return nullptr;
+    }
+    if (n == 0)
+      break;
+    text.append(chunk, static_cast<size_t>(n));
+    if (text.size() > maxSourceBytes) {
+      error = "it is larger than " + std::to_string(maxSourceBytes >> 20) + " MiB, the most saltpan reads";
+      return nullptr;
+    }
+  }
+  return add(path, std::move(text));
 }
 
 const SourceFile *SourceManager::add(std::string path, std::string text) {

@@ -51,10 +51,16 @@ private:
   std::vector<uint32_t> codePointOffsets_; // byte offset of each code point
 };
 
+/// The largest spec file saltpan reads; far above any real spec, and it keeps `check /dev/zero`
+/// or a runaway generated file from growing memory without bound (checking takes about 28
+/// bytes of memory per byte of text, so about 120 MB at this limit).
+constexpr size_t maxSourceBytes = 4u << 20;
+
 /// Owns every loaded file so that locations stay valid for the whole run.
 class SourceManager {
 public:
-  /// Reads a file from disk; returns nullptr with `error` set when it cannot.
+  /// Reads a regular file of at most maxSourceBytes from disk; returns nullptr with `error` set
+  /// when it cannot (a directory, device, FIFO or socket is refused without blocking).
   const SourceFile *load(const std::string &path, std::string &error);
   /// Adds in-memory text (stdlib modules, tests).
   const SourceFile *add(std::string path, std::string text);
@@ -65,6 +71,10 @@ public:
 private:
   std::vector<std::unique_ptr<SourceFile>> files_;
 };
+
+/// `text` safe to print on a terminal or to put in XML: control characters (C0, DEL, C1) and
+/// bytes that are not UTF-8 are shown as escapes (\x1b, \u009b, \xff); the rest is unchanged.
+std::string escapeControls(std::string_view text);
 
 /// Returns the byte offset of the first invalid UTF-8 sequence, or nullopt if valid.
 std::optional<size_t> findInvalidUtf8(std::string_view text);

@@ -8,6 +8,7 @@
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Rest.h"
+#include "RunSettings.h"
 #include "Simulate.h"
 #include "SweepSupport.h"
 
@@ -116,6 +117,15 @@ private:
       diags_.error(m.measureRange, "'" + m.measure + "' compares with one snapshot and cannot be swept");
   }
 
+  // A swept value passes the checks a written one does (RunSettings' implausibleParameter).
+  bool plausible(const ir::Model &model, size_t param, const Expr *e) {
+    if (auto why = implausibleParameter(model, param, value(e))) {
+      diags_.error(e->range, *why);
+      return false;
+    }
+    return true;
+  }
+
   void axis(const SweepDecl &s, const SweepAxis &a, const ir::Model &model, bool sampled) {
     int p = model.findParam(a.parameter);
     if (p < 0) {
@@ -139,7 +149,8 @@ private:
       if (sampled)
         diags_.error(a.range, "a sampled sweep draws from ranges; give '" + a.parameter + "' a range, not values");
       for (auto &v : a.values)
-        same(v.get());
+        if (same(v.get()))
+          plausible(model, static_cast<size_t>(p), v.get());
       return;
     }
     bool ok = same(a.from.get()) & same(a.to.get());
@@ -157,7 +168,15 @@ private:
     }
     if (!ok)
       return;
+    if (!plausible(model, static_cast<size_t>(p), a.from.get()) ||
+        !plausible(model, static_cast<size_t>(p), a.to.get()))
+      return;
     double from = value(a.from.get()), to = value(a.to.get());
+    // Points are spaced by (to - from), which must stay finite too.
+    if (!std::isfinite(to - from)) {
+      diags_.error(a.range, "the range of '" + a.parameter + "' is too wide to represent in base units");
+      return;
+    }
     if (!sampled && a.points == 1 && from != to)
       diags_.error(a.pointsRange, "one point cannot span a range; use 'points 2' or more, or 'values'");
     if (a.logarithmic && !(from * to > 0))

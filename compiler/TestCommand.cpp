@@ -6,6 +6,7 @@
 #include "Expect.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
+#include "Source.h"
 #include "SpecFiles.h"
 #ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
@@ -46,8 +47,12 @@ options:
   --version               print the version
   --help                  show this help
 
+A folder that cannot be read is reported and counted with the files with errors; the other
+files are still measured. Control characters in names and strings are shown escaped (\x1b).
+
 exit status: 0 every expectation passed, 1 some failed or there were none, 64 bad usage,
-             65 a spec has errors, 70 internal fault, 73 an output file could not be written
+             65 a spec has errors or a folder cannot be read, 70 internal fault, 73 an output
+             file could not be written
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -60,6 +65,7 @@ struct FileResult {
   std::unique_ptr<Compilation> compilation; // keeps results' declarations alive
   std::string hash; // the model hash of the file, for reports
 };
+
 
 void runFile(FileResult &f, bool jit) {
   f.compilation = std::make_unique<Compilation>();
@@ -89,9 +95,11 @@ void runFile(FileResult &f, bool jit) {
   f.results = runExpectations(c, compile);
 }
 
+// Text for XML 1.0 attributes and content: control characters and bytes that are not UTF-8
+// are not allowed there, even as character references, so they are shown escaped first.
 std::string xmlEscape(const std::string &s) {
   std::string out;
-  for (char ch : s) {
+  for (char ch : escapeControls(s)) {
     switch (ch) {
     case '&': out += "&amp;"; break;
     case '<': out += "&lt;"; break;
@@ -99,6 +107,21 @@ std::string xmlEscape(const std::string &s) {
     case '"': out += "&quot;"; break;
     default: out += ch;
     }
+  }
+  return out;
+}
+
+// Diagnostics are rendered line by line; inside XML their newlines stay newlines.
+std::string xmlEscapeLines(const std::string &s) {
+  std::string out;
+  size_t start = 0;
+  while (start <= s.size()) {
+    size_t end = s.find('\n', start);
+    out += xmlEscape(s.substr(start, end == std::string::npos ? std::string::npos : end - start));
+    if (end == std::string::npos)
+      break;
+    out += '\n';
+    start = end + 1;
   }
   return out;
 }
@@ -147,7 +170,8 @@ int testCommand(const std::vector<std::string> &args) {
     return Usage;
   }
   std::string error;
-  std::vector<std::string> files = discoverSpecs(paths, error);
+  std::vector<UnreadableFolder> unreadable; // reported like files with errors
+  std::vector<std::string> files = discoverSpecs(paths, unreadable, error);
   if (!error.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
     return Usage;
@@ -167,8 +191,16 @@ int testCommand(const std::vector<std::string> &args) {
     results[i].path = files[i];
   std::atomic<size_t> next{0};
   auto worker = [&] {
-    for (size_t i = next++; i < results.size(); i = next++)
-      runFile(results[i], engine == "jit");
+    for (size_t i = next++; i < results.size(); i = next++) {
+      // An exception leaving a thread ends the process; it is this file's error instead.
+      try {
+        runFile(results[i], engine == "jit");
+      } catch (const std::exception &e) {
+        results[i].specErrors = true;
+        results[i].diagnostics += "saltpan: error: " + escapeControls(results[i].path) +
+                                  ": could not be checked: " + escapeControls(e.what()) + "\n";
+      }
+    }
   };
   std::vector<std::thread> pool;
   for (unsigned t = 0; t < std::min<size_t>(jobs, files.size()); ++t)
@@ -176,25 +208,29 @@ int testCommand(const std::vector<std::string> &args) {
   for (auto &t : pool)
     t.join();
 
-  size_t passed = 0, failed = 0, broken = 0;
+  size_t passed = 0, failed = 0, broken = unreadable.size();
   std::string out;
+  for (const UnreadableFolder &u : unreadable) {
+    std::fprintf(stderr, "saltpan: error: %s\n", escapeControls(u.text()).c_str());
+    out += escapeControls(u.text()) + "; its expectations were not measured\n";
+  }
   for (const FileResult &f : results) {
     if (f.specErrors) {
       ++broken;
       std::fputs(f.diagnostics.c_str(), stderr);
-      out += f.path + ": the spec has errors; its expectations were not measured\n";
+      out += escapeControls(f.path) + ": the spec has errors; its expectations were not measured\n";
       continue;
     }
     if (f.results.empty())
       continue;
-    out += f.path + "  (" + f.hash + ")\n";
+    out += escapeControls(f.path) + "  (" + f.hash + ")\n";
     for (const ExpectResult &r : f.results) {
       (r.passed ? passed : failed)++;
       out += std::string("  ") + (r.passed ? "PASS" : "FAIL") + "  line " + std::to_string(r.decl->range.begin.line) +
-             "  " + r.decl->text + ": measured " + r.measuredText +
+             "  " + escapeControls(r.decl->text) + ": measured " + escapeControls(r.measuredText) +
              (r.expectedText.empty() ? "" : "; expected " + r.expectedText);
       if (!r.decl->source.empty())
-        out += "  [" + r.decl->source + "]";
+        out += "  [" + escapeControls(r.decl->source) + "]";
       out += "\n";
     }
   }
@@ -208,6 +244,10 @@ int testCommand(const std::vector<std::string> &args) {
     std::string xml = "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"saltpan\" tests=\"" +
                       std::to_string(passed + failed) + "\" failures=\"" + std::to_string(failed) + "\" errors=\"" +
                       std::to_string(broken) + "\">\n";
+    for (const UnreadableFolder &u : unreadable)
+      xml += "  <testsuite name=\"" + xmlEscape(u.path) + "\" tests=\"0\" failures=\"0\" errors=\"1\">\n" +
+             "    <testcase classname=\"" + xmlEscape(u.path) + "\" name=\"discover\">\n      <error message=\"" +
+             xmlEscape(u.problem) + "\"/>\n    </testcase>\n  </testsuite>\n";
     for (const FileResult &f : results) {
       if (!f.specErrors && f.results.empty())
         continue;
@@ -220,8 +260,9 @@ int testCommand(const std::vector<std::string> &args) {
         xml += "    <properties>\n      <property name=\"model_hash\" value=\"" + xmlEscape(f.hash) +
                "\"/>\n      <property name=\"saltpan_version\" value=\"" SALTPAN_VERSION "\"/>\n    </properties>\n";
       if (f.specErrors)
-        xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"check\">\n      <error message=\"the spec has errors\">" +
-               xmlEscape(f.diagnostics) + "</error>\n    </testcase>\n";
+        xml += "    <testcase classname=\"" + xmlEscape(f.path) +
+               "\" name=\"check\">\n      <error message=\"the spec has errors\">" + xmlEscapeLines(f.diagnostics) +
+               "</error>\n    </testcase>\n";
       for (const ExpectResult &r : f.results) {
         xml += "    <testcase classname=\"" + xmlEscape(f.path) + "\" name=\"line " +
                std::to_string(r.decl->range.begin.line) + ": " + xmlEscape(r.decl->text) + "\">";
@@ -263,7 +304,9 @@ int testCommand(const std::vector<std::string> &args) {
              {"expected", r.expectedText},
              {"source", r.decl->source}});
     doc["expectations"] = list;
-    if (!writeFileAtomically(jsonPath, doc.dump(2) + "\n", error)) {
+    // File names need not be UTF-8; JSON strings must be.
+    if (!writeFileAtomically(jsonPath, doc.dump(2, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n",
+                             error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }

@@ -7,6 +7,7 @@
 
 #include "FixedStep.h"
 #include "Fuse.h"
+#include "RunSettings.h"
 #include "Simulate.h"
 #include "StandaloneModel.h"
 
@@ -334,6 +335,8 @@ int saltpan_model_advance(saltpan_model *model, double seconds) {
   double ratio = seconds / model->model.protocol.step;
   if (!std::isfinite(ratio) || ratio < 0 || std::fabs(ratio - std::round(ratio)) > 1e-9 * std::max(ratio, 1.0))
     return refuse(model, "advance needs a time that is a whole, non-negative number of steps");
+  if (ratio > maxTimingCount) // beyond a long's exact range for lround, and days of stepping
+    return refuse(model, "advance needs at most 1e12 steps at once");
   return saltpan_model_step(model, std::lround(ratio));
 }
 

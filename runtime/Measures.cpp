@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 namespace saltpan::measures {
 
@@ -56,8 +57,16 @@ std::optional<double> ofTrace(const std::string &name, const std::string &record
   }
   double scale = model.probes[model.findProbe(recorded)].scale;
   std::vector<double> values(t.time.size());
-  for (size_t i = 0; i < t.time.size(); ++i)
+  for (size_t i = 0; i < t.time.size(); ++i) {
     values[i] = t.at(i, column) / scale; // back to SI
+    // NaN compares false with everything, so peaks, crossings and means would skip it silently.
+    if (!std::isfinite(values[i])) {
+      char buf[96];
+      std::snprintf(buf, sizeof buf, "is not a finite number (%g) at %.6g ms", t.at(i, column), t.time[i] * 1e3);
+      why = "'" + recorded + "' " + buf;
+      return std::nullopt;
+    }
+  }
   double threshold = std::isnan(argument) ? 0.0 : argument;
   if (name == "spike_count" || name == "firing_rate" || name == "first_spike" || name == "last_interval") {
     auto spikes = spikeTimes(t.time, values, threshold);

@@ -229,6 +229,12 @@ private:
   // Whether an adaptive step's error estimate can drive the step control; otherwise records
   // why the run stops (a state gone bad, an infinite estimate, or too many steps).
   static constexpr long maxSteps = 100000000;
+  // Recorded samples after t = 0: rounded up, so a duration that is not a whole number of
+  // intervals still ends at the duration (the last target is clipped to it).
+  static long adaptiveRecordCount(const ir::Protocol &proto) {
+    double ratio = proto.duration / proto.every;
+    return std::lround(std::ceil(ratio - 1e-9 * ratio));
+  }
   bool stepUsable(double err, const std::vector<double> &ynew, double t, double step) {
     if (!std::isfinite(err)) {
       healthy(ynew, t + step);
@@ -346,7 +352,7 @@ private:
     std::vector<double> f0(n), f1(n), k1(n), k2(n), tmp(n), ynew(n), jac(n * n), a(n * n), scratch(out_.size());
     double t = 0, h = proto.step;
     long recordIndex = 0;
-    long recordCount = std::lround(proto.duration / proto.every);
+    long recordCount = adaptiveRecordCount(proto); // the last sample lands on the duration
     evaluate(y_.data(), t, out_.data());
     applyClamps(t);
     record(t);
@@ -418,7 +424,7 @@ private:
     std::vector<double> k1(n), k2(n), k3(n), k4(n), k5(n), k6(n), k7(n), tmp(n), ynew(n), scratch(out_.size());
     double t = 0, h = proto.step;
     long recordIndex = 0;
-    long recordCount = std::lround(proto.duration / proto.every);
+    long recordCount = adaptiveRecordCount(proto); // the last sample lands on the duration
     evaluate(y_.data(), t, out_.data());
     applyClamps(t);
     record(t);

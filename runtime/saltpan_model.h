@@ -72,7 +72,7 @@ SALTPAN_MODEL_API double saltpan_model_step_size(const saltpan_model *model);
 /** Takes `count` steps (count >= 0). Fails, and refuses further steps until reset, when a state
  *  becomes NaN or infinite or a potential leaves +-2 V; the state is then the failing one. */
 SALTPAN_MODEL_API int saltpan_model_step(saltpan_model *model, long count);
-/** Advances by `seconds`, which must be a whole number of steps (within 1e-9 relative). */
+/** Advances by `seconds`, which must be a whole number of steps (within 1e-9 relative), at most 1e12. */
 SALTPAN_MODEL_API int saltpan_model_advance(saltpan_model *model, double seconds);
 
 #ifdef __cplusplus

@@ -69,6 +69,7 @@ int main(int argc, char **argv) {
   expect(saltpan_model_set_parameter(a, parameter, NAN) == -1, "a NaN value is refused");
   expect(saltpan_model_step(a, -1) == -1, "a negative step count is refused");
   expect(saltpan_model_advance(a, saltpan_model_step_size(a) * 0.5) == -1, "half a step is refused");
+  expect(saltpan_model_advance(a, 1e30) == -1, "an advance of more than 1e12 steps is refused");
   expect(isnan(saltpan_model_state(a, saltpan_model_state_count(a))), "no state past the last");
   expect(saltpan_model_time(a) == 0, "still at time 0 after refusals");
 

@@ -79,18 +79,18 @@ PYEOF
 
 # ---- lane independence: the same parameter value gives the same bits in any lane, beside any
 # neighbours (one of them a point whose run fails) ----
-values() { # values NAME WIDTH LIST: the capacitance list, in uF/cm2
+values() { # values NAME WIDTH LIST: the leak reversal list, in mV
   local name=$1 width=$2 list=$3
   expect_rc "$name" 0 sweep --progress none --lanes "$width" --threads 1 \
-    --values "axon.capacitance=$(echo "$list" | sed 's|,|uF/cm2,|g; s|$|uF/cm2|')" \
+    --values "axon.SquidLeak1952.reversal=$(echo "$list" | sed 's|,|mV,|g; s|$|mV|')" \
     --measure "short: spike_count(axon.V)" --measure "short: firing_rate(axon.V)" \
     --measure "short: peak(axon.V)" --measure "short: mean(axon.V)" -o "$TMP/$name.csv" "$TMP/small.saltpan"
 }
 for w in "${widths[@]}"; do
-  values "fwd$w" "$w" "0.8,0.9,1,1.1,1.2"
-  values "rev$w" "$w" "1.2,1.1,1,0.9,0.8"
-  values "one$w" "$w" "1"
-  values "mix$w" "$w" "-1,1.2,-1,-1,0.8,1,-1,0.9,1.1"
+  values "fwd$w" "$w" "-60,-57,-54.387,-52,-50"
+  values "rev$w" "$w" "-50,-52,-54.387,-57,-60"
+  values "one$w" "$w" "-54.387"
+  values "mix$w" "$w" "1e7,-50,1e7,1e7,-60,-54.387,1e7,-57,-52"
   "$PY" - "$TMP"/{fwd,rev,one,mix}"$w".csv <<'PYEOF' || fail "lanes $w: a point's numbers depend on its lane"
 import csv, sys
 by_value = {}
@@ -98,14 +98,14 @@ for path in sys.argv[1:]:
     rows = list(csv.reader(open(path, encoding="utf-8", newline="")))[1:]
     for row in rows:
         value, measures, failure = row[1], row[2:-1], row[-1]
-        if value == "-1":
+        if value == "1e+07":
             assert failure.startswith("short: the run failed"), row
             continue
         assert failure == "", row
         if value in by_value:
             assert by_value[value] == measures, (path, value, by_value[value], measures)
         by_value[value] = measures
-assert sorted(by_value) == ["0.8", "0.9", "1", "1.1", "1.2"], sorted(by_value)
+assert sorted(by_value) == ["-50", "-52", "-54.387", "-57", "-60"], sorted(by_value)
 PYEOF
 done
 

@@ -107,8 +107,8 @@ assert [int((v - 60) // 24) for v in values] == [0, 1, 2, 3, 4], values
 PYEOF
 
 # ---- failed points: reported in the failure column, exit 0 ----
-# A negative capacitance makes V run away in the lanes; a stiff leak breaks RK4 (scalar path).
-expect_rc failed 0 sweep --values "axon.capacitance=1uF/cm2,-1uF/cm2" --measure "short: spike_count(axon.V)" \
+# A leak reversal of 10 kV drives V beyond 2 V in the lanes; a stiff leak breaks RK4 (scalar path).
+expect_rc failed 0 sweep --values "axon.SquidLeak1952.reversal=-54.387mV,1e7mV" --measure "short: spike_count(axon.V)" \
   -o "$TMP/failed.csv" "$TMP/small.saltpan"
 expect_grep failed err "2 points, 1 failed"
 "$PY" - "$TMP/failed.csv" <<'PYEOF' || fail "failed: the failure column is wrong"

@@ -168,3 +168,10 @@ TEST_CASE("renderJson: a file name that is not UTF-8 still gives a JSON document
   REQUIRE_NOTHROW(nlohmann::json::parse(text));
   CHECK(nlohmann::json::parse(text)["errors"] == 1);
 }
+
+TEST_CASE("renderText: control characters and bytes that are not UTF-8 are shown escaped", "[diag]") {
+  // A terminal must not obey an escape sequence quoted from a spec or a file name.
+  Diagnostic d{Severity::Error, {}, "cannot find 'a\x1b[2Jb\x07\xff\xc2\x9b.saltpan'", {}};
+  CHECK(renderText(d) == "saltpan: error: cannot find 'a\\x1b[2Jb\\x07\\xff\\u009b.saltpan'\n");
+  CHECK(escapeControls("tab\there \xc2\xb5m") == "tab\\x09here \xc2\xb5m"); // µ stays
+}
