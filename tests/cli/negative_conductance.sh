@@ -15,6 +15,6 @@ sets=(--set axon.SquidSodium1952.density=0mS/cm2 --set axon.SquidPotassium1952.d
 expect_rc zero 0 run --protocol quiet "${sets[@]}" "$TMP/passive.saltpan"
 expect_rc negative 64 run --protocol quiet "${sets[@]}" --set axon.SquidLeak1952.density=-0.01mS/cm2 \
   "$TMP/passive.saltpan"
-expect_grep negative err "saltpan: the density 'axon.SquidLeak1952.density' cannot be negative"
+expect_grep negative err "saltpan: error: the density 'axon.SquidLeak1952.density' cannot be negative"
 [ -s "$TMP/negative.out" ] && fail "negative: wrote a trace although refused"
 finish

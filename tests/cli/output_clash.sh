@@ -30,10 +30,10 @@ expect_grep hardlink err "-o 'alias' is the same file as the spec"
 cmp -s myspec myspec.orig || fail "build: the spec was replaced"
 
 # run: -o and --plot naming one file, however spelled; -o naming the spec.
-expect_rc plotclash 64 run spec.saltpan -o x.csv --plot x.csv
-expect_grep plotclash err "^saltpan: error: --plot 'x\.csv' and -o 'x\.csv' are the same file"
-expect_rc plotspelled 64 run spec.saltpan -o x.csv --plot "$TMP/./x.csv"
-[ -e x.csv ] && fail "plotclash: an output was written"
+expect_rc plotclash 64 run spec.saltpan -o x.svg --plot x.svg
+expect_grep plotclash err "^saltpan: error: --plot 'x\.svg' and -o 'x\.svg' are the same file"
+expect_rc plotspelled 64 run spec.saltpan -o x.svg --plot "$TMP/./x.svg"
+[ -e x.svg ] && fail "plotclash: an output was written"
 expect_rc runspec 64 run spec.saltpan -o spec.saltpan
 expect_grep runspec err "-o 'spec\.saltpan' is the same file as the spec 'spec\.saltpan'"
 expect_rc methods 64 methods spec.saltpan -o ./spec.saltpan
