@@ -22,7 +22,7 @@ namespace fs = std::filesystem;
 
 // Loading follows uses recursively; this bound keeps it far from the end of the stack, also
 // under AddressSanitizer, whose frames are larger.
-constexpr size_t maxModuleDepth = 256;
+constexpr size_t maxModuleDepth = 64; // each level is a deep load frame: safe under ASan in 1 MiB
 
 class Loader {
 public:

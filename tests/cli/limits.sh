@@ -129,9 +129,9 @@ module_chain "$TMP/chain" 20000
 small_stack modules check "$TMP/chain/m0.saltpan"
 no_crash modules
 [ "$rc" -eq 65 ] || fail "modules: exited $rc, expected 65"
-expect_grep modules err 'm[0-9]+.saltpan:1:5: error: modules use each other more than 256 deep here'
-module_chain "$TMP/chain_ok" 250
+expect_grep modules err 'm[0-9]+.saltpan:1:5: error: modules use each other more than 64 deep here'
+module_chain "$TMP/chain_ok" 60
 small_stack modules_ok check "$TMP/chain_ok/m0.saltpan"
-[ "$rc" -eq 0 ] || fail "modules_ok: a chain of 250 modules exited $rc, expected 0"
+[ "$rc" -eq 0 ] || fail "modules_ok: a chain of 60 modules exited $rc, expected 0"
 
 finish
