@@ -5,14 +5,7 @@ source "$(dirname "$0")/lib/common.bash"
 
 cd "$TMP"
 clean_spec myspec
-clean_spec spec.saltpan
-cat >>spec.saltpan <<'SPEC'
-protocol short {
-  method exponential_euler step 25 us
-  duration 2 ms
-  record soma.V every 0.5 ms
-}
-SPEC
+short_run_spec spec.saltpan
 cp spec.saltpan myspec
 cp myspec myspec.orig
 cp spec.saltpan spec.orig

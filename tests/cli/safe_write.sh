@@ -5,14 +5,7 @@
 source "$(dirname "$0")/lib/common.bash"
 
 cd "$TMP"
-clean_spec spec.saltpan
-cat >>spec.saltpan <<'SPEC'
-protocol short {
-  method exponential_euler step 25 us
-  duration 2 ms
-  record soma.V every 0.5 ms
-}
-SPEC
+short_run_spec spec.saltpan
 
 mkfifo fifo
 expect_rc fifo 64 run spec.saltpan -o fifo

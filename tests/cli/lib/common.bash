@@ -90,6 +90,18 @@ channel KGated {
 SPEC
 }
 
+# short_run_spec FILE: the clean cell with a 2 ms protocol, for tests of what a run writes.
+short_run_spec() {
+  clean_spec "$1"
+  cat >>"$1" <<'SPEC'
+protocol short {
+  method exponential_euler step 25 us
+  duration 2 ms
+  record soma.V every 0.5 ms
+}
+SPEC
+}
+
 # warning_spec FILE: the same cell without its impermeant anions: warnings, no errors.
 warning_spec() {
   clean_spec "$1"
