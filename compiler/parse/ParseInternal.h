@@ -1,7 +1,7 @@
 // ParseInternal.h - shared between the files of compiler/parse/ only.
 #pragma once
 #include "../AST.h"
-#include "../Diagnostics.h"
+#include "Diagnostics.h"
 
 #include <SaltpanLexer.h>
 #include <SaltpanParser.h>

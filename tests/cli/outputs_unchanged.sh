@@ -96,7 +96,12 @@ if len(a) != len(b) or a[0] != b[0]:
     sys.exit(f"{sys.argv[2]}: rows or header differ")
 for ra, rb in zip(a[1:], b[1:]):
     for x, y in zip(ra, rb):
-        x, y = float(x), float(y)
+        try:
+            x, y = float(x), float(y)
+        except ValueError:  # a text field (a label, or empty for "no spike") must match exactly
+            if x != y:
+                sys.exit(f"{sys.argv[2]}: {x!r} != {y!r}")
+            continue
         if abs(x - y) > 1e-9 * max(1.0, abs(x), abs(y)):
             sys.exit(f"{sys.argv[2]}: {x!r} != {y!r}")
 EOF

@@ -1,4 +1,4 @@
-# safe_write.sh - every output goes through one routine (runtime/SafeWrite.h): a device, FIFO or
+# safe_write.sh - every output goes through one routine (support/SafeWrite.h): a device, FIFO or
 # directory is refused rather than replaced by a regular file (no hang on a FIFO), '-' is
 # standard output, an existing output keeps its mode, and a link at the destination is
 # replaced, never written through.

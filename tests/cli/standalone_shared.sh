@@ -11,7 +11,7 @@ command -v cc >/dev/null || { echo "FAIL: no C compiler 'cc'" >&2; exit 1; }
 mkdir "$TMP/lib"
 expect_rc build_squid 0 build "$SQUID" --shared -o "$TMP/lib/libsquid.so"
 expect_rc build_tide 0 build "$TIDE" --shared -o "$TMP/lib/libtide.so"
-cmp -s "$TMP/lib/saltpan_model.h" "$SRC/runtime/saltpan_model.h" || fail "saltpan_model.h was not copied beside the library"
+cmp -s "$TMP/lib/saltpan_model.h" "$SRC/standalone/saltpan_model.h" || fail "saltpan_model.h was not copied beside the library"
 
 # Only the C interface is exported: no runtime, libstdc++ or LLVM symbols leak out.
 others=$(nm -D --defined-only "$TMP/lib/libsquid.so" | awk '{print $3}' | grep -v '^saltpan_model_' || true)

@@ -1,4 +1,4 @@
-// SafeWrite.tests.cpp - the one routine every output is written through (runtime/SafeWrite.h):
+// SafeWrite.tests.cpp - the one routine every output is written through (support/SafeWrite.h):
 // atomic replacement, no link followed, no device replaced, mode kept, no temporary left by
 // SIGTERM; the output clash checks; the names refused for the linker.
 #include "SafeWrite.h"

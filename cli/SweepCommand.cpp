@@ -4,6 +4,7 @@
 #include "Version.h"
 
 #include "Diagnostics.h"
+#include "JIT.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
 #include "Shard.h"
@@ -11,9 +12,6 @@
 #include "SweepRun.h"
 #include "SweepSupport.h"
 #include "TraceOutput.h"
-#ifdef SALTPAN_HAVE_JIT
-#include "JIT.h"
-#endif
 
 #include <cmath>
 #include <cstdio>
@@ -274,11 +272,11 @@ int sweepCommand(const std::vector<std::string> &args) {
   sweep::setUpTable(table, plan.points, shard);
 
   int threads = o.threads > 0 ? o.threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  SweepEngine engine = o.engine == "scalar" ? SweepEngine::Scalar
-                       : o.engine == "interpreter" ? SweepEngine::Interpreter : SweepEngine::Batched;
+  SweepEngine engine = o.engine == "scalar"        ? SweepEngine::Scalar
+                       : o.engine == "interpreter" ? SweepEngine::Interpreter
+                                                   : SweepEngine::Batched;
   LaneCompiler compile;
   int lanes = o.lanes;
-#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   if (engine != SweepEngine::Interpreter) {
     std::string jitError;
@@ -295,7 +293,6 @@ int sweepCommand(const std::vector<std::string> &args) {
       return width == 1 ? jit->compile(k, error) : jit->compileLanes(k, width, error);
     };
   }
-#endif
   SweepEvaluator evaluator(c, plan, engine, compile, lanes, threads);
   std::string error;
   if (!evaluator.ready(error)) {

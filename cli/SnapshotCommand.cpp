@@ -3,13 +3,11 @@
 #include "Commands.h"
 #include "Version.h"
 
-#include "Lower.h"
-#include "Pipeline.h"
-#include "ModelHash.h"
-#include "Run.h"
-#ifdef SALTPAN_HAVE_JIT
 #include "JIT.h"
-#endif
+#include "Lower.h"
+#include "ModelHash.h"
+#include "Pipeline.h"
+#include "Run.h"
 
 #include <cstdio>
 #include <filesystem>
@@ -75,7 +73,6 @@ int snapshotCommand(const std::vector<std::string> &args) {
   if (c.diags.errorCount() > 0)
     return SpecErrors;
   KernelCompiler compile;
-#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   if (engine == "jit")
     compile = [&jit](const ir::Kernel &k, std::string &error) -> KernelFn {
@@ -83,7 +80,6 @@ int snapshotCommand(const std::vector<std::string> &args) {
         jit = JIT::create(error);
       return jit ? jit->compile(k, error) : nullptr;
     };
-#endif
   std::filesystem::path spec(file);
   size_t written = 0;
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
@@ -102,8 +98,8 @@ int snapshotCommand(const std::vector<std::string> &args) {
     }
     const Trace &t = run.trace;
     char buf[160];
-    std::string text = "# saltpan " + std::string(SALTPAN_VERSION) + " snapshot of model " + (model.name.empty() ? "(unnamed)" : model.name) +
-                       ", protocol " + p->name + "\n";
+    std::string text = "# saltpan " + std::string(SALTPAN_VERSION) + " snapshot of model " +
+                       (model.name.empty() ? "(unnamed)" : model.name) + ", protocol " + p->name + "\n";
     std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n",
                   ir::methodName(model.protocol.method), model.protocol.step * 1e3, model.protocol.duration * 1e3);
     text += buf;
@@ -128,8 +124,8 @@ int snapshotCommand(const std::vector<std::string> &args) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
-    std::fprintf(stderr, "wrote %s (%zu samples of %zu %s)\n", out.string().c_str(), t.time.size(),
-                 t.columns(), t.columns() == 1 ? "quantity" : "quantities");
+    std::fprintf(stderr, "wrote %s (%zu samples of %zu %s)\n", out.string().c_str(), t.time.size(), t.columns(),
+                 t.columns() == 1 ? "quantity" : "quantities");
     ++written;
   }
   if (written == 0) {

@@ -3,15 +3,13 @@
 #include "Version.h"
 
 #include "Fuse.h"
+#include "JIT.h"
 #include "Lower.h"
 #include "Pipeline.h"
-#include "SpecFiles.h"
 #include "Show.h"
+#include "SpecFiles.h"
 #include "TraceOutput.h"
 #include "parse/Parse.h"
-#ifdef SALTPAN_HAVE_JIT
-#include "JIT.h"
-#endif
 
 #include <cstdio>
 #include <filesystem>
@@ -196,7 +194,6 @@ int checkCommand(const std::vector<std::string> &args) {
         std::fputs(ir::dump(model).c_str(), stdout);
         return Ok;
       }
-#ifdef SALTPAN_HAVE_JIT
       std::string jitError;
       auto jit = JIT::create(jitError);
       std::optional<ir::Kernel> fused;
@@ -208,10 +205,6 @@ int checkCommand(const std::vector<std::string> &args) {
       }
       std::fputs(jit->lastIR().c_str(), stdout);
       return Ok;
-#else
-      std::fprintf(stderr, "saltpan: this build has no JIT\n");
-      return Internal;
-#endif
     }
     auto module = parse(*file, c.diags);
     printDiagnostics(c.diags, useColour(o.color));

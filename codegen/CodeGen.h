@@ -27,8 +27,8 @@ namespace saltpan {
 /// once: slot i of lane l is at index i * lanes + l of y, p and out; t is shared. Every
 /// operation is elementwise (math functions are glibc's libmvec variants _ZGVbN2v_exp,
 /// _ZGVdN4v_exp, _ZGVeN8v_exp, ...), so no lane's value depends on another lane.
-std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
-                                      const std::string &functionName, int lanes = 1);
+std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx, const std::string &functionName,
+                                      int lanes = 1);
 
 /// The new pass manager's O3 for `machine`, with scalar libm only (libmvec's vector functions
 /// differ from scalar ones in the last bits). The JIT and `saltpan build` both use it, so a

@@ -1,6 +1,6 @@
 // StandaloneModel.h - the model compiled into an executable or shared library by `saltpan build`.
 //
-// `saltpan build` emits an object file (compiler/EmitObject.cpp) that defines the symbols named
+// `saltpan build` emits an object file (codegen/EmitObject.cpp) that defines the symbols named
 // here: the model bundle (ModelFile.h) as JSON text, and a table of the kernels it compiled,
 // each with its fingerprint. The runtime rebuilds the models from the text and finds a
 // kernel's native code by fingerprint, so a kernel it did not expect is an error, never a

@@ -74,7 +74,8 @@ int main(int argc, char **argv) {
   const char *local = std::getenv("OMPI_COMM_WORLD_LOCAL_SIZE");
   if (!threadsGiven && local && std::atoi(local) > 0) {
     unsigned cores = std::max(1u, std::thread::hardware_concurrency());
-    mine.insert(mine.end(), {"--threads", std::to_string(std::max(1u, cores / static_cast<unsigned>(std::atoi(local))))});
+    mine.insert(mine.end(),
+                {"--threads", std::to_string(std::max(1u, cores / static_cast<unsigned>(std::atoi(local))))});
   }
   mine.insert(mine.end(), {"--shard", std::to_string(rank) + "/" + std::to_string(size), "-o", shardFile(rank)});
   if (rank != 0)

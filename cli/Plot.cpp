@@ -156,8 +156,10 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
        num(height) + "\" viewBox=\"0 0 " + num(width) + " " + num(height) + "\">\n";
   s += "<title>" + escape(title) + "</title>\n";
   s += "<rect x=\"0\" y=\"0\" width=\"" + num(width) + "\" height=\"" + num(height) + "\" fill=\"#ffffff\"/>\n";
-  s += "<text x=\"" + num(width / 2) + "\" y=\"30\" text-anchor=\"middle\" font-family=\"sans-serif\" "
-       "font-size=\"17\" font-weight=\"bold\">" + escape(title) + "</text>\n";
+  s += "<text x=\"" + num(width / 2) +
+       "\" y=\"30\" text-anchor=\"middle\" font-family=\"sans-serif\" "
+       "font-size=\"17\" font-weight=\"bold\">" +
+       escape(title) + "</text>\n";
 
   if (trace.columns() == 0 || rows == 0)
     s += "<text x=\"" + num(width / 2) + "\" y=\"" + num(top + panelHeight / 2) +
@@ -188,18 +190,18 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
       s += "<line x1=\"" + num(x) + "\" y1=\"" + num(y1) + "\" x2=\"" + num(x) + "\" y2=\"" + num(y1 + 5) +
            "\" stroke=\"#000000\" stroke-width=\"1\"/>\n";
       s += "<text x=\"" + num(x) + "\" y=\"" + num(y1 + 19) +
-           "\" text-anchor=\"middle\" font-family=\"sans-serif\" font-size=\"12\">" +
-           escape(tickLabel(t, xAxis.step)) + "</text>\n";
+           "\" text-anchor=\"middle\" font-family=\"sans-serif\" font-size=\"12\">" + escape(tickLabel(t, xAxis.step)) +
+           "</text>\n";
     }
     for (double v : yAxis.ticks) {
       double y = yPixel(v);
-      s += "<line x1=\"" + num(left) + "\" y1=\"" + num(y) + "\" x2=\"" + num(left + plotWidth) + "\" y2=\"" +
-           num(y) + "\" stroke=\"#e4e4e4\" stroke-width=\"1\"/>\n";
+      s += "<line x1=\"" + num(left) + "\" y1=\"" + num(y) + "\" x2=\"" + num(left + plotWidth) + "\" y2=\"" + num(y) +
+           "\" stroke=\"#e4e4e4\" stroke-width=\"1\"/>\n";
       s += "<line x1=\"" + num(left - 5) + "\" y1=\"" + num(y) + "\" x2=\"" + num(left) + "\" y2=\"" + num(y) +
            "\" stroke=\"#000000\" stroke-width=\"1\"/>\n";
       s += "<text x=\"" + num(left - 8) + "\" y=\"" + num(y + 4) +
-           "\" text-anchor=\"end\" font-family=\"sans-serif\" font-size=\"12\">" +
-           escape(tickLabel(v, yAxis.step)) + "</text>\n";
+           "\" text-anchor=\"end\" font-family=\"sans-serif\" font-size=\"12\">" + escape(tickLabel(v, yAxis.step)) +
+           "</text>\n";
     }
     // Frame (the axes).
     s += "<rect x=\"" + num(left) + "\" y=\"" + num(y0) + "\" width=\"" + num(plotWidth) + "\" height=\"" +
@@ -209,8 +211,8 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
     for (size_t c : cols)
       names.push_back(trace.names[c]);
     double yMid = (y0 + y1) / 2;
-    s += "<text x=\"" + num(24) + "\" y=\"" + num(yMid) + "\" transform=\"rotate(-90 " + num(24) + " " +
-         num(yMid) + ")\" text-anchor=\"middle\" font-family=\"sans-serif\" font-size=\"13\">" +
+    s += "<text x=\"" + num(24) + "\" y=\"" + num(yMid) + "\" transform=\"rotate(-90 " + num(24) + " " + num(yMid) +
+         ")\" text-anchor=\"middle\" font-family=\"sans-serif\" font-size=\"13\">" +
          escape(quantityTitle(units[p], names)) + "</text>\n";
     s += "<text x=\"" + num(left + plotWidth / 2) + "\" y=\"" + num(y1 + 40) +
          "\" text-anchor=\"middle\" font-family=\"sans-serif\" font-size=\"13\">time (ms)</text>\n";
@@ -218,8 +220,8 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
     // Curves, clipped to the frame; with more samples than pixels, each pixel column keeps
     // its first, lowest, highest and last sample, so spikes survive.
     std::string clip = "clip" + std::to_string(p);
-    s += "<clipPath id=\"" + clip + "\"><rect x=\"" + num(left) + "\" y=\"" + num(y0) + "\" width=\"" +
-         num(plotWidth) + "\" height=\"" + num(panelHeight) + "\"/></clipPath>\n";
+    s += "<clipPath id=\"" + clip + "\"><rect x=\"" + num(left) + "\" y=\"" + num(y0) + "\" width=\"" + num(plotWidth) +
+         "\" height=\"" + num(panelHeight) + "\"/></clipPath>\n";
     for (size_t k = 0; k < cols.size(); ++k) {
       size_t c = cols[k];
       const char *stroke = palette[(colour + k) % (sizeof palette / sizeof *palette)];
@@ -270,8 +272,8 @@ std::string plotSvg(const Trace &trace, const std::string &title) {
       double ly = y0 + 14 + static_cast<double>(k) * 20, lx = left + plotWidth + 16;
       s += "<line x1=\"" + num(lx) + "\" y1=\"" + num(ly) + "\" x2=\"" + num(lx + 24) + "\" y2=\"" + num(ly) +
            "\" stroke=\"" + stroke + "\" stroke-width=\"2\"/>\n";
-      s += "<text x=\"" + num(lx + 30) + "\" y=\"" + num(ly + 4) +
-           "\" font-family=\"sans-serif\" font-size=\"12\">" + escape(trace.names[c]) + "</text>\n";
+      s += "<text x=\"" + num(lx + 30) + "\" y=\"" + num(ly + 4) + "\" font-family=\"sans-serif\" font-size=\"12\">" +
+           escape(trace.names[c]) + "</text>\n";
     }
     colour += cols.size();
     s += "</g>\n";

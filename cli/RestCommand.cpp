@@ -76,8 +76,9 @@ std::string eigenvalueText(std::complex<double> e) {
 
 std::string text(const std::string &modelName, const std::vector<rest::CompartmentRest> &result,
                  const rest::Options &o) {
-  std::string out = "model " + (modelName.empty() ? "(unnamed)" : modelName) + ": steady states from " + format("%g", o.from * 1e3) + " to " +
-                    format("%g", o.to * 1e3) + " mV (gates at their steady values, no injected current)\n";
+  std::string out = "model " + (modelName.empty() ? "(unnamed)" : modelName) + ": steady states from " +
+                    format("%g", o.from * 1e3) + " to " + format("%g", o.to * 1e3) +
+                    " mV (gates at their steady values, no injected current)\n";
   for (const rest::CompartmentRest &c : result) {
     size_t n = c.steadyStates.size();
     out += "\ncompartment " + c.name + ": " + std::to_string(n) + " steady state" + (n == 1 ? "" : "s") + "\n";
@@ -228,8 +229,9 @@ int restCommand(const std::vector<std::string> &args) {
   std::fputs(out.c_str(), stdout);
   if (!model.pools.empty()) {
     bool one = model.pools.size() == 1;
-    std::fprintf(stderr, "note: %zu dynamic concentration%s held at %s initial value%s; they are not part of the "
-                         "steady states or their stability\n",
+    std::fprintf(stderr,
+                 "note: %zu dynamic concentration%s held at %s initial value%s; they are not part of the "
+                 "steady states or their stability\n",
                  model.pools.size(), one ? " is" : "s are", one ? "its" : "their", one ? "" : "s");
   }
   return Ok;

@@ -125,9 +125,8 @@ const std::vector<Symbol> &symbols() {
 
 const std::vector<std::pair<const char *, double>> &prefixes() {
   static const std::vector<std::pair<const char *, double>> table = {
-      {"f", 1e-15}, {"p", 1e-12}, {"n", 1e-9},      {"u", 1e-6}, {"\u00B5", 1e-6},
-      {"\u03BC", 1e-6}, {"m", 1e-3}, {"c", 1e-2}, {"d", 1e-1}, {"k", 1e3},
-      {"M", 1e6},   {"G", 1e9},
+      {"f", 1e-15}, {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\u00B5", 1e-6}, {"\u03BC", 1e-6},
+      {"m", 1e-3},  {"c", 1e-2},  {"d", 1e-1}, {"k", 1e3},  {"M", 1e6},       {"G", 1e9},
   };
   return table;
 }

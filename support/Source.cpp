@@ -54,8 +54,7 @@ std::optional<size_t> findInvalidUtf8(std::string_view text) {
   return std::nullopt;
 }
 
-SourceFile::SourceFile(std::string path, std::string text)
-    : path_(std::move(path)), text_(std::move(text)) {
+SourceFile::SourceFile(std::string path, std::string text) : path_(std::move(path)), text_(std::move(text)) {
   lineStarts_.push_back(0);
   for (uint32_t i = 0; i < text_.size(); ++i) {
     auto c = static_cast<unsigned char>(text_[i]);

@@ -188,8 +188,8 @@ llvm::Value *KernelEmitter::emitNode(const ir::Node &n) {
 
 } // namespace
 
-std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
-                                      const std::string &functionName, int lanes) {
+std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx, const std::string &functionName,
+                                      int lanes) {
   auto module = std::make_unique<llvm::Module>(functionName, ctx);
   if (lanes != 1 && lanes != 2 && lanes != 4 && lanes != 8)
     return nullptr;

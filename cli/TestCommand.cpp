@@ -4,13 +4,11 @@
 #include "Version.h"
 
 #include "Expect.h"
+#include "JIT.h"
 #include "ModelHash.h"
 #include "Pipeline.h"
 #include "Source.h"
 #include "SpecFiles.h"
-#ifdef SALTPAN_HAVE_JIT
-#include "JIT.h"
-#endif
 
 #include <algorithm>
 #include <atomic>
@@ -63,9 +61,8 @@ struct FileResult {
   bool specErrors = false;
   std::vector<ExpectResult> results;
   std::unique_ptr<Compilation> compilation; // keeps results' declarations alive
-  std::string hash; // the model hash of the file, for reports
+  std::string hash;                         // the model hash of the file, for reports
 };
-
 
 void runFile(FileResult &f, bool jit) {
   f.compilation = std::make_unique<Compilation>();
@@ -81,7 +78,6 @@ void runFile(FileResult &f, bool jit) {
     return;
   f.hash = modelHash(c.program);
   KernelCompiler compile;
-#ifdef SALTPAN_HAVE_JIT
   std::shared_ptr<JIT> engine;
   if (jit)
     compile = [&engine](const ir::Kernel &k, std::string &error) -> KernelFn {
@@ -89,9 +85,6 @@ void runFile(FileResult &f, bool jit) {
         engine = JIT::create(error);
       return engine ? engine->compile(k, error) : nullptr;
     };
-#else
-  (void)jit;
-#endif
   f.results = runExpectations(c, compile);
 }
 
@@ -315,8 +308,9 @@ int testCommand(const std::vector<std::string> &args) {
     return SpecErrors;
   // CI that tests nothing must not pass by accident.
   if (passed + failed == 0 && !allowEmpty) {
-    std::fprintf(stderr, "saltpan: error: no expectations in %zu spec file%s: nothing was tested (--allow-empty "
-                         "accepts this)\n",
+    std::fprintf(stderr,
+                 "saltpan: error: no expectations in %zu spec file%s: nothing was tested (--allow-empty "
+                 "accepts this)\n",
                  files.size(), files.size() == 1 ? "" : "s");
     return ExpectationsFailed;
   }

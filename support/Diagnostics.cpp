@@ -22,12 +22,9 @@ Diagnostic &DiagnosticEngine::warning(SourceRange range, std::string message) {
 
 const char *severityName(Severity s) {
   switch (s) {
-  case Severity::Error:
-    return "error";
-  case Severity::Warning:
-    return "warning";
-  case Severity::Note:
-    return "note";
+  case Severity::Error: return "error";
+  case Severity::Warning: return "warning";
+  case Severity::Note: return "note";
   }
   return "error";
 }
@@ -56,8 +53,7 @@ std::string displayLine(std::string_view line) {
   return cleaned;
 }
 
-void renderOne(std::string &out, Severity s, const SourceRange &range, const std::string &message,
-               bool colour) {
+void renderOne(std::string &out, Severity s, const SourceRange &range, const std::string &message, bool colour) {
   const char *bold = colour ? "\033[1m" : "";
   const char *reset = colour ? "\033[0m" : "";
   const char *tint = "";

@@ -17,8 +17,8 @@ struct RunOutcome {
   Trace trace;
   SimulationFailure failure;
   SimulationStats stats;
-  bool native = false;     // the kernel ran as native code
-  std::string compileError; // why it did not, when a compiler was given
+  bool native = false;                  // the kernel ran as native code
+  std::string compileError;             // why it did not, when a compiler was given
   double compileMs = 0, simulateMs = 0; // wall time of the two phases
 };
 

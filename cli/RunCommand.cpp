@@ -3,6 +3,7 @@
 #include "Commands.h"
 #include "Version.h"
 
+#include "JIT.h"
 #include "Lower.h"
 #include "Measures.h"
 #include "ModelHash.h"
@@ -12,9 +13,6 @@
 #include "RunSettings.h"
 #include "Simulate.h"
 #include "TraceOutput.h"
-#ifdef SALTPAN_HAVE_JIT
-#include "JIT.h"
-#endif
 
 #include <algorithm>
 #include <cctype>
@@ -161,8 +159,7 @@ int runCommand(const std::vector<std::string> &args) {
   std::vector<double> params = model.params;
   std::string settingError;
   for (const std::string &s : o.sets)
-    if (!applyParameterSetting(model, s, params, "`saltpan check --emit ir " + o.file + "` lists them", settingError))
-    {
+    if (!applyParameterSetting(model, s, params, "`saltpan check --emit ir " + o.file + "` lists them", settingError)) {
       std::fprintf(stderr, "saltpan: error: %s\n", settingError.c_str());
       return Usage;
     }
@@ -170,7 +167,6 @@ int runCommand(const std::vector<std::string> &args) {
     return usage(settingError);
 
   KernelCompiler compile;
-#ifdef SALTPAN_HAVE_JIT
   std::unique_ptr<JIT> jit;
   std::string jitError;
   if (o.engine == "jit") {
@@ -181,10 +177,6 @@ int runCommand(const std::vector<std::string> &args) {
     }
     compile = [&jit](const ir::Kernel &k, std::string &error) { return jit->compile(k, error); };
   }
-#else
-  if (o.engine == "jit")
-    std::fprintf(stderr, "saltpan: note: this build has no JIT; using the reference interpreter\n");
-#endif
   RunOutcome outcome = runModel(model, params, compile);
   if (compile && !outcome.native) {
     std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", outcome.compileError.c_str());
@@ -203,8 +195,8 @@ int runCommand(const std::vector<std::string> &args) {
     // Named so that it cannot be taken for a finished run's output.
     std::filesystem::path out(o.output);
     std::string partial = (out.parent_path() / (out.stem().string() + ".partial" + out.extension().string())).string();
-    std::string text = isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION)
-                                            : traceCsv(trace);
+    std::string text =
+        isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION) : traceCsv(trace);
     std::string error;
     if (!writeFileAtomically(partial, text, error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
@@ -227,7 +219,8 @@ int runCommand(const std::vector<std::string> &args) {
   }
   if (!o.plot.empty()) {
     std::string error;
-    if (!writeFileAtomically(o.plot, plotSvg(trace, (model.name.empty() ? "" : model.name + ": ") + model.protocol.name), error)) {
+    if (!writeFileAtomically(
+            o.plot, plotSvg(trace, (model.name.empty() ? "" : model.name + ": ") + model.protocol.name), error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
       return CannotWrite;
     }
@@ -260,9 +253,9 @@ int runCommand(const std::vector<std::string> &args) {
       if (rate)
         std::fprintf(stderr, ", %.3f Hz", *rate);
     }
-    std::fprintf(stderr, "; peak %.3f mV, minimum %.3f mV, mean %.3f mV, final %.3f mV\n",
-                 measures::peak(values) * 1e3, measures::minimum(values) * 1e3,
-                 measures::mean(trace.time, values) * 1e3, values.empty() ? NAN : values.back() * 1e3);
+    std::fprintf(stderr, "; peak %.3f mV, minimum %.3f mV, mean %.3f mV, final %.3f mV\n", measures::peak(values) * 1e3,
+                 measures::minimum(values) * 1e3, measures::mean(trace.time, values) * 1e3,
+                 values.empty() ? NAN : values.back() * 1e3);
   }
   return Ok;
 }
