@@ -2,8 +2,6 @@
 #include "Commands.h"
 #include "Version.h"
 
-#include "Fuse.h"
-#include "JIT.h"
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Show.h"
@@ -32,9 +30,20 @@ options:
   --format text|json      diagnostics as text on stderr (default) or one JSON document on stdout
   --warnings-as-errors    fail (exit 65) when there are warnings
   --color auto|always|never  colour text diagnostics (default: auto, when stderr is a terminal)
-  --emit tokens|ast|ir|llvm  print the token stream, the syntax tree, the lowered IR (states,
-                          parameters, kernel) of FILE's first protocol, or its kernel's optimised
-                          LLVM IR as the JIT compiles it, instead of checking
+  --emit STAGE            print one stage's output for FILE instead of checking:
+                            tokens    the token stream
+                            ast       the syntax tree
+                            resolved  every module's tree with what each name is bound to
+                                      and each expression's dimension
+                            values    every value computed before lowering, in SI
+                            ir        the lowered IR (states, parameters, probes, kernel)
+                            fused-ir  the fused step kernels a run compiles
+                            llvm      LLVM IR of every kernel a run compiles, optimised
+                                      for this CPU as the JIT compiles it
+                            llvm-unoptimised  the same before the optimiser
+  --protocol NAME         with --emit ir, fused-ir, llvm or llvm-unoptimised: the protocol
+                          whose model is shown (default: FILE's first; the model without
+                          stimuli when there is none)
   --version               print the version
   --help                  show this help
 
@@ -65,6 +74,7 @@ struct Options {
   std::vector<std::string> files;
   std::string format = "text";
   std::string emit;
+  std::string protocol; // --emit of a lowered stage: which protocol's model
   std::string output;
   std::string color = "auto";
   bool werror = false;
@@ -95,8 +105,12 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
       if (o.color != "auto" && o.color != "always" && o.color != "never")
         return usageError("--color must be 'auto', 'always' or 'never'", help);
     } else if (allowCheckOptions && value("--emit", o.emit)) {
-      if (o.emit != "tokens" && o.emit != "ast" && o.emit != "ir" && o.emit != "llvm")
-        return usageError("--emit must be 'tokens', 'ast', 'ir' or 'llvm', not '" + o.emit + "'", help);
+      if (!isEmitStage(o.emit))
+        return usageError("--emit must be one of tokens, ast, resolved, values, ir, fused-ir, llvm or "
+                          "llvm-unoptimised, not '" +
+                              o.emit + "'",
+                          help);
+    } else if (allowCheckOptions && value("--protocol", o.protocol)) {
     } else if (!allowCheckOptions && value("-o", o.output)) {
     } else if (a == "--") {
       o.files.insert(o.files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
@@ -148,6 +162,19 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
   return false;
 }
 
+const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &name, const std::string &file) {
+  auto all = protocols(c.program);
+  for (const ast::ProtocolDecl *p : all)
+    if (p->name == name)
+      return p;
+  std::string names;
+  for (const ast::ProtocolDecl *p : all)
+    names += (names.empty() ? "" : ", ") + p->name;
+  std::fprintf(stderr, "saltpan: error: there is no protocol '%s' in '%s'%s%s\n", name.c_str(), file.c_str(),
+               names.empty() ? "" : "; it has ", names.c_str());
+  return nullptr;
+}
+
 std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources) {
   std::vector<NamedFile> named, inputs;
   for (const NamedFile &f : outputs)
@@ -163,55 +190,12 @@ int checkCommand(const std::vector<std::string> &args) {
   Options o;
   if (int code = parseOptions(args, o, checkHelp, true); code >= 0)
     return code;
+  if (!o.protocol.empty() && o.emit.empty())
+    return usageError("--protocol chooses what --emit shows; give --emit too", checkHelp);
   if (!o.emit.empty()) {
     if (o.files.size() != 1)
       return usageError("--emit takes exactly one file", checkHelp);
-    Compilation c;
-    std::string error;
-    const SourceFile *file = c.sources.load(o.files[0], error);
-    if (!file) {
-      std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", o.files[0].c_str(), error.c_str());
-      return SpecErrors;
-    }
-    if (o.emit == "tokens") {
-      std::fputs(dumpTokens(*file).c_str(), stdout);
-      return Ok;
-    }
-    if (o.emit == "ir" || o.emit == "llvm") {
-      Compilation full;
-      compileFile(o.files[0], full);
-      ir::Model model;
-      bool ok = full.diags.errorCount() == 0;
-      if (ok) {
-        auto all = protocols(full.program);
-        ok = lowerModel(full.program, full.model, full.evaluator, all.empty() ? nullptr : all.front(), full.diags,
-                        model);
-      }
-      printDiagnostics(full.diags, useColour(o.color));
-      if (!ok)
-        return SpecErrors;
-      if (o.emit == "ir") {
-        std::fputs(ir::dump(model).c_str(), stdout);
-        return Ok;
-      }
-      std::string jitError;
-      auto jit = JIT::create(jitError);
-      std::optional<ir::Kernel> fused;
-      if (model.protocol.method == ir::Method::ExponentialEuler)
-        fused = fuseExponentialEuler(model, model.protocol.step);
-      if (!jit || !jit->compile(fused ? *fused : model.kernel, jitError)) {
-        std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", jitError.c_str());
-        return Internal;
-      }
-      std::fputs(jit->lastIR().c_str(), stdout);
-      return Ok;
-    }
-    auto module = parse(*file, c.diags);
-    printDiagnostics(c.diags, useColour(o.color));
-    if (!module)
-      return SpecErrors;
-    std::fputs(ast::dump(*module).c_str(), stdout);
-    return c.diags.errorCount() ? SpecErrors : Ok;
+    return emitStage(o.emit, o.protocol, o.files[0], useColour(o.color));
   }
   // A directory stands for every spec below it, as for `saltpan test`; files are read as given.
   std::vector<std::string> files;

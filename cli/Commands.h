@@ -7,7 +7,11 @@
 
 namespace saltpan {
 class SourceManager;
+struct Compilation;
+namespace ast {
+struct ProtocolDecl;
 }
+} // namespace saltpan
 
 namespace saltpan::cli {
 
@@ -30,6 +34,17 @@ int buildCommand(const std::vector<std::string> &args);
 /// If args[i] is "NAME=VALUE", or "NAME" followed by a value, stores the value (moving i
 /// past it) and returns true.
 bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
+/// The stages `saltpan check --emit` prints, in pipeline order.
+inline constexpr const char *emitStages[] = {"tokens", "ast",      "resolved", "values",
+                                             "ir",     "fused-ir", "llvm",     "llvm-unoptimised"};
+bool isEmitStage(const std::string &stage);
+/// Prints one stage's output for `path` (for the lowered stages, of protocol `protocol`, or of
+/// the first one when empty); returns the exit code.
+int emitStage(const std::string &stage, const std::string &protocol, const std::string &path, bool colour);
+/// The protocol of `c` named `name`, or nullptr after printing an error that lists the
+/// protocols `file` has (exit status Usage).
+const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &name, const std::string &file);
+
 /// findOutputClash (SafeWrite.h) against every file `sources` read: "" when the outputs (empty
 /// paths skipped) may be written, else the message to refuse them with (exit status Usage).
 std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources);

@@ -129,17 +129,8 @@ int runCommand(const std::vector<std::string> &args) {
   auto all = protocols(c.program);
   const ast::ProtocolDecl *protocol = nullptr;
   if (!o.protocol.empty()) {
-    for (auto *p : all)
-      if (p->name == o.protocol)
-        protocol = p;
-    if (!protocol) {
-      std::string names;
-      for (auto *p : all)
-        names += (names.empty() ? "" : ", ") + p->name;
-      std::fprintf(stderr, "saltpan: error: there is no protocol '%s' in '%s'%s%s\n", o.protocol.c_str(),
-                   o.file.c_str(), names.empty() ? "" : "; it has ", names.c_str());
+    if (!(protocol = namedProtocol(c, o.protocol, o.file)))
       return Usage;
-    }
   } else if (all.size() == 1) {
     protocol = all.front();
   } else if (all.size() > 1) {

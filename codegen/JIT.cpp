@@ -28,7 +28,7 @@ struct JIT::Impl {
   std::unique_ptr<llvm::TargetMachine> machine; // drives O3's cost model; LLJIT has its own copy
   llvm::Triple triple;
   unsigned counter = 0;
-  std::string lastIR;
+  std::string lastIR, lastUnoptimisedIR;
 };
 
 namespace {
@@ -174,6 +174,10 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
       fn->addFnAttr("prefer-vector-width", bits);
     }
   }
+  impl.lastUnoptimisedIR.clear();
+  llvm::raw_string_ostream rawStream(impl.lastUnoptimisedIR);
+  module->print(rawStream, nullptr);
+  rawStream.flush();
   optimizeModule(*module, *impl.machine, impl.triple);
 
   impl.lastIR.clear();
@@ -194,5 +198,6 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
 }
 
 const std::string &JIT::lastIR() const { return impl_->lastIR; }
+const std::string &JIT::lastUnoptimisedIR() const { return impl_->lastUnoptimisedIR; }
 
 } // namespace saltpan

@@ -25,6 +25,9 @@ public:
   /// The optimised LLVM IR of the last compiled kernel (for `--emit llvm`); the Nth compile
   /// (from 0) defines `saltpan_kernel_N`.
   const std::string &lastIR() const;
+  /// The same module as codegen wrote it, before the optimiser (`--emit llvm-unoptimised`):
+  /// what saltpan controls, the same on every CPU but for the target attributes.
+  const std::string &lastUnoptimisedIR() const;
 
 private:
   struct Impl;

@@ -447,6 +447,8 @@ template <typename T, typename U> const T *dyn_cast(const U *p) {
 }
 
 /// Stable, diff-friendly dump of a module (saltpan check --emit ast).
-std::string dump(const Module &m);
+std::string dump(const Module &m, bool resolved = false);
+/// Every module with what Resolve bound each name to and each expression's dimension.
+std::string dumpResolved(const Program &program);
 
 } // namespace saltpan::ast

@@ -1,5 +1,6 @@
 // ASTDump.cpp - the stable text dump behind `saltpan check --emit ast`, and node spellings.
 #include "AST.h"
+#include "Source.h"
 
 #include <cstdio>
 #include <sstream>
@@ -69,6 +70,23 @@ std::string at(const SourceRange &r) {
 class Dumper {
 public:
   std::ostringstream out;
+  bool resolved = false; // add what Resolve bound and what CheckUnits found (--emit resolved)
+  const SourceFile *file = nullptr;
+
+  // Where a declaration is: its line and column, with its file when it is another module.
+  std::string where(const Decl &d) const {
+    const SourceLoc &l = d.range.begin;
+    std::string place = std::to_string(l.line) + ":" + std::to_string(l.column);
+    return "<" + (l.file && l.file != file ? l.file->path() + ":" : std::string()) + place + ">";
+  }
+  std::string bound(const Decl *d) const {
+    return resolved ? (d ? " -> " + std::string(describe(d->kind)) + " " + d->name + " " + where(*d) : " -> ?") : "";
+  }
+  std::string typed(const Expr &e) const {
+    if (!resolved)
+      return "";
+    return e.type.known ? " : " + formatDimension(e.type.dim) : " : ?";
+  }
 
   void line(int depth, const std::string &text) { out << std::string(2 * depth, ' ') << text << "\n"; }
 
@@ -80,21 +98,35 @@ public:
     case ExprKind::Number: {
       auto *n = static_cast<const NumberExpr *>(e);
       line(depth, head + "Number " + num(n->written) + (n->unitText.empty() ? "" : " " + n->unitText) + " = " +
-                      num(n->value) + " SI " + at(e->range));
+                      num(n->value) + " SI " + at(e->range) + typed(*e));
       break;
     }
-    case ExprKind::Name:
-      line(depth, head + "Name " + static_cast<const NameExpr *>(e)->name + " " + at(e->range));
+    case ExprKind::Name: {
+      auto *n = static_cast<const NameExpr *>(e);
+      std::string binding;
+      if (resolved)
+        binding = n->builtin == Builtin::MembranePotential ? " -> membrane potential"
+                  : n->builtin == Builtin::Temperature     ? " -> temperature"
+                  : n->paramIndex >= 0                     ? " -> parameter " + std::to_string(n->paramIndex)
+                                                           : bound(n->target);
+      line(depth, head + "Name " + n->name + " " + at(e->range) + binding + typed(*e));
       break;
+    }
     case ExprKind::Concentration: {
       auto *c = static_cast<const ConcentrationExpr *>(e);
       line(depth, head + "Concentration [" + c->ion + "]" + (c->side == Side::Inside ? "in" : "out") + " " +
-                      at(e->range));
+                      at(e->range) + bound(c->target) + typed(*e));
       break;
     }
     case ExprKind::Call: {
       auto *c = static_cast<const CallExpr *>(e);
-      line(depth, head + "Call " + c->callee + " " + at(e->range));
+      std::string binding;
+      if (resolved)
+        binding = c->reversalIon            ? " -> reversal of" + bound(c->reversalIon)
+                  : c->target               ? bound(c->target)
+                  : c->math != MathFn::None ? " -> built-in"
+                                            : " -> ?";
+      line(depth, head + "Call " + c->callee + " " + at(e->range) + binding + typed(*e));
       for (auto &a : c->args)
         expr(depth + 1, "arg", a.get());
       break;
@@ -102,20 +134,20 @@ public:
     case ExprKind::Unary: {
       auto *u = static_cast<const UnaryExpr *>(e);
       const char *op = u->op == UnaryOp::Negate ? "-" : u->op == UnaryOp::Plus ? "+" : "not";
-      line(depth, head + "Unary " + op + " " + at(e->range));
+      line(depth, head + "Unary " + op + " " + at(e->range) + typed(*e));
       expr(depth + 1, "operand", u->operand.get());
       break;
     }
     case ExprKind::Binary: {
       auto *b = static_cast<const BinaryExpr *>(e);
-      line(depth, head + "Binary " + spelling(b->op) + " " + at(e->range));
+      line(depth, head + "Binary " + spelling(b->op) + " " + at(e->range) + typed(*e));
       expr(depth + 1, "lhs", b->lhs.get());
       expr(depth + 1, "rhs", b->rhs.get());
       break;
     }
     case ExprKind::If: {
       auto *i = static_cast<const IfExpr *>(e);
-      line(depth, head + "If " + at(e->range));
+      line(depth, head + "If " + at(e->range) + typed(*e));
       expr(depth + 1, "cond", i->cond.get());
       expr(depth + 1, "then", i->thenExpr.get());
       expr(depth + 1, "else", i->elseExpr.get());
@@ -177,13 +209,13 @@ public:
       expr(1, "capacitance", c.capacitance.get());
       expr(1, "initial V", c.initialV.get());
       if (!c.bathName.empty())
-        line(1, "outside " + c.bathName);
+        line(1, "outside " + c.bathName + bound(c.bath));
       if (c.hasInside) {
         line(1, "inside");
         solution(2, c.inside);
       }
       for (auto &m : c.membrane) {
-        line(1, "membrane " + m.name);
+        line(1, "membrane " + m.name + bound(m.target));
         expr(2, "density", m.density.get());
         expr(2, "reversal", m.reversal.get());
       }
@@ -239,7 +271,8 @@ public:
     }
     case DeclKind::Expect: {
       auto &e = static_cast<const ExpectDecl &>(d);
-      line(1, "measure " + (e.protocol.empty() ? "" : e.protocol + ": ") + e.measure);
+      line(1, "measure " + (e.protocol.empty() ? "" : e.protocol + ": ") + e.measure +
+                  (e.protocol.empty() ? "" : bound(e.target)));
       for (auto &a : e.args) {
         if (!a.path.empty())
           line(2, "arg " + a.path);
@@ -263,7 +296,7 @@ public:
       expr(1, "duration", p.duration.get());
       static const char *shapes[] = {"step", "ramp", "pulses"};
       for (auto &i : p.injections) {
-        line(1, std::string("inject ") + i.compartment + " " + shapes[static_cast<int>(i.shape)]);
+        line(1, std::string("inject ") + i.compartment + " " + shapes[static_cast<int>(i.shape)] + bound(i.target));
         expr(2, "amplitude", i.amplitude.get());
         expr(2, "to amplitude", i.amplitudeEnd.get());
         expr(2, "width", i.width.get());
@@ -282,11 +315,20 @@ public:
 
 } // namespace
 
-std::string dump(const Module &m) {
+std::string dump(const Module &m, bool resolved) {
   Dumper d;
+  d.resolved = resolved;
+  d.file = m.file;
   for (auto &decl : m.decls)
     d.decl(*decl);
   return d.out.str();
+}
+
+std::string dumpResolved(const Program &program) {
+  std::string out;
+  for (auto &m : program.modules)
+    out += "module " + m->name + "\n" + dump(*m, true);
+  return out;
 }
 
 } // namespace saltpan::ast

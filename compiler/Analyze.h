@@ -9,6 +9,7 @@
 
 #include <map>
 #include <optional>
+#include <string>
 #include <vector>
 
 namespace saltpan {
@@ -82,6 +83,9 @@ struct Model {
 /// Fills `model`. Returns false if it reported an error.
 bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator,
              DiagnosticEngine &diags, Model &model);
+
+/// Every computed value in SI, one per line (saltpan check --emit values).
+std::string dumpValues(const Model &model);
 
 /// Valence of an ion as an integer, or nullopt if it is not a non-zero whole number.
 std::optional<int> integerValence(const ast::IonDecl &ion);

@@ -139,7 +139,14 @@ std::string dump(const Model &m) {
   const Protocol &p = m.protocol;
   out << "protocol " << (p.name.empty() ? "(none)" : p.name) << " method " << methodName(p.method) << " step "
       << num(p.step) << " duration " << num(p.duration) << " every " << num(p.every) << "\n";
-  const auto &nodes = m.kernel.nodes();
+  out << dumpKernel(m.kernel);
+  return out.str();
+}
+
+std::string dumpKernel(const Kernel &kernel) {
+  std::ostringstream out;
+  auto num = [](double v) { return shortestDecimal(v); };
+  const auto &nodes = kernel.nodes();
   for (size_t i = 0; i < nodes.size(); ++i) {
     const Node &n = nodes[i];
     out << "%" << i << " = " << opName(n.op);
@@ -154,8 +161,8 @@ std::string dump(const Model &m) {
         out << " %" << operand;
     out << "\n";
   }
-  for (size_t i = 0; i < m.kernel.outputs.size(); ++i)
-    out << "out" << i << " = %" << m.kernel.outputs[i] << "\n";
+  for (size_t i = 0; i < kernel.outputs.size(); ++i)
+    out << "out" << i << " = %" << kernel.outputs[i] << "\n";
   return out.str();
 }
 

@@ -139,5 +139,7 @@ struct Model {
 
 /// Text form of the IR (`saltpan check --emit ir`), stable enough to diff.
 std::string dump(const Model &m);
+/// A kernel's nodes and outputs alone, in the form dump() ends with.
+std::string dumpKernel(const Kernel &kernel);
 
 } // namespace saltpan::ir

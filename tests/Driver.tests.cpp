@@ -10,6 +10,7 @@
 // Every error and warning must be expected; notes only when a file expects one.
 #include "Pipeline.h"
 #include "parse/Parse.h"
+#include "unit/TestSupport.h"
 
 #include <catch2/catch.hpp>
 
@@ -191,7 +192,7 @@ TEST_CASE("golden AST dumps", "[golden]") {
       std::string actual = ast::dump(*module);
       fs::path expectedPath = p;
       expectedPath.replace_extension(".ast.expected");
-      if (const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN"); update && std::string(update) == "1") {
+      if (testing::updateGoldenFiles()) {
         std::ofstream(expectedPath, std::ios::binary) << actual;
         SUCCEED("updated " << expectedPath);
       } else {

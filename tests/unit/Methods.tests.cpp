@@ -59,8 +59,7 @@ void checkGolden(const std::string &spec, const std::string &name, MethodsFormat
   std::string actual = normaliseVersion(methodsOf(spec, format));
   std::string path = std::string(SALTPAN_TESTS_DIR) + "/golden/methods/" + name +
                      (format == MethodsFormat::Latex ? ".tex.expected" : ".md.expected");
-  const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN");
-  if (update && std::string(update) == "1") {
+  if (testing::updateGoldenFiles()) {
     std::filesystem::create_directories(std::filesystem::path(path).parent_path());
     std::ofstream(path, std::ios::binary) << actual;
     WARN("updated " << path);

@@ -4,6 +4,7 @@
 
 #include <catch2/catch.hpp>
 
+#include <cstdlib>
 #include <fstream>
 #include <memory>
 #include <sstream>
@@ -51,6 +52,12 @@ inline bool hasError(const Compilation &c, const std::string &text) {
     if (d.severity == Severity::Error && d.message.find(text) != std::string::npos)
       return true;
   return false;
+}
+
+/// Whether golden files are to be rewritten instead of compared: SALTPAN_UPDATE_GOLDEN=1 only.
+inline bool updateGoldenFiles() {
+  const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN");
+  return update && std::string(update) == "1";
 }
 
 /// The whole file at `path`, or "" when it cannot be read.
