@@ -6,6 +6,8 @@ set -euo pipefail
 build=${1:-build}
 src=$(cd "$(dirname "$0")/../.." && pwd)
 saltpan=$build/saltpan
+# In a build tree, build what the benchmark runs (benchmarks are not in the default build).
+if [ -f "$build/CMakeCache.txt" ]; then cmake --build "$build" --target benchmarks >/dev/null; fi
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
 # 1 s simulated at 10 us with exponential Euler, V recorded every 1 ms (recording kept small).

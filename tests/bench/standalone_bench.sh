@@ -6,6 +6,8 @@ set -euo pipefail
 build=${1:-build}
 src=$(cd "$(dirname "$0")/../.." && pwd)
 saltpan=$build/saltpan
+# In a build tree, build what the benchmark runs (benchmarks are not in the default build).
+if [ -f "$build/CMakeCache.txt" ]; then cmake --build "$build" --target benchmarks >/dev/null; fi
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
 sed -e 's/method rk4 step 10 us/method exponential_euler step 10 us/' -e 's/from 0 ms to 200 ms/from 0 ms to 1000 ms/' \

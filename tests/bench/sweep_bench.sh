@@ -9,6 +9,8 @@ set -euo pipefail
 build=${1:-build}
 src=$(cd "$(dirname "$0")/../.." && pwd)
 saltpan=$build/saltpan
+# In a build tree, build what the benchmark runs (benchmarks are not in the default build).
+if [ -f "$build/CMakeCache.txt" ]; then cmake --build "$build" --target benchmarks >/dev/null; fi
 spec=$src/specs/reference/squid_axon_1952_sweeps.saltpan
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
