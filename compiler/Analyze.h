@@ -84,6 +84,8 @@ struct Model {
 bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator,
              DiagnosticEngine &diags, Model &model);
 
+/// How a reversal potential was found, as `show` and `--emit values` print it ("nernst", ...).
+const char *reversalSpelling(ReversalKind kind);
 /// Every computed value in SI, one per line (saltpan check --emit values).
 std::string dumpValues(const Model &model);
 

@@ -51,16 +51,6 @@ double densityScale(DensityKind k) {
   return 1;
 }
 
-const char *reversalSource(ReversalKind k) {
-  switch (k) {
-  case ReversalKind::Nernst: return "nernst";
-  case ReversalKind::Ghk: return "ghk";
-  case ReversalKind::Written: return "written";
-  case ReversalKind::None: break;
-  }
-  return "none";
-}
-
 bool isDynamic(const CompartmentValues &c, const IonDecl *ion) {
   return std::any_of(c.pools.begin(), c.pools.end(), [ion](auto &p) { return p.ion == ion; });
 }
@@ -96,7 +86,7 @@ json compartmentJson(const CompartmentValues &c, const Model &m, const rest::Com
                {"density_unit", densityUnit(p.densityKind)}};
     if (p.channel) {
       entry["reversal_mV"] = optional(p.reversal, 1e3);
-      entry["reversal_from"] = reversalSource(p.reversalKind);
+      entry["reversal_from"] = reversalSpelling(p.reversalKind);
     }
     membrane.push_back(entry);
   }
@@ -227,7 +217,7 @@ std::string showText(const Compilation &c, const std::vector<rest::CompartmentRe
       std::string s = "  " + p.entry->name + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
                       densityUnit(p.densityKind);
       if (p.channel)
-        s += ", reversal " + num("%.3f mV", p.reversal, 1e3) + " (" + reversalSource(p.reversalKind) + ")";
+        s += ", reversal " + num("%.3f mV", p.reversal, 1e3) + " (" + reversalSpelling(p.reversalKind) + ")";
       line(s);
     }
   }

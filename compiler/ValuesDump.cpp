@@ -25,16 +25,6 @@ const char *densityUnit(DensityKind k) {
   return "";
 }
 
-const char *reversalKind(ReversalKind k) {
-  switch (k) {
-  case ReversalKind::Nernst: return "nernst";
-  case ReversalKind::Ghk: return "ghk";
-  case ReversalKind::Written: return "written";
-  case ReversalKind::None: break;
-  }
-  return "none";
-}
-
 // Ions in the compartment's order (by name): the maps are keyed by pointer.
 void solution(std::ostringstream &out, const char *side, const SolutionValues &s,
               const std::vector<const ast::IonDecl *> &ions) {
@@ -47,6 +37,16 @@ void solution(std::ostringstream &out, const char *side, const SolutionValues &s
 }
 
 } // namespace
+
+const char *reversalSpelling(ReversalKind k) {
+  switch (k) {
+  case ReversalKind::Nernst: return "nernst";
+  case ReversalKind::Ghk: return "ghk";
+  case ReversalKind::Written: return "written";
+  case ReversalKind::None: break;
+  }
+  return "none";
+}
 
 std::string dumpValues(const Model &m) {
   std::ostringstream out;
@@ -67,7 +67,7 @@ std::string dumpValues(const Model &m) {
       const char *what = p.channel ? "channel" : "pump";
       std::string name = p.channel ? p.channel->name : p.pump ? p.pump->name : "?";
       out << "  " << what << " " << name << " density " << value(p.density, densityUnit(p.densityKind)) << " reversal "
-          << reversalKind(p.reversalKind) << " " << value(p.reversal, "V");
+          << reversalSpelling(p.reversalKind) << " " << value(p.reversal, "V");
       if (p.concentrationReversal && p.reversalKind == ReversalKind::Written)
         out << " (concentrations give " << shortestDecimal(*p.concentrationReversal) << " V)";
       out << "\n";
