@@ -39,7 +39,7 @@ namespace {
 
 class Analyzer {
 public:
-  Analyzer(const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags, Model &model)
+  Analyzer(const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags, AnalyzedModel &model)
       : symbols_(symbols), evaluator_(evaluator), diags_(diags), model_(model) {}
 
   void run(const Program &program) {
@@ -82,7 +82,7 @@ private:
   const SymbolTable &symbols_;
   Evaluator &evaluator_;
   DiagnosticEngine &diags_;
-  Model &model_;
+  AnalyzedModel &model_;
 
   std::optional<double> value(const Expr &e, const std::string &what, const EvalEnv &env = {}) {
     if (!e.type.known)
@@ -325,7 +325,7 @@ private:
 } // namespace
 
 bool analyze(const Program &program, const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags,
-             Model &model) {
+             AnalyzedModel &model) {
   size_t before = diags.errorCount();
   Analyzer(symbols, evaluator, diags, model).run(program);
   return diags.errorCount() == before;

@@ -69,7 +69,7 @@ struct PumpValues {
   int netOutwardCharge = 0; // elementary charges moved outward per cycle
 };
 
-struct Model {
+struct AnalyzedModel {
   const ast::ModelDecl *header = nullptr;
   const ast::TemperatureDecl *temperatureDecl = nullptr;
   std::optional<double> temperature; // K
@@ -81,13 +81,13 @@ struct Model {
 };
 
 /// Fills `model`. Returns false if it reported an error.
-bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator,
-             DiagnosticEngine &diags, Model &model);
+bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags,
+             AnalyzedModel &model);
 
 /// How a reversal potential was found, as `show` and `--emit values` print it ("nernst", ...).
 const char *reversalSpelling(ReversalKind kind);
 /// Every computed value in SI, one per line (saltpan check --emit values).
-std::string dumpValues(const Model &model);
+std::string dumpValues(const AnalyzedModel &model);
 
 /// Valence of an ion as an integer, or nullopt if it is not a non-zero whole number.
 std::optional<int> integerValence(const ast::IonDecl &ion);

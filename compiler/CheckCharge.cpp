@@ -27,7 +27,7 @@ std::string signedMillimolar(double v) {
 
 class ChargeChecker {
 public:
-  ChargeChecker(const Model &model, DiagnosticEngine &diags) : model_(model), diags_(diags) {}
+  ChargeChecker(const AnalyzedModel &model, DiagnosticEngine &diags) : model_(model), diags_(diags) {}
 
   void run(const Program &program) {
     for (auto &m : program.modules)
@@ -51,7 +51,7 @@ public:
   }
 
 private:
-  const Model &model_;
+  const AnalyzedModel &model_;
   DiagnosticEngine &diags_;
 
   void valence(const IonDecl &ion) {
@@ -199,7 +199,7 @@ private:
 
 } // namespace
 
-bool checkCharge(const Program &program, const Model &model, DiagnosticEngine &diags) {
+bool checkCharge(const Program &program, const AnalyzedModel &model, DiagnosticEngine &diags) {
   size_t before = diags.errorCount();
   ChargeChecker(model, diags).run(program);
   return diags.errorCount() == before;

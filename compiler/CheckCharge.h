@@ -7,8 +7,8 @@
 
 namespace saltpan {
 class DiagnosticEngine;
-struct Model;
+struct AnalyzedModel;
 
 /// Returns false if it reported an error (warnings do not count).
-bool checkCharge(const ast::Program &program, const Model &model, DiagnosticEngine &diags);
+bool checkCharge(const ast::Program &program, const AnalyzedModel &model, DiagnosticEngine &diags);
 } // namespace saltpan

@@ -30,7 +30,7 @@ std::string mV(double volts) { return fmt("%.4g mV", volts * 1e3); }
 
 class PhysicsChecker {
 public:
-  PhysicsChecker(const Model &model, Evaluator &evaluator, DiagnosticEngine &diags)
+  PhysicsChecker(const AnalyzedModel &model, Evaluator &evaluator, DiagnosticEngine &diags)
       : model_(model), evaluator_(evaluator), diags_(diags) {}
 
   void run(const Program &program) {
@@ -48,7 +48,7 @@ public:
   }
 
 private:
-  const Model &model_;
+  const AnalyzedModel &model_;
   Evaluator &evaluator_;
   DiagnosticEngine &diags_;
 
@@ -299,7 +299,7 @@ private:
 
 } // namespace
 
-bool checkPhysics(const Program &program, const Model &model, Evaluator &evaluator, DiagnosticEngine &diags) {
+bool checkPhysics(const Program &program, const AnalyzedModel &model, Evaluator &evaluator, DiagnosticEngine &diags) {
   size_t before = diags.errorCount();
   PhysicsChecker(model, evaluator, diags).run(program);
   return diags.errorCount() == before;

@@ -10,8 +10,9 @@
 namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
-struct Model;
+struct AnalyzedModel;
 
 /// Returns false if it reported an error (warnings do not count).
-bool checkPhysics(const ast::Program &program, const Model &model, Evaluator &evaluator, DiagnosticEngine &diags);
+bool checkPhysics(const ast::Program &program, const AnalyzedModel &model, Evaluator &evaluator,
+                  DiagnosticEngine &diags);
 } // namespace saltpan

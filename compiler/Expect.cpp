@@ -151,7 +151,7 @@ std::string display(double si, const Dimension &d) {
   return u.name.empty() ? buf : std::string(buf) + " " + u.name;
 }
 
-const CompartmentValues *compartmentNamed(const Model &m, const std::string &name) {
+const CompartmentValues *compartmentNamed(const AnalyzedModel &m, const std::string &name) {
   for (const CompartmentValues &c : m.compartments)
     if (c.decl->name == name)
       return &c;
@@ -404,7 +404,7 @@ private:
 
   std::optional<double> value(const ExpectDecl &e, const MeasureSpec &spec, std::string &why) {
     std::string name = spec.name;
-    const Model &m = c_.model;
+    const AnalyzedModel &m = c_.model;
     if (name == "reversal") {
       auto *comp = compartmentNamed(m, e.args[1].path);
       auto *ion = dyn_cast<IonDecl>(c_.symbols.byName.at(e.args[0].path));

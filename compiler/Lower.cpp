@@ -42,7 +42,7 @@ struct Env {
 
 class Lowerer {
 public:
-  Lowerer(const Model &model, Evaluator &evaluator, DiagnosticEngine &diags, ir::Model &out)
+  Lowerer(const AnalyzedModel &model, Evaluator &evaluator, DiagnosticEngine &diags, ir::Model &out)
       : model_(model), evaluator_(evaluator), diags_(diags), out_(out), k_(out.kernel) {}
 
   bool run(const Program &program, const ProtocolDecl *protocol) {
@@ -69,7 +69,7 @@ public:
   }
 
 private:
-  const Model &model_;
+  const AnalyzedModel &model_;
   Evaluator &evaluator_;
   DiagnosticEngine &diags_;
   ir::Model &out_;
@@ -783,7 +783,7 @@ private:
 
 } // namespace
 
-bool lowerModel(const Program &program, const Model &model, Evaluator &evaluator, const ProtocolDecl *protocol,
+bool lowerModel(const Program &program, const AnalyzedModel &model, Evaluator &evaluator, const ProtocolDecl *protocol,
                 DiagnosticEngine &diags, ir::Model &out) {
   size_t before = diags.errorCount();
   bool ok = Lowerer(model, evaluator, diags, out).run(program, protocol);

@@ -12,11 +12,11 @@
 namespace saltpan {
 class DiagnosticEngine;
 class Evaluator;
-struct Model;
+struct AnalyzedModel;
 
 /// Lowers the model for `protocol` (nullptr: no stimulus, record every V). Returns false
 /// if it reported an error (a record target that does not exist, a missing initial V...).
-bool lowerModel(const ast::Program &program, const Model &model, Evaluator &evaluator,
+bool lowerModel(const ast::Program &program, const AnalyzedModel &model, Evaluator &evaluator,
                 const ast::ProtocolDecl *protocol, DiagnosticEngine &diags, ir::Model &out);
 
 /// Every protocol declared in the program, in order.

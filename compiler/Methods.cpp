@@ -553,7 +553,7 @@ public:
 
 private:
   Compilation &c_;
-  const Model &m_;
+  const AnalyzedModel &m_;
   MethodsOptions o_;
   Doc d_;
   struct Site {

@@ -3,7 +3,7 @@
 // Markdown or LaTeX text a modeller can paste into a paper and edit: temperature, sign
 // conventions, solutions and reversal potentials, compartments, channels with their gating
 // equations as LaTeX math, pumps, protocols and the integration method with references.
-// Reads Analyze's Model and the AST only; the output is deterministic.
+// Reads Analyze's AnalyzedModel and the AST only; the output is deterministic.
 #pragma once
 #include "AST.h"
 

@@ -20,7 +20,7 @@ struct Compilation {
   ast::Program program;
   SymbolTable symbols;
   Evaluator evaluator;
-  Model model;
+  AnalyzedModel model;
   std::map<const ast::ProtocolDecl *, ir::Model> lowered; // every protocol, lowered by check
   bool checked = false; // every stage ran without errors
 };

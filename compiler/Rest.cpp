@@ -375,7 +375,7 @@ std::vector<std::complex<double>> eigenvalues(std::vector<double> a, int n) {
   return w;
 }
 
-std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Model *analysis, const Options &o) {
+std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis, const Options &o) {
   std::vector<CompartmentRest> result;
   for (const ir::Compartment &comp : model.compartments) {
     CompartmentRest cr;

@@ -16,7 +16,7 @@
 #include <vector>
 
 namespace saltpan {
-struct Model;
+struct AnalyzedModel;
 
 namespace rest {
 
@@ -58,7 +58,7 @@ struct CompartmentRest {
 /// so with no injected current) in [options.from, options.to]. `analysis` (may be null)
 /// supplies the GHK resting potentials. Throws std::runtime_error when the eigenvalue
 /// iteration does not converge.
-std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Model *analysis,
+std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                               const Options &options = {});
 
 /// The eigenvalues of the n x n real matrix `a` (row-major): balancing, reduction to upper

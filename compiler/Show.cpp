@@ -67,7 +67,7 @@ const rest::CompartmentRest *steadyOf(const std::vector<rest::CompartmentRest> &
 // nothing else (gated or ohmic channels, pumps) carries current.
 bool ghkIsRest(const CompartmentValues &c) { return c.ghkRest && c.ghkChannels == c.placements.size(); }
 
-json compartmentJson(const CompartmentValues &c, const Model &m, const rest::CompartmentRest *steady) {
+json compartmentJson(const CompartmentValues &c, const AnalyzedModel &m, const rest::CompartmentRest *steady) {
   json ions = json::array();
   for (const IonDecl *ion : c.ions) {
     auto z = integerValence(*ion);
@@ -120,7 +120,7 @@ json compartmentJson(const CompartmentValues &c, const Model &m, const rest::Com
 } // namespace
 
 std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
-  const Model &m = c.model;
+  const AnalyzedModel &m = c.model;
   json doc;
   doc["tool"] = "saltpan";
   doc["version"] = SALTPAN_VERSION;
@@ -166,7 +166,7 @@ std::string num(const char *format, std::optional<double> v, double scale = 1) {
 } // namespace
 
 std::string showText(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
-  const Model &m = c.model;
+  const AnalyzedModel &m = c.model;
   std::string out;
   auto line = [&](const std::string &s) { out += s + "\n"; };
   line("model " + std::string(m.header ? m.header->name : "(unnamed)") +

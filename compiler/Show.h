@@ -1,4 +1,4 @@
-// Show.h - the resolved model as text or JSON (`saltpan show`): Analyze's Model, and the steady
+// Show.h - the resolved model as text or JSON (`saltpan show`): Analyze's AnalyzedModel, and the steady
 // states of each compartment (Rest.h) beside the GHK potential of its ungated permeabilities.
 #pragma once
 #include "Rest.h"

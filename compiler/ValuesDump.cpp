@@ -48,7 +48,7 @@ const char *reversalSpelling(ReversalKind k) {
   return "none";
 }
 
-std::string dumpValues(const Model &m) {
+std::string dumpValues(const AnalyzedModel &m) {
   std::ostringstream out;
   out << "temperature " << value(m.temperature, "K") << "\n";
   for (const CompartmentValues &c : m.compartments) {

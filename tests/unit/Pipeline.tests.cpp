@@ -76,7 +76,7 @@ TEST_CASE("the analysed model of a clean spec", "[pipeline]") {
   auto c = compile(cleanSpec);
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);
-  const Model &m = c->model;
+  const AnalyzedModel &m = c->model;
   REQUIRE(m.header);
   CHECK(m.header->name == "Pond");
   REQUIRE(m.temperature);
