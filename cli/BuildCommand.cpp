@@ -5,7 +5,7 @@
 #include "Version.h"
 
 #include "EmitObject.h"
-#include "Fuse.h"
+#include "KernelPlan.h"
 #include "Lower.h"
 #include "ModelFile.h"
 #include "ModelHash.h"
@@ -185,37 +185,22 @@ struct ScratchDirectory {
 };
 
 struct Kernels {
-  std::vector<ir::Kernel> owned; // fused kernels made here
+  std::vector<KernelPlan> plans; // they own the kernels
   std::vector<const ir::Kernel *> all;
-  std::set<uint64_t> seen;
-  void add(const ir::Kernel &k) {
-    if (seen.insert(kernelFingerprint(k)).second)
-      all.push_back(&k);
-  }
 };
 
-// Every kernel runModel (Run.cpp) and the C interface can ask for under any --every: the plain
-// one (steps that meet a stimulus edge take it), and for exponential Euler the fused step (and
-// its state-only form when there are no dynamic concentrations).
+// Every kernel a run (Run.cpp) and the C interface can ask for under any --duration and
+// --every: KernelPlan's kernels for a built model, each once.
 void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kernels) {
-  std::vector<const ir::Kernel *> plain;
-  for (const ir::Model *m : models) {
-    plain.push_back(&m->kernel);
-    std::optional<ir::Kernel> fused;
-    if (m->protocol.method == ir::Method::ExponentialEuler)
-      fused = fuseExponentialEuler(*m, m->protocol.step);
-    if (!fused)
-      continue;
-    kernels.owned.push_back(std::move(*fused));
-    if (m->pools.empty())
-      if (auto stateOnly = fuseExponentialEuler(*m, m->protocol.step, false))
-        kernels.owned.push_back(std::move(*stateOnly));
-  }
-  for (const ir::Kernel *k : plain)
-    kernels.add(*k);
-  // `owned` no longer grows, so pointers into it stay valid.
-  for (const ir::Kernel &k : kernels.owned)
-    kernels.add(k);
+  for (const ir::Model *m : models)
+    kernels.plans.push_back(planKernels(*m, KernelUse::Built));
+  // The model kernels first, then the fused ones, as the object's table has always listed them.
+  std::set<uint64_t> seen;
+  for (bool plain : {true, false})
+    for (const KernelPlan &plan : kernels.plans) // `plans` no longer grows: pointers stay valid
+      for (const KernelPlan::Entry &e : plan.entries())
+        if ((plan.plain && e.kernel == &*plan.plain) == plain && seen.insert(kernelFingerprint(*e.kernel)).second)
+          kernels.all.push_back(e.kernel);
 }
 
 // The root sweeps whose measures all come from protocol runs, planned as `saltpan sweep` plans

@@ -3,13 +3,15 @@
 #include "Commands.h"
 
 #include "FixedStep.h"
-#include "Fuse.h"
 #include "JIT.h"
+#include "KernelPlan.h"
 #include "Lower.h"
+#include "ModelFile.h"
 #include "Pipeline.h"
 #include "parse/Parse.h"
 
 #include <cstdio>
+#include <set>
 
 namespace saltpan::cli {
 
@@ -18,33 +20,6 @@ namespace {
 void printDiagnostics(const DiagnosticEngine &diags, bool colour) {
   for (const Diagnostic &d : diags.all())
     std::fputs(renderText(d, colour).c_str(), stderr);
-}
-
-struct NamedKernel {
-  std::string label;
-  const ir::Kernel *kernel;
-};
-
-// The kernels a run of `model` compiles, in the order it compiles them.
-std::vector<NamedKernel> runKernels(const ir::Model &model, std::vector<ir::Kernel> &storage, bool fusedOnly) {
-  storage.clear();
-  storage.reserve(2);
-  if (model.protocol.method == ir::Method::ExponentialEuler) {
-    if (auto fused = fuseExponentialEuler(model, model.protocol.step)) {
-      storage.push_back(std::move(*fused));
-      if (model.pools.empty() && model.protocol.every > model.protocol.step * 1.5)
-        if (auto stateOnly = fuseExponentialEuler(model, model.protocol.step, false))
-          storage.push_back(std::move(*stateOnly));
-    }
-  }
-  std::vector<NamedKernel> out;
-  if (!storage.empty())
-    out.push_back({"fused exponential Euler step (next state, then every output)", &storage[0]});
-  if (storage.size() > 1)
-    out.push_back({"fused exponential Euler step, next state only (steps between recordings)", &storage[1]});
-  if (!fusedOnly && (storage.empty() || StepGrid(model).meetsEvents()))
-    out.push_back({storage.empty() ? "model kernel" : "model kernel (steps that meet a stimulus edge)", &model.kernel});
-  return out;
 }
 
 bool clamped(const ir::Model &model) {
@@ -137,8 +112,18 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     std::fputs(ir::dump(*model).c_str(), stdout);
     return Ok;
   }
-  std::vector<ir::Kernel> storage;
-  std::vector<NamedKernel> kernels = runKernels(*model, storage, stage == "fused-ir");
+  // The kernels a run of the protocol compiles, in that order; for the fused IR also those a
+  // sweep steps its lanes with (their IR is the same at any lane count).
+  std::vector<KernelPlan> plans{planKernels(*model, KernelUse::Run)};
+  if (stage == "fused-ir")
+    plans.push_back(planKernels(*model, KernelUse::Lanes, 2));
+  std::vector<KernelPlan::Entry> kernels;
+  std::set<uint64_t> seen;
+  for (const KernelPlan &plan : plans)
+    for (const KernelPlan::Entry &e : plan.entries())
+      if ((stage != "fused-ir" || e.kernel != (plan.plain ? &*plan.plain : nullptr)) &&
+          seen.insert(kernelFingerprint(*e.kernel)).second)
+        kernels.push_back(e);
   if (stage == "fused-ir") {
     if (kernels.empty()) {
       std::fprintf(stderr,
@@ -147,7 +132,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
                    ir::methodName(model->protocol.method), clamped(*model) ? " with a voltage clamp" : "");
       return Usage;
     }
-    for (const NamedKernel &k : kernels)
+    for (const KernelPlan::Entry &k : kernels)
       std::printf("kernel %s\n%s", k.label.c_str(), ir::dumpKernel(*k.kernel).c_str());
     return Ok;
   }
@@ -157,7 +142,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
     return Internal;
   }
-  for (const NamedKernel &k : kernels) {
+  for (const KernelPlan::Entry &k : kernels) {
     if (!jit->compile(*k.kernel, error)) {
       std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
       return Internal;

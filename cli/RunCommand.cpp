@@ -166,7 +166,7 @@ int runCommand(const std::vector<std::string> &args) {
       std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", jitError.c_str());
       return Internal;
     }
-    compile = [&jit](const ir::Kernel &k, std::string &error) { return jit->compile(k, error); };
+    compile = [&jit](const ir::Kernel &k, int lanes, std::string &error) { return jit->compile(k, lanes, error); };
   }
   RunOutcome outcome = runModel(model, params, compile);
   if (compile && !outcome.native) {

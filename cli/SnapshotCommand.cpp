@@ -75,10 +75,10 @@ int snapshotCommand(const std::vector<std::string> &args) {
   KernelCompiler compile;
   std::unique_ptr<JIT> jit;
   if (engine == "jit")
-    compile = [&jit](const ir::Kernel &k, std::string &error) -> KernelFn {
+    compile = [&jit](const ir::Kernel &k, int lanes, std::string &error) -> KernelFn {
       if (!jit)
         jit = JIT::create(error);
-      return jit ? jit->compile(k, error) : nullptr;
+      return jit ? jit->compile(k, lanes, error) : nullptr;
     };
   std::filesystem::path spec(file);
   size_t written = 0;

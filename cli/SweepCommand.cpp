@@ -275,7 +275,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   SweepEngine engine = o.engine == "scalar"        ? SweepEngine::Scalar
                        : o.engine == "interpreter" ? SweepEngine::Interpreter
                                                    : SweepEngine::Batched;
-  LaneCompiler compile;
+  KernelCompiler compile;
   int lanes = o.lanes;
   std::unique_ptr<JIT> jit;
   if (engine != SweepEngine::Interpreter) {
@@ -289,9 +289,7 @@ int sweepCommand(const std::vector<std::string> &args) {
       return usage("this CPU's vectors hold at most " + std::to_string(jit->nativeLanes()) + " lanes");
     if (lanes == 0)
       lanes = jit->nativeLanes();
-    compile = [&jit](const ir::Kernel &k, int width, std::string &error) {
-      return width == 1 ? jit->compile(k, error) : jit->compileLanes(k, width, error);
-    };
+    compile = [&jit](const ir::Kernel &k, int width, std::string &error) { return jit->compile(k, width, error); };
   }
   SweepEvaluator evaluator(c, plan, engine, compile, lanes, threads);
   std::string error;

@@ -80,10 +80,10 @@ void runFile(FileResult &f, bool jit) {
   KernelCompiler compile;
   std::shared_ptr<JIT> engine;
   if (jit)
-    compile = [&engine](const ir::Kernel &k, std::string &error) -> KernelFn {
+    compile = [&engine](const ir::Kernel &k, int lanes, std::string &error) -> KernelFn {
       if (!engine)
         engine = JIT::create(error);
-      return engine ? engine->compile(k, error) : nullptr;
+      return engine ? engine->compile(k, lanes, error) : nullptr;
     };
   f.results = runExpectations(c, compile);
 }

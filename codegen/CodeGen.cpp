@@ -1,4 +1,4 @@
-// CodeGen.cpp - Stage 7: IR kernel -> LLVM module.
+// CodeGen.cpp - Stage 9a: IR kernel -> LLVM module.
 //
 // Every IR node becomes exactly one LLVM value, in node order, so the IR's sharing of common
 // subexpressions carries over unchanged; O3 (in JIT.cpp) does the rest.

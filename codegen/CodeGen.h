@@ -1,6 +1,7 @@
-// CodeGen.h - Stage 7: IR kernel -> LLVM module.
+// CodeGen.h - Stage 9a: IR kernel -> LLVM module.
 //
-// Lowers one straight-line ir::Kernel to a single function; JIT.cpp optimises and runs it.
+// Lowers one straight-line ir::Kernel to a single function; JIT.cpp prepares (verifies and
+// optimises) it for the JIT and for `saltpan build`.
 #pragma once
 #include "IR.h"
 
@@ -12,6 +13,9 @@ class LLVMContext;
 class Module;
 class TargetMachine;
 class Triple;
+namespace orc {
+class JITTargetMachineBuilder;
+}
 } // namespace llvm
 
 namespace saltpan {
@@ -30,9 +34,20 @@ namespace saltpan {
 std::unique_ptr<llvm::Module> codegen(const ir::Kernel &kernel, llvm::LLVMContext &ctx, const std::string &functionName,
                                       int lanes = 1);
 
-/// The new pass manager's O3 for `machine`, with scalar libm only (libmvec's vector functions
-/// differ from scalar ones in the last bits). The JIT and `saltpan build` both use it, so a
-/// built model computes bit for bit what `saltpan run` computes. Defined in JIT.cpp.
-void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple);
+/// The target both the JIT and `saltpan build` compile for: the host CPU and its features,
+/// aggressive codegen, PIC and the small code model (JITTargetMachineBuilder's default is the
+/// large one). nullptr with `error` on failure. Defined in JIT.cpp, as is the next one.
+std::unique_ptr<llvm::orc::JITTargetMachineBuilder> hostTarget(std::string &error);
+
+/// One kernel's module, ready to compile for `machine`: codegen, the machine's triple and data
+/// layout, verification, the CPU's attributes on the function (and whole vectors for lanes),
+/// then O3 with scalar libm only (libmvec's vector functions differ from the scalar ones in the
+/// last bits). The JIT and `saltpan build` both take it, so a built model computes bit for bit
+/// what `saltpan run` computes. `unoptimised`, when given, receives the module as codegen wrote
+/// it. nullptr with `error` on failure.
+std::unique_ptr<llvm::Module> prepareKernelModule(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
+                                                  const std::string &functionName, int lanes,
+                                                  llvm::TargetMachine &machine, std::string *unoptimised,
+                                                  std::string &error);
 
 } // namespace saltpan

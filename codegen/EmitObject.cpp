@@ -9,44 +9,26 @@
 #include "ModelFile.h"
 #include "StandaloneModel.h"
 
-#include <llvm/Analysis/TargetLibraryInfo.h>
 #include <llvm/ExecutionEngine/Orc/JITTargetMachineBuilder.h>
 #include <llvm/IR/Constants.h>
 #include <llvm/IR/LLVMContext.h>
 #include <llvm/IR/LegacyPassManager.h>
 #include <llvm/IR/Module.h>
-#include <llvm/IR/Verifier.h>
 #include <llvm/Linker/Linker.h>
-#include <llvm/Passes/PassBuilder.h>
 #include <llvm/Support/FileSystem.h>
-#include <llvm/Support/TargetSelect.h>
 #include <llvm/Support/raw_ostream.h>
 #include <llvm/Target/TargetMachine.h>
-
-#include <mutex>
 
 namespace saltpan {
 namespace {
 
 std::string describe(llvm::Error e) { return llvm::toString(std::move(e)); }
 
-// The target machine the JIT would create: host CPU and features, aggressive codegen, PIC and
-// the small code model (JITTargetMachineBuilder would default to the large one).
-std::unique_ptr<llvm::TargetMachine> hostMachine(llvm::Triple &triple, std::string &error) {
-  static std::once_flag once;
-  std::call_once(once, [] {
-    llvm::InitializeNativeTarget();
-    llvm::InitializeNativeTargetAsmPrinter();
-  });
-  auto builder = llvm::orc::JITTargetMachineBuilder::detectHost();
-  if (!builder) {
-    error = "cannot target this machine: " + describe(builder.takeError());
+// The target machine the JIT creates (CodeGen.h's hostTarget).
+std::unique_ptr<llvm::TargetMachine> hostMachine(std::string &error) {
+  std::unique_ptr<llvm::orc::JITTargetMachineBuilder> builder = hostTarget(error);
+  if (!builder)
     return nullptr;
-  }
-  builder->setCodeGenOptLevel(llvm::CodeGenOptLevel::Aggressive);
-  builder->setCodeModel(llvm::CodeModel::Small);
-  builder->setRelocationModel(llvm::Reloc::PIC_);
-  triple = builder->getTargetTriple();
   auto machine = builder->createTargetMachine();
   if (!machine) {
     error = "cannot create a target machine: " + describe(machine.takeError());
@@ -66,37 +48,22 @@ llvm::GlobalVariable *hiddenConstant(llvm::Module &module, llvm::Constant *value
 
 bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::string &bundleText,
                      const std::string &path, std::string &error) {
-  llvm::Triple triple;
-  std::unique_ptr<llvm::TargetMachine> machine = hostMachine(triple, error);
+  std::unique_ptr<llvm::TargetMachine> machine = hostMachine(error);
   if (!machine)
     return false;
   llvm::LLVMContext ctx;
   auto module = std::make_unique<llvm::Module>("saltpan_model", ctx);
-  module->setTargetTriple(triple.str());
+  module->setTargetTriple(machine->getTargetTriple().str());
   module->setDataLayout(machine->createDataLayout());
 
   std::vector<std::pair<uint64_t, std::string>> table;
   for (size_t i = 0; i < kernels.size(); ++i) {
     std::string name = "saltpan_model_kernel_" + std::to_string(i);
-    std::unique_ptr<llvm::Module> kernelModule = codegen(*kernels[i], ctx, name);
-    if (!kernelModule) {
-      error = "malformed kernel: an operand or output names no earlier node";
+    // Each kernel is prepared alone, as the JIT prepares it, before it joins the others.
+    std::unique_ptr<llvm::Module> kernelModule =
+        prepareKernelModule(*kernels[i], ctx, name, 1, *machine, nullptr, error);
+    if (!kernelModule)
       return false;
-    }
-    kernelModule->setTargetTriple(triple.str());
-    kernelModule->setDataLayout(module->getDataLayout());
-    std::string problems;
-    llvm::raw_string_ostream problemStream(problems);
-    if (llvm::verifyModule(*kernelModule, &problemStream)) {
-      error = "codegen produced invalid LLVM IR: " + problemStream.str();
-      return false;
-    }
-    if (llvm::Function *fn = kernelModule->getFunction(name)) {
-      fn->addFnAttr("target-cpu", machine->getTargetCPU());
-      fn->addFnAttr("target-features", machine->getTargetFeatureString());
-    }
-    // Each kernel is optimised alone, as the JIT does, before it joins the others.
-    optimizeModule(*kernelModule, *machine, triple);
     if (llvm::Linker::linkModules(*module, std::move(kernelModule))) {
       error = "cannot link kernel " + std::to_string(i) + " into the object";
       return false;

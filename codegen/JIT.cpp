@@ -1,4 +1,4 @@
-// JIT.cpp - Stage 8: an LLJIT for the host CPU that optimises (O3) and runs CodeGen's modules.
+// JIT.cpp - Stage 9a: an LLJIT for the host CPU that optimises (O3) and runs CodeGen's modules.
 //
 // One of the two files that see LLVM headers (with CodeGen.cpp); JIT.h shows no LLVM type.
 #include "JIT.h"
@@ -26,7 +26,6 @@ namespace saltpan {
 struct JIT::Impl {
   std::unique_ptr<llvm::orc::LLJIT> jit;
   std::unique_ptr<llvm::TargetMachine> machine; // drives O3's cost model; LLJIT has its own copy
-  llvm::Triple triple;
   unsigned counter = 0;
   std::string lastIR, lastUnoptimisedIR;
 };
@@ -64,13 +63,15 @@ llvm::Error defineLibm(llvm::orc::LLJIT &jit) {
 
 } // namespace
 
-void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const llvm::Triple &triple) {
+namespace {
+
+void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine) {
   llvm::LoopAnalysisManager lam;
   llvm::FunctionAnalysisManager fam;
   llvm::CGSCCAnalysisManager cgam;
   llvm::ModuleAnalysisManager mam;
   llvm::PassBuilder builder(&machine);
-  llvm::TargetLibraryInfoImpl tlii(triple); // no vector library registered
+  llvm::TargetLibraryInfoImpl tlii(machine.getTargetTriple()); // no vector library registered
   fam.registerPass([&] { return llvm::TargetLibraryAnalysis(tlii); });
   builder.registerModuleAnalyses(mam);
   builder.registerCGSCCAnalyses(cgam);
@@ -80,16 +81,14 @@ void optimizeModule(llvm::Module &module, llvm::TargetMachine &machine, const ll
   builder.buildPerModuleDefaultPipeline(llvm::OptimizationLevel::O3).run(module, mam);
 }
 
-JIT::JIT(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
-JIT::~JIT() = default;
+} // namespace
 
-std::unique_ptr<JIT> JIT::create(std::string &error) {
+std::unique_ptr<llvm::orc::JITTargetMachineBuilder> hostTarget(std::string &error) {
   static std::once_flag once;
   std::call_once(once, [] {
     llvm::InitializeNativeTarget();
     llvm::InitializeNativeTargetAsmPrinter();
   });
-
   auto builder = llvm::orc::JITTargetMachineBuilder::detectHost(); // host CPU name and features
   if (!builder) {
     error = "cannot target this machine: " + describe(builder.takeError());
@@ -98,9 +97,55 @@ std::unique_ptr<JIT> JIT::create(std::string &error) {
   builder->setCodeGenOptLevel(llvm::CodeGenOptLevel::Aggressive);
   builder->setCodeModel(llvm::CodeModel::Small); // JITLink handles it; the default is Large
   builder->setRelocationModel(llvm::Reloc::PIC_);
+  return std::make_unique<llvm::orc::JITTargetMachineBuilder>(std::move(*builder));
+}
+
+std::unique_ptr<llvm::Module> prepareKernelModule(const ir::Kernel &kernel, llvm::LLVMContext &ctx,
+                                                  const std::string &name, int lanes, llvm::TargetMachine &machine,
+                                                  std::string *unoptimised, std::string &error) {
+  std::unique_ptr<llvm::Module> module = codegen(kernel, ctx, name, lanes);
+  if (!module) {
+    error = "malformed kernel: an operand or output names no earlier node";
+    return nullptr;
+  }
+  module->setTargetTriple(machine.getTargetTriple().str());
+  module->setDataLayout(machine.createDataLayout());
+  std::string problems;
+  llvm::raw_string_ostream problemStream(problems);
+  if (llvm::verifyModule(*module, &problemStream)) {
+    error = "codegen produced invalid LLVM IR: " + problemStream.str();
+    return nullptr;
+  }
+  // Per-function CPU attributes make every pass see the same target as the code generator.
+  if (llvm::Function *fn = module->getFunction(name)) {
+    fn->addFnAttr("target-cpu", machine.getTargetCPU());
+    fn->addFnAttr("target-features", machine.getTargetFeatureString());
+    // Keep whole vectors in registers, as libmvec's _ZGVdN4v_exp (ymm) and _ZGVeN8v_exp (zmm)
+    // expect them; without this a CPU that prefers 256-bit vectors splits <8 x double>.
+    if (lanes > 1) {
+      std::string bits = std::to_string(64 * lanes);
+      fn->addFnAttr("min-legal-vector-width", bits);
+      fn->addFnAttr("prefer-vector-width", bits);
+    }
+  }
+  if (unoptimised) {
+    unoptimised->clear();
+    llvm::raw_string_ostream rawStream(*unoptimised);
+    module->print(rawStream, nullptr);
+  }
+  optimizeModule(*module, machine);
+  return module;
+}
+
+JIT::JIT(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
+JIT::~JIT() = default;
+
+std::unique_ptr<JIT> JIT::create(std::string &error) {
+  std::unique_ptr<llvm::orc::JITTargetMachineBuilder> builder = hostTarget(error);
+  if (!builder)
+    return nullptr;
 
   auto impl = std::make_unique<Impl>();
-  impl->triple = builder->getTargetTriple();
   auto machine = builder->createTargetMachine();
   if (!machine) {
     error = "cannot create a target machine: " + describe(machine.takeError());
@@ -149,37 +194,10 @@ KernelFn JIT::compileLanes(const ir::Kernel &kernel, int lanes, std::string &err
   }
   std::string name = "saltpan_kernel_" + std::to_string(impl.counter++);
   auto context = std::make_unique<llvm::LLVMContext>();
-  std::unique_ptr<llvm::Module> module = codegen(kernel, *context, name, lanes);
-  if (!module) {
-    error = "malformed kernel: an operand or output names no earlier node";
+  std::unique_ptr<llvm::Module> module =
+      prepareKernelModule(kernel, *context, name, lanes, *impl.machine, &impl.lastUnoptimisedIR, error);
+  if (!module)
     return nullptr;
-  }
-  module->setTargetTriple(impl.triple.str());
-  module->setDataLayout(impl.jit->getDataLayout());
-  std::string problems;
-  llvm::raw_string_ostream problemStream(problems);
-  if (llvm::verifyModule(*module, &problemStream)) {
-    error = "codegen produced invalid LLVM IR: " + problemStream.str();
-    return nullptr;
-  }
-  // Per-function CPU attributes make every pass see the same target as the code generator.
-  if (llvm::Function *fn = module->getFunction(name)) {
-    fn->addFnAttr("target-cpu", impl.machine->getTargetCPU());
-    fn->addFnAttr("target-features", impl.machine->getTargetFeatureString());
-    // Keep whole vectors in registers, as libmvec's _ZGVdN4v_exp (ymm) and _ZGVeN8v_exp (zmm)
-    // expect them; without this a CPU that prefers 256-bit vectors splits <8 x double>.
-    if (lanes > 1) {
-      std::string bits = std::to_string(64 * lanes);
-      fn->addFnAttr("min-legal-vector-width", bits);
-      fn->addFnAttr("prefer-vector-width", bits);
-    }
-  }
-  impl.lastUnoptimisedIR.clear();
-  llvm::raw_string_ostream rawStream(impl.lastUnoptimisedIR);
-  module->print(rawStream, nullptr);
-  rawStream.flush();
-  optimizeModule(*module, *impl.machine, impl.triple);
-
   impl.lastIR.clear();
   llvm::raw_string_ostream irStream(impl.lastIR);
   module->print(irStream, nullptr);

@@ -1,4 +1,4 @@
-// JIT.h - Stage 8: compiles IR kernels to native code for this machine (LLVM ORC, hidden).
+// JIT.h - Stage 9a: compiles IR kernels to native code for this machine (LLVM ORC, hidden).
 #pragma once
 #include "IR.h"
 
@@ -19,6 +19,10 @@ public:
   KernelFn compile(const ir::Kernel &kernel, std::string &error);
   /// The same for `lanes` parameter sets in lockstep (CodeGen.h's lane layout).
   KernelFn compileLanes(const ir::Kernel &kernel, int lanes, std::string &error);
+  /// compile() for one lane, compileLanes() for more (KernelPlan.h's KernelCompiler).
+  KernelFn compile(const ir::Kernel &kernel, int lanes, std::string &error) {
+    return lanes == 1 ? compile(kernel, error) : compileLanes(kernel, lanes, error);
+  }
   /// The widest lane count this CPU's vector registers hold: 8 with AVX-512, 4 with AVX2,
   /// otherwise 2 (SSE2, every x86-64).
   int nativeLanes() const;

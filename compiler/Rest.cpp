@@ -2,6 +2,7 @@
 #include "Rest.h"
 
 #include "Analyze.h"
+#include "FixedStep.h"
 #include "Interpret.h"
 
 #include <algorithm>
@@ -262,10 +263,11 @@ public:
     for (size_t i = 0; i < states_.size(); ++i)
       y_[states_[i]] = x[i];
     run();
+    dydt_.resize(y_.size());
+    stateDerivative(model_, model_.params.data(), y_.data(), out_.data(), dydt_.data());
     dx.resize(states_.size());
-    dx[0] = -current() / model_.params[comp_.capacitanceParam];
-    for (size_t i = 0; i < gates_.size(); ++i)
-      dx[i + 1] = (out_[gates_[i]->infOutput] - x[i + 1]) / out_[gates_[i]->tauOutput];
+    for (size_t i = 0; i < states_.size(); ++i)
+      dx[i] = dydt_[states_[i]];
   }
 
   std::vector<double> steadyVector(double v) {
@@ -278,14 +280,12 @@ public:
 
 private:
   void run() { interpreter_.run(y_.data(), model_.params.data(), 0.0, out_.data()); }
-  double current() const {
-    return out_[comp_.gOutput] * y_[comp_.voltageState] - out_[comp_.geOutput] + out_[comp_.iOtherOutput];
-  }
+  double current() const { return membraneCurrent(comp_, y_.data(), out_.data()); }
 
   const ir::Model &model_;
   const ir::Compartment &comp_;
   Interpreter interpreter_;
-  std::vector<double> y_, out_;
+  std::vector<double> y_, out_, dydt_;
   std::vector<const ir::Gate *> gates_;
   std::vector<int> states_;
 };

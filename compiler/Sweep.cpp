@@ -2,12 +2,12 @@
 #include "Sweep.h"
 
 #include "Diagnostics.h"
-#include "Fuse.h"
-#include "Interpret.h"
+#include "KernelPlan.h"
 #include "LaneSimulate.h"
 #include "Lower.h"
 #include "Pipeline.h"
 #include "Rest.h"
+#include "Run.h"
 #include "RunSettings.h"
 #include "Simulate.h"
 #include "SweepSupport.h"
@@ -264,12 +264,8 @@ struct SweepEvaluator::Impl {
   struct ProtocolRun {
     ir::Model model;
     std::vector<int> axisParam; // parameter index of each axis
-    bool lanes = false;
-    LaneKernels laneKernels;
-    FusedStep fused; // native scalar kernels (engine scalar, or not fusable)
-    KernelFn plain = nullptr;
-    std::optional<ir::Kernel> fusedKernel, stateOnlyKernel;
-    std::vector<std::unique_ptr<Interpreter>> plainInterp, fusedInterp, stateOnlyInterp; // per worker
+    std::vector<PlannedKernels> kernels; // one per worker (interpreters hold scratch values)
+    bool lanes() const { return kernels.front().plan().lanes > 1; }
   };
   Compilation &c;
   const SweepPlan &plan;
@@ -324,18 +320,10 @@ struct SweepEvaluator::Impl {
   void evaluateScalar(size_t protocol, size_t point, sweep::PointResult &r, int worker) {
     ProtocolRun &run = runs[protocol];
     std::vector<double> params = paramsFor(run.model, run.axisParam, point);
-    KernelRef kernel{run.plain, run.plainInterp.empty() ? nullptr : run.plainInterp[static_cast<size_t>(worker)].get()};
-    FusedStep fused = run.fused;
-    if (engine == SweepEngine::Interpreter && run.fusedKernel) {
-      fused.available = true;
-      fused.kernel = KernelRef{nullptr, run.fusedInterp[static_cast<size_t>(worker)].get()};
-      fused.hasStateOnly = run.stateOnlyKernel.has_value();
-      if (fused.hasStateOnly)
-        fused.stateOnly = KernelRef{nullptr, run.stateOnlyInterp[static_cast<size_t>(worker)].get()};
-    }
     SimulationFailure failure;
     SimulationStats stats;
-    Trace trace = simulate(run.model, params, kernel, failure, &stats, fused);
+    const PlannedKernels &kernels = run.kernels[std::min(static_cast<size_t>(worker), run.kernels.size() - 1)];
+    Trace trace = simulatePlanned(run.model, params, kernels, failure, &stats);
     if (failure.failed)
       sweep::addFailure(r, sweep::failureText(plan.protocols[protocol]->name, failure));
     else
@@ -347,7 +335,7 @@ struct SweepEvaluator::Impl {
     std::vector<std::vector<double>> params;
     for (size_t l = 0; l < static_cast<size_t>(lanes); ++l) // a short batch repeats its last point
       params.push_back(paramsFor(run.model, run.axisParam, points[std::min(l, points.size() - 1)]));
-    LaneRun result = simulateLanes(run.model, params, run.laneKernels);
+    LaneRun result = simulateLanes(run.model, params, run.kernels.front().laneKernels());
     for (size_t k = 0; k < points.size(); ++k) {
       if (result.failures[k].failed)
         sweep::addFailure(out[k], sweep::failureText(plan.protocols[protocol]->name, result.failures[k]));
@@ -357,7 +345,7 @@ struct SweepEvaluator::Impl {
   }
 };
 
-SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngine engine, const LaneCompiler &compile,
+SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngine engine, const KernelCompiler &compile,
                                int lanes, int threads)
     : impl_(std::make_unique<Impl>(c, plan, compile ? engine : SweepEngine::Interpreter)) {
   Impl &im = *impl_;
@@ -372,62 +360,19 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
     sweep::recordOnly(run.model, recordedBy(plan, p));
     for (const std::string &name : plan.parameters)
       run.axisParam.push_back(run.model.findParam(name));
-    double dt = run.model.protocol.step;
-    bool euler = run.model.protocol.method == ir::Method::ExponentialEuler;
-    if (euler) {
-      run.fusedKernel = fuseExponentialEuler(run.model, dt, true);
-      if (run.fusedKernel && run.model.pools.empty() && run.model.protocol.every > dt * 1.5)
-        run.stateOnlyKernel = fuseExponentialEuler(run.model, dt, false);
-    }
-    std::string err;
-    // Lanes step with a fused exponential Euler or RK4 step; other methods run point by point.
-    std::optional<ir::Kernel> laneFull, laneStateOnly;
-    if (im.engine == SweepEngine::Batched && euler && run.fusedKernel) {
-      laneFull = run.fusedKernel;
-      laneStateOnly = fuseExponentialEuler(run.model, dt, false);
-    } else if (im.engine == SweepEngine::Batched && run.model.protocol.method == ir::Method::RungeKutta4) {
-      laneFull = fuseRungeKutta4(run.model, dt, true);
-      laneStateOnly = fuseRungeKutta4(run.model, dt, false);
-    }
-    if (laneFull && laneStateOnly) {
-      auto &stateOnly = laneStateOnly;
-      run.laneKernels.lanes = im.lanes;
-      run.laneKernels.full = compile(*laneFull, im.lanes, err);
-      run.laneKernels.stateOnly = run.laneKernels.full ? compile(*stateOnly, im.lanes, err) : nullptr;
-      // Steps split at an event run the scalar stepper with the model's kernel, as scalar points do.
-      run.laneKernels.plain = run.laneKernels.stateOnly ? compile(run.model.kernel, 1, err) : nullptr;
-      if (!run.laneKernels.plain && im.error.empty())
-        im.error = "cannot compile the lane kernel of protocol '" + p->name + "': " + err;
-      run.lanes = true;
-      anyLanes = true;
-    } else if (im.engine != SweepEngine::Interpreter) {
-      anyScalar = true;
-      if (run.fusedKernel) {
-        run.fused.available = true;
-        run.fused.kernel.native = compile(*run.fusedKernel, 1, err);
-        if (run.stateOnlyKernel) {
-          run.fused.hasStateOnly = true;
-          run.fused.stateOnly.native = compile(*run.stateOnlyKernel, 1, err);
-        }
-      }
-      run.plain = compile(run.model.kernel, 1, err);
-      if ((!run.plain || (run.fusedKernel && !run.fused.kernel.native)) && im.error.empty())
-        im.error = "cannot compile protocol '" + p->name + "': " + err;
-    }
+    KernelCompiler native = im.engine == SweepEngine::Interpreter ? KernelCompiler() : compile;
+    run.kernels.emplace_back(planKernels(run.model, KernelUse::Lanes, im.engine == SweepEngine::Batched ? im.lanes : 1),
+                             native);
+    const PlannedKernels &kernels = run.kernels.front();
+    if (native && !kernels.native() && im.error.empty())
+      im.error =
+          std::string(run.lanes() ? "cannot compile the lane kernel of protocol '" : "cannot compile protocol '") +
+          p->name + "': " + kernels.compileError();
+    (run.lanes() ? anyLanes : anyScalar) = true;
+    // Native code is shared by every worker; interpreters are not.
+    for (size_t w = 1; w < workers && !kernels.native(); ++w)
+      run.kernels.push_back(kernels);
     im.runs.push_back(std::move(run));
-  }
-  // Interpreters hold scratch values, so each worker has its own (made after the moves above,
-  // which would otherwise leave them pointing at moved-from kernels).
-  for (Impl::ProtocolRun &run : im.runs) {
-    if (run.lanes || run.plain)
-      continue;
-    for (size_t w = 0; w < workers; ++w) {
-      run.plainInterp.push_back(std::make_unique<Interpreter>(run.model.kernel));
-      if (run.fusedKernel)
-        run.fusedInterp.push_back(std::make_unique<Interpreter>(*run.fusedKernel));
-      if (run.stateOnlyKernel)
-        run.stateOnlyInterp.push_back(std::make_unique<Interpreter>(*run.stateOnlyKernel));
-    }
   }
   if (plan.needsRest) {
     DiagnosticEngine quiet;
@@ -460,7 +405,7 @@ void SweepEvaluator::evaluate(const std::vector<size_t> &indices, std::vector<sw
   for (sweep::PointResult &r : out)
     r.measures.assign(im.plan.measures.size(), NAN);
   for (size_t p = 0; p < im.runs.size(); ++p) {
-    if (im.runs[p].lanes) {
+    if (im.runs[p].lanes()) {
       im.evaluateLanes(p, indices, out);
       continue;
     }

@@ -6,7 +6,7 @@
 #pragma once
 #include "AST.h"
 #include "Expect.h"
-#include "Simulate.h"
+#include "KernelPlan.h"
 #include "SweepPoints.h"
 #include "SweepTable.h"
 
@@ -51,16 +51,12 @@ std::vector<std::string> recordedBy(const SweepPlan &plan, const ast::ProtocolDe
 
 enum class SweepEngine { Batched, Scalar, Interpreter };
 
-/// Compiles a kernel to native code for `lanes` parameter sets (1: the scalar form), or
-/// returns nullptr with `error`.
-using LaneCompiler = std::function<KernelFn(const ir::Kernel &, int lanes, std::string &error)>;
-
 /// Computes the measures of sweep points: per protocol, one lowered model whose record list
 /// holds what the measures need, and its kernels compiled once (shared by every thread).
 class SweepEvaluator {
 public:
   /// With no `compile`, the interpreter is used. `lanes` is the batched engine's width.
-  SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngine engine, const LaneCompiler &compile, int lanes,
+  SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngine engine, const KernelCompiler &compile, int lanes,
                  int threads);
   ~SweepEvaluator();
   /// False with `error` when a kernel could not be compiled.

@@ -64,6 +64,29 @@ double StepGrid::nextBreak(double t, double until) const {
   return it != events_.end() && *it < until ? *it : until;
 }
 
+namespace {
+// A potential beyond this means the integration has gone wrong, not the membrane.
+constexpr double maxPotential = 2.0; // volts
+} // namespace
+
+bool healthyState(const ir::Model &m, const double *y, size_t stride, double t, SimulationFailure &failure) {
+  auto fail = [&](size_t state, const char *reason) {
+    failure.failed = true;
+    failure.time = t;
+    failure.variable = m.stateNames[state];
+    failure.reason = reason;
+    return false;
+  };
+  for (size_t i = 0; i < m.stateNames.size(); ++i)
+    if (!std::isfinite(y[i * stride]))
+      return fail(i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
+  for (const ir::Compartment &c : m.compartments)
+    if (std::fabs(y[static_cast<size_t>(c.voltageState) * stride]) > maxPotential)
+      return fail(static_cast<size_t>(c.voltageState),
+                  "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
+  return true;
+}
+
 bool holdClamps(const ir::Model &m, double *y, const double *out) {
   bool moved = false;
   for (const ir::Compartment &c : m.compartments)
@@ -80,8 +103,7 @@ void stateDerivative(const ir::Model &m, const double *p, const double *y, const
   for (const ir::Pool &pool : m.pools)
     dydt[pool.state] = out[pool.derivativeOutput];
   for (const ir::Compartment &c : m.compartments) {
-    double v = y[c.voltageState];
-    double current = out[c.gOutput] * v - out[c.geOutput] + out[c.iOtherOutput];
+    double current = membraneCurrent(c, y, out);
     bool clamped = c.clampedOutput >= 0 && out[c.clampedOutput] != 0;
     dydt[c.voltageState] = clamped ? 0 : -current / p[c.capacitanceParam];
   }
@@ -178,6 +200,54 @@ void FixedStepper::step(const StepGrid &grid, long i, double *y, double *out, do
     piece(y, out, from, to - from, end, injected);
     from = to;
   }
+}
+
+FixedRun::FixedRun(const ir::Model &model, const double *params, KernelRef plain, FusedStep fused,
+                   SimulationStats *stats)
+    : m_(model), p_(params), fused_(fused), stats_(stats), grid_(model), stepper_(model, params, plain, stats),
+      out_(model.kernel.outputs.size()) {
+  if (fused_.available)
+    next_.assign(model.stateNames.size() + out_.size(), 0);
+}
+
+void FixedRun::begin(long i, double *y, bool outputs) {
+  step_ = i;
+  fusedStep_ = fused_.available && grid_.smooth(i);
+  if (fusedStep_)
+    callFused(y, outputs);
+  else
+    stepper_.settle(y, out_.data(), grid_.time(i));
+}
+
+void FixedRun::end(double *y) {
+  step_ = grid_.steps();
+  fusedStep_ = false;
+  if (fused_.available) // a fused kernel holds no clamp, and its outputs are the model kernel's
+    callFused(y, true);
+  else
+    stepper_.settle(y, out_.data(), grid_.time(step_));
+}
+
+void FixedRun::callFused(const double *y, bool outputs) {
+  fusedOutputs_ = outputs || !fused_.hasStateOnly;
+  (fusedOutputs_ ? fused_.kernel : fused_.stateOnly)(y, p_, grid_.time(step_), next_.data());
+  if (stats_)
+    ++stats_->kernelCalls;
+  if (outputs)
+    std::copy(next_.begin() + static_cast<long>(m_.stateNames.size()), next_.end(), out_.begin());
+}
+
+void FixedRun::finish(double *y, double *injected) {
+  if (!fusedStep_) {
+    stepper_.step(grid_, step_, y, out_.data(), injected);
+    return;
+  }
+  size_t n = m_.stateNames.size();
+  std::copy(next_.begin(), next_.begin() + static_cast<long>(n), y);
+  // Only a charge balance needs the injected charge, and it has no state-only kernel.
+  if (injected && !fused_.hasStateOnly)
+    for (size_t c = 0; c < m_.compartments.size(); ++c)
+      injected[c] += next_[n + static_cast<size_t>(m_.compartments[c].injectedOutput)] * grid_.step();
 }
 
 } // namespace saltpan

@@ -46,9 +46,19 @@ private:
   std::vector<double> events_;
 };
 
+/// Whether every state is finite and every potential within +-2 V; on a problem fills
+/// `failure` (time t, the state's name, the cause) and returns false. The values of y are
+/// `stride` apart (1 for one run, the lane count for lockstep runs).
+bool healthyState(const ir::Model &model, const double *y, size_t stride, double t, SimulationFailure &failure);
+
 /// Sets each clamped potential in y to its command, from the kernel outputs `out` at y; true
 /// when one moved (the outputs must then be evaluated again).
 bool holdClamps(const ir::Model &model, double *y, const double *out);
+
+/// The membrane current density (A/m2, outward) of compartment c from the kernel outputs at y.
+inline double membraneCurrent(const ir::Compartment &c, const double *y, const double *out) {
+  return out[c.gOutput] * y[c.voltageState] - out[c.geOutput] + out[c.iOtherOutput];
+}
 
 /// dy/dt of every state from the kernel outputs at y (a clamped potential does not move).
 void stateDerivative(const ir::Model &model, const double *params, const double *y, const double *out, double *dydt);
@@ -76,6 +86,38 @@ private:
   KernelRef kernel_;
   SimulationStats *stats_;
   std::vector<double> k1_, k2_, k3_, k4_, tmp_, scratch_;
+};
+
+/// The fixed-step run of one parameter set, step by step: a step the grid calls smooth is one
+/// call of the fused kernel when there is one, any other step the FixedStepper's, split at its
+/// events. Simulate and the C library step through this, so they agree bit for bit.
+class FixedRun {
+public:
+  FixedRun(const ir::Model &model, const double *params, KernelRef plain, FusedStep fused,
+           SimulationStats *stats = nullptr);
+  const StepGrid &grid() const { return grid_; }
+  /// Starts step i from the state y: holds the clamps, and with `outputs` fills outputs() with
+  /// the kernel outputs at (y, time(i)). Any i >= 0 may be stepped, also past the protocol's end.
+  void begin(long i, double *y, bool outputs);
+  /// The same at the protocol's end (time(grid().steps())), where only the outputs are wanted.
+  void end(double *y);
+  const double *outputs() const { return out_.data(); }
+  /// Finishes the step begun last: y becomes the state at time(i + 1). `injected` (one per
+  /// compartment, or null) gains the injected charge of the step where the outputs are known.
+  void finish(double *y, double *injected);
+
+private:
+  void callFused(const double *y, bool outputs);
+
+  const ir::Model &m_;
+  const double *p_;
+  FusedStep fused_;
+  SimulationStats *stats_;
+  StepGrid grid_;
+  FixedStepper stepper_;
+  std::vector<double> out_, next_; // next_: the fused kernel's next state, then its outputs
+  long step_ = 0;
+  bool fusedStep_ = false, fusedOutputs_ = false; // begin() called the fused kernel (with outputs)
 };
 
 } // namespace saltpan

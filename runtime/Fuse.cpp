@@ -1,4 +1,4 @@
-// Fuse.cpp - Stage 9a: the exponential Euler step written into the kernel itself.
+// Fuse.cpp - Stage 9 (with KernelPlan): the exponential Euler step written into the kernel itself.
 #include "Fuse.h"
 
 #include <cmath>

@@ -1,4 +1,4 @@
-// Fuse.h - Stage 9a: fuses a model's kernel with one exponential Euler step.
+// Fuse.h - Stage 9 (with KernelPlan): fuses a model's kernel with one exponential Euler step.
 //
 // The fused kernel computes, from (y, p, t), the next state after a step of `dt` in
 // out[0..states) followed by every output of the model's kernel (for recording), so a

@@ -16,11 +16,6 @@ void KernelRef::operator()(const double *y, const double *p, double t, double *o
     interpreter->run(y, p, t, out);
 }
 
-namespace {
-// A potential beyond this means the integration has gone wrong, not the membrane.
-constexpr double maxPotential = 2.0; // volts
-} // namespace
-
 double exponentialEulerVoltage(double v, double g, double ge, double other, double cap, double dt) {
   if (g > 0) {
     double vInf = (ge - other) / g;
@@ -29,24 +24,6 @@ double exponentialEulerVoltage(double v, double g, double ge, double other, doub
   // No positive conductance to relax towards (a zero or negative density): an explicit step
   // of the whole current, G V - GE included.
   return v - dt * (g * v - ge + other) / cap;
-}
-
-bool healthyState(const ir::Model &m, const double *y, size_t stride, double t, SimulationFailure &failure) {
-  auto fail = [&](size_t state, const char *reason) {
-    failure.failed = true;
-    failure.time = t;
-    failure.variable = m.stateNames[state];
-    failure.reason = reason;
-    return false;
-  };
-  for (size_t i = 0; i < m.stateNames.size(); ++i)
-    if (!std::isfinite(y[i * stride]))
-      return fail(i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
-  for (const ir::Compartment &c : m.compartments)
-    if (std::fabs(y[static_cast<size_t>(c.voltageState) * stride]) > maxPotential)
-      return fail(static_cast<size_t>(c.voltageState),
-                  "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
-  return true;
 }
 
 namespace {
@@ -79,10 +56,6 @@ public:
     return q;
   }
   std::vector<double> injected_; // integral of injected current density per compartment
-  void accumulateInjection(const double *out, double dt) {
-    for (size_t i = 0; i < m_.compartments.size(); ++i)
-      injected_[i] += out[m_.compartments[i].injectedOutput] * dt;
-  }
   void accumulateTrapezoid(const double *a, const double *b, double dt) {
     for (size_t i = 0; i < m_.compartments.size(); ++i) {
       int k = m_.compartments[i].injectedOutput;
@@ -115,12 +88,7 @@ public:
   void runMethod() {
     switch (m_.protocol.method) {
     case ir::Method::ExponentialEuler:
-      if (fused_.available)
-        fusedSteps();
-      else
-        fixedStep();
-      break;
-    case ir::Method::RungeKutta4: fixedStep(); break;
+    case ir::Method::RungeKutta4: fixedSteps(); break;
     case ir::Method::DormandPrince: dormandPrince(); break;
     case ir::Method::Rosenbrock: rosenbrock(); break;
     }
@@ -170,56 +138,24 @@ private:
 
   void derivative(const double *y, const double *out, double *dydt) { stateDerivative(m_, p_.data(), y, out, dydt); }
 
-  // Exponential Euler with the step inside the kernel: one call per step. A step with an
-  // event inside or at its end is taken by the general stepper, split at the event.
-  void fusedSteps() {
-    const StepGrid &grid = grid_;
-    FixedStepper stepper(m_, p_.data(), kernel_, &stats_);
+  // Every fixed-step method: one FixedRun step per grid step (fused where it can be).
+  void fixedSteps() {
+    FixedRun run(m_, p_.data(), kernel_, fused_, &stats_);
+    const StepGrid &grid = run.grid();
     long steps = grid.steps(), every = grid.every();
-    size_t n = y_.size();
-    std::vector<double> buffer(n + out_.size());
     for (long i = 0; i <= steps; ++i) {
-      double t = grid.time(i);
       bool recording = i % every == 0 || i == steps;
-      if (i < steps && !grid.smooth(i)) {
-        stepper.settle(y_.data(), out_.data(), t);
-        if (recording)
-          record(t);
-        stepper.step(grid, i, y_.data(), out_.data(), injected_.data());
-      } else {
-        if (recording || !fused_.hasStateOnly)
-          fused_.kernel(y_.data(), p_.data(), t, buffer.data());
-        else
-          fused_.stateOnly(y_.data(), p_.data(), t, buffer.data());
-        ++stats_.kernelCalls;
-        if (recording) {
-          std::copy(buffer.begin() + static_cast<long>(n), buffer.end(), out_.begin());
-          record(t);
-        }
-        if (i == steps)
-          break;
-        std::copy(buffer.begin(), buffer.begin() + static_cast<long>(n), y_.begin());
-        if (!fused_.hasStateOnly) // only needed for a charge balance, which has no state-only kernel
-          accumulateInjection(buffer.data() + n, grid.step());
+      if (i < steps)
+        run.begin(i, y_.data(), recording);
+      else
+        run.end(y_.data());
+      if (recording) {
+        std::copy(run.outputs(), run.outputs() + out_.size(), out_.begin());
+        record(grid.time(i));
       }
-      ++stats_.steps;
-      if (!healthy(y_, grid.time(i + 1)))
-        return;
-    }
-  }
-
-  void fixedStep() {
-    const StepGrid &grid = grid_;
-    FixedStepper stepper(m_, p_.data(), kernel_, &stats_);
-    long steps = grid.steps(), every = grid.every();
-    for (long i = 0; i <= steps; ++i) {
-      double t = grid.time(i); // no accumulated rounding in time
-      stepper.settle(y_.data(), out_.data(), t);
-      if (i % every == 0 || i == steps)
-        record(t);
       if (i == steps)
         break;
-      stepper.step(grid, i, y_.data(), out_.data(), injected_.data());
+      run.finish(y_.data(), injected_.data());
       ++stats_.steps;
       if (!healthy(y_, grid.time(i + 1)))
         return;
@@ -250,6 +186,15 @@ private:
   }
 
   enum class Verdict { Accepted, Rejected, Stop };
+
+  // The start of an adaptive run: the outputs at t = 0, clamps held, the first sample
+  // recorded. Returns how many samples follow it (the last lands on the duration).
+  long startAdaptive() {
+    evaluate(y_.data(), 0, out_.data());
+    applyClamps(0);
+    record(0);
+    return adaptiveRecordCount(m_.protocol);
+  }
 
   // Where an adaptive step from t may go: up to the next recording time or event, whichever
   // comes first. A step never crosses an event, and its stages at an event see what held
@@ -351,12 +296,7 @@ private:
     size_t n = y_.size();
     std::vector<double> f0(n), f1(n), k1(n), k2(n), tmp(n), ynew(n), jac(n * n), a(n * n), scratch(out_.size());
     double t = 0, h = proto.step;
-    long recordIndex = 0;
-    long recordCount = adaptiveRecordCount(proto); // the last sample lands on the duration
-    evaluate(y_.data(), t, out_.data());
-    applyClamps(t);
-    record(t);
-    ++recordIndex;
+    long recordIndex = 1, recordCount = startAdaptive();
     while (recordIndex <= recordCount) {
       Target to = target(t, h, recordIndex);
       double step = to.step;
@@ -423,12 +363,7 @@ private:
     size_t n = y_.size();
     std::vector<double> k1(n), k2(n), k3(n), k4(n), k5(n), k6(n), k7(n), tmp(n), ynew(n), scratch(out_.size());
     double t = 0, h = proto.step;
-    long recordIndex = 0;
-    long recordCount = adaptiveRecordCount(proto); // the last sample lands on the duration
-    evaluate(y_.data(), t, out_.data());
-    applyClamps(t);
-    record(t);
-    ++recordIndex;
+    long recordIndex = 1, recordCount = startAdaptive();
     derivative(y_.data(), out_.data(), k1.data());
     while (recordIndex <= recordCount) {
       Target to = target(t, h, recordIndex);

@@ -61,11 +61,6 @@ struct FusedStep {
 /// of C V' = GE - G V - Iother when G > 0, otherwise an explicit step of the whole current.
 double exponentialEulerVoltage(double v, double g, double ge, double other, double cap, double dt);
 
-/// Checks a state vector whose values are `stride` apart (1 for one run, the lane count for
-/// lockstep runs): every value finite, every potential within +-2 V. On a problem fills
-/// `failure` (time t, the state's name, the cause) and returns false.
-bool healthyState(const ir::Model &model, const double *y, size_t stride, double t, SimulationFailure &failure);
-
 /// Runs the model's protocol with parameters `params` (same layout as model.params). With
 /// exponential Euler and a fused step available, each step is one call of `fused`, except the
 /// steps that meet a stimulus edge, which `kernel` takes split at the edge.

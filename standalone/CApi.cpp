@@ -1,12 +1,11 @@
 // CApi.cpp - saltpan_model.h: a built model stepped from C, one fixed step at a time.
 //
 // Each step is the one `saltpan run` takes, so the states agree with its output bit for bit:
-// the fused exponential Euler kernel (Fuse.h) for a step that meets no stimulus edge, else the
-// shared fixed stepper (FixedStep.h: evaluate, hold clamps, step split at the edges).
+// the kernels KernelPlan chooses for a built model, stepped by the shared FixedRun.
 #include "saltpan_model.h"
 
 #include "FixedStep.h"
-#include "Fuse.h"
+#include "KernelPlan.h"
 #include "RunSettings.h"
 #include "Simulate.h"
 #include "StandaloneModel.h"
@@ -19,8 +18,6 @@
 namespace {
 
 using namespace saltpan;
-
-constexpr double maxPotential = 2.0; // volts, as in Simulate.cpp
 
 thread_local std::string createError;
 
@@ -39,60 +36,33 @@ const ModelBundle *bundle() {
 
 struct saltpan_model {
   ir::Model model;
-  std::vector<double> params, y, out, buffer;
-  std::optional<StepGrid> grid;
-  std::optional<FixedStepper> stepper; // Simulate's fixed steps, with the plain kernel
-  KernelFn fused = nullptr;            // exponential Euler: next state, then every output
-  KernelFn plain = nullptr;            // the model kernel: every output
+  std::vector<double> params, y;
+  std::optional<PlannedKernels> kernels;
+  std::optional<FixedRun> run; // begun at the current step, with the current parameters
   long steps = 0;
   bool failed = false;
   std::string failure; // why the simulation stopped, kept until reset
   std::string error;
 
-  double time() const { return grid->time(steps); }
+  double time() const { return run->grid().time(steps); }
 
-  // A state as `saltpan run` records it at the current time: clamps already applied.
-  void settle() {
-    if (!fused)
-      stepper->settle(y.data(), out.data(), time());
-  }
+  // Starts the next step: clamps hold the state as `saltpan run` records it at this time, and
+  // a fused step is taken with the parameters as they are now (set_parameter begins again).
+  void begin() { run->begin(steps, y.data(), false); }
 
-  bool healthy() {
-    for (size_t i = 0; i < y.size(); ++i)
-      if (!std::isfinite(y[i]))
-        return fail(i, "became NaN or infinite; the step may be too large for this model, or a rate divides by zero");
-    for (const ir::Compartment &c : model.compartments)
-      if (std::fabs(y[c.voltageState]) > maxPotential)
-        return fail(static_cast<size_t>(c.voltageState),
-                    "left the range of +-2 V; the step may be too large, or a current has the wrong sign");
-    return true;
-  }
-
-  bool fail(size_t state, const std::string &reason) {
-    failed = true;
-    char when[64];
-    std::snprintf(when, sizeof when, "at t = %.6g ms: ", time() * 1e3);
-    failure = std::string("the simulation failed ") + when + "'" + model.stateNames[state] + "' " + reason;
-    error = failure;
-    return false;
-  }
-
-  // The step Simulate.cpp takes at this time: the fused kernel for a smooth step, else the
-  // general stepper split at the events inside the step.
   bool step() {
-    double t = time();
-    if (fused && grid->smooth(steps)) {
-      fused(y.data(), params.data(), t, buffer.data());
-      std::copy(buffer.begin(), buffer.begin() + static_cast<long>(y.size()), y.begin());
-    } else {
-      if (fused) // out is kept only without a fused kernel
-        stepper->settle(y.data(), out.data(), t);
-      stepper->step(*grid, steps, y.data(), out.data(), nullptr);
-    }
+    run->finish(y.data(), nullptr);
     ++steps;
-    if (!healthy())
+    SimulationFailure why;
+    if (!healthyState(model, y.data(), 1, time(), why)) {
+      failed = true;
+      char when[64];
+      std::snprintf(when, sizeof when, "at t = %.6g ms: ", time() * 1e3);
+      failure = std::string("the simulation failed ") + when + "'" + why.variable + "' " + why.reason;
+      error = failure;
       return false;
-    settle();
+    }
+    begin();
     return true;
   }
 };
@@ -189,26 +159,15 @@ saltpan_model *saltpan_model_create(const char *protocol) {
         }
         auto m = std::make_unique<saltpan_model>();
         m->model = *chosen;
-        std::string error;
-        // The same kernel `saltpan run` picks: the fused step when there is one.
-        std::optional<ir::Kernel> fusedKernel;
-        if (method == ir::Method::ExponentialEuler)
-          fusedKernel = fuseExponentialEuler(m->model, m->model.protocol.step);
-        if (fusedKernel)
-          m->fused = embeddedKernel(*fusedKernel, error);
-        m->plain = embeddedKernel(m->model.kernel, error);
-        if ((fusedKernel && !m->fused) || !m->plain) {
-          createError = "internal error: " + error;
+        m->kernels.emplace(planKernels(m->model, KernelUse::Built), embeddedKernel);
+        if (!m->kernels->native()) {
+          createError = "internal error: " + m->kernels->compileError();
           return nullptr;
         }
-        size_t n = m->model.stateNames.size(), outputs = m->model.kernel.outputs.size();
         m->params = m->model.params;
         m->y = m->model.initialState;
-        m->out.assign(outputs, 0);
-        m->buffer.assign(n + outputs, 0);
-        m->grid.emplace(m->model);
-        m->stepper.emplace(m->model, m->params.data(), KernelRef{m->plain, nullptr});
-        m->settle();
+        m->run.emplace(m->model, m->params.data(), m->kernels->plain(), m->kernels->fusedStep());
+        m->begin();
         return m.release();
       },
       nullptr);
@@ -231,7 +190,7 @@ int saltpan_model_reset(saltpan_model *model) {
         model->failed = false;
         model->failure.clear();
         model->error.clear();
-        model->settle();
+        model->begin();
         return 0;
       },
       -1);
@@ -273,7 +232,7 @@ int saltpan_model_set_parameter(saltpan_model *model, const char *name, double s
   return guarded(
       model,
       [&] {
-        model->settle(); // a clamp command may depend on it
+        model->begin(); // a clamp command, and the fused step, may depend on it
         return 0;
       },
       -1);

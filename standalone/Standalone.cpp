@@ -167,7 +167,7 @@ int run(const std::vector<std::string> &args) {
 
   // runModel fuses and picks kernels exactly as for `saltpan run`; each one it asks for is
   // found among the compiled-in kernels by fingerprint.
-  KernelCompiler compile = [](const ir::Kernel &k, std::string &e) { return embeddedKernel(k, e); };
+  KernelCompiler compile = embeddedKernel;
   RunOutcome outcome = runModel(model, params, compile);
   if (!outcome.native) {
     std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), outcome.compileError.c_str());

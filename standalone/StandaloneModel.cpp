@@ -17,7 +17,11 @@ bool loadEmbeddedBundle(ModelBundle &bundle, std::string &error) {
   return readModelBundle(text, bundle, error);
 }
 
-KernelFn embeddedKernel(const ir::Kernel &kernel, std::string &error) {
+KernelFn embeddedKernel(const ir::Kernel &kernel, int lanes, std::string &error) {
+  if (lanes != 1) {
+    error = "a built model holds scalar kernels only";
+    return nullptr;
+  }
   uint64_t wanted = kernelFingerprint(kernel);
   for (uint64_t i = 0; i < saltpan_embedded_kernel_count; ++i)
     if (saltpan_embedded_kernels[i].fingerprint == wanted)

@@ -27,7 +27,8 @@ inline constexpr const char *embeddedKernelCountSymbol = "saltpan_embedded_kerne
 
 /// The bundle compiled into this program; false with `error` set when it is damaged.
 bool loadEmbeddedBundle(ModelBundle &bundle, std::string &error);
-/// The native code compiled for `kernel`, or nullptr (with `error`) when none was.
-KernelFn embeddedKernel(const ir::Kernel &kernel, std::string &error);
+/// The native code compiled for `kernel` (one lane), or nullptr (with `error`) when none was;
+/// a KernelCompiler (KernelPlan.h) over the kernels `saltpan build` compiled in.
+KernelFn embeddedKernel(const ir::Kernel &kernel, int lanes, std::string &error);
 
 } // namespace saltpan

@@ -164,7 +164,15 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
     models.push_back(bundle.protocols[static_cast<size_t>(p.protocol)]);
     sweep::recordOnly(models.back(), paths);
   }
-  KernelCompiler compile = [](const ir::Kernel &k, std::string &e) { return embeddedKernel(k, e); };
+  // The kernels a run of each protocol calls, found once among the compiled-in ones.
+  std::vector<PlannedKernels> kernels;
+  for (const ir::Model &m : models) {
+    kernels.emplace_back(planKernels(m, KernelUse::Run), embeddedKernel);
+    if (!kernels.back().native()) {
+      std::fprintf(stderr, "%s sweep: internal error: %s\n", program.c_str(), kernels.back().compileError().c_str());
+      return Internal;
+    }
+  }
   auto evaluate = [&](const std::vector<size_t> &local, std::vector<sweep::PointResult> &out, int) {
     for (size_t k = 0; k < local.size(); ++k) {
       const std::vector<double> &point = chosen->points[table.first + local[k]];
@@ -174,11 +182,10 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
         std::vector<double> params = models[j].params;
         for (size_t a = 0; a < point.size(); ++a)
           params[static_cast<size_t>(p.parameters[a])] = point[a];
-        RunOutcome run = runModel(models[j], params, compile);
-        if (!run.native)
-          throw std::runtime_error(run.compileError);
-        if (run.failure.failed) {
-          sweep::addFailure(out[k], sweep::failureText(models[j].protocol.name, run.failure));
+        SimulationFailure failure;
+        Trace trace = simulatePlanned(models[j], params, kernels[j], failure);
+        if (failure.failed) {
+          sweep::addFailure(out[k], sweep::failureText(models[j].protocol.name, failure));
           continue;
         }
         for (size_t m = 0; m < chosen->measures.size(); ++m) {
@@ -186,7 +193,7 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
           if (x.protocol != p.protocol)
             continue;
           std::string why;
-          auto v = measures::ofTrace(x.measure, x.recorded, x.argument, models[j], run.trace, why);
+          auto v = measures::ofTrace(x.measure, x.recorded, x.argument, models[j], trace, why);
           out[k].measures[m] = v ? *v * x.column.scale : NAN;
         }
       }

@@ -73,6 +73,11 @@ protocol kicked {
   inject soma 0.1 nA from 1 ms to 2 ms
   record soma.V every 0.1 ms
 }
+protocol careful {
+  method dormand_prince
+  duration 3 ms
+  record soma.V every 0.1 ms
+}
 SPEC
 run first check --emit ir "$TMP/two.saltpan"
 expect_grep first out '^protocol quiet method exponential_euler'
@@ -81,8 +86,12 @@ expect_grep chosen out '^protocol kicked method rk4'
 cmp -s "$TMP/first.out" "$TMP/chosen.out" && fail "--protocol kicked printed the same IR as the default"
 run fused check --emit fused-ir --protocol=quiet "$TMP/two.saltpan"
 expect_grep fused out '^kernel fused exponential Euler step'
-expect_rc nofused 64 check --emit fused-ir --protocol kicked "$TMP/two.saltpan"
-expect_grep nofused err "protocol 'kicked' has no fused kernel: method rk4"
+# RK4 runs the model kernel, but sweeps step it fused, in lanes; an adaptive method has no fused step.
+run lanes check --emit fused-ir --protocol kicked "$TMP/two.saltpan"
+expect_grep lanes out '^kernel fused rk4 step for sweep lanes .next state, then every output'
+expect_grep lanes out '^kernel fused rk4 step for sweep lanes, next state only'
+expect_rc nofused 64 check --emit fused-ir --protocol careful "$TMP/two.saltpan"
+expect_grep nofused err "protocol 'careful' has no fused kernel: method dormand_prince steps the model kernel"
 
 # Misuse.
 expect_rc badstage 64 check --emit bytecode "$TMP/two.saltpan"
@@ -90,14 +99,14 @@ expect_grep badstage err "--emit must be one of tokens, ast, resolved, values, i
 expect_rc noemit 64 check --protocol quiet "$TMP/two.saltpan"
 expect_grep noemit err 'give --emit too'
 expect_rc nosuch 64 check --emit ir --protocol loud "$TMP/two.saltpan"
-expect_grep nosuch err "there is no protocol 'loud' in '.*two.saltpan'; it has quiet, kicked"
+expect_grep nosuch err "there is no protocol 'loud' in '.*two.saltpan'; it has quiet, kicked, careful"
 # The default is the spec's own first protocol, not one of a module it uses.
 run own check --emit ir "$SRC/$EULER"
 expect_grep own out '^protocol euler10 '
 run other check --emit ir --protocol step10 "$SRC/$EULER"
 expect_grep other out '^protocol step10 '
-expect_rc rk4 64 check --emit fused-ir "$SRC/$SQUID"
-expect_grep rk4 err "protocol 'step10' has no fused kernel: method rk4 steps the model kernel"
+run rk4 check --emit fused-ir "$SRC/$SQUID"
+expect_grep rk4 out "^kernel fused rk4 step for sweep lanes"
 
 # A spec with errors prints its diagnostics and no stage output.
 printf 'model Broken\nconst a = 1 mV + 2 ms\n' >"$TMP/broken.saltpan"
