@@ -2,6 +2,7 @@
 #include "Rest.h"
 
 #include "Analyze.h"
+#include "Derivative.h"
 #include "FixedStep.h"
 #include "Interpret.h"
 
@@ -280,7 +281,11 @@ public:
 
 private:
   void run() { interpreter_.run(y_.data(), model_.params.data(), 0.0, out_.data()); }
-  double current() const { return membraneCurrent(comp_, y_.data(), out_.data()); }
+  double current() const {
+    DoubleMath math;
+    return membraneCurrent(
+        math, comp_, [this](int s) { return y_[s]; }, [this](int slot) { return out_[slot]; });
+  }
 
   const ir::Model &model_;
   const ir::Compartment &comp_;

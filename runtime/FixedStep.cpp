@@ -1,6 +1,8 @@
 // FixedStep.cpp - the one implementation of the fixed-step methods and of their step grid.
 #include "FixedStep.h"
 
+#include "Derivative.h"
+
 #include <algorithm>
 #include <cassert>
 #include <cmath>
@@ -98,15 +100,13 @@ bool holdClamps(const ir::Model &m, double *y, const double *out) {
 }
 
 void stateDerivative(const ir::Model &m, const double *p, const double *y, const double *out, double *dydt) {
-  for (const ir::Gate &g : m.gates)
-    dydt[g.state] = (out[g.infOutput] - y[g.state]) / out[g.tauOutput];
-  for (const ir::Pool &pool : m.pools)
-    dydt[pool.state] = out[pool.derivativeOutput];
-  for (const ir::Compartment &c : m.compartments) {
-    double current = membraneCurrent(c, y, out);
-    bool clamped = c.clampedOutput >= 0 && out[c.clampedOutput] != 0;
-    dydt[c.voltageState] = clamped ? 0 : -current / p[c.capacitanceParam];
-  }
+  DoubleMath math;
+  timeDerivative(
+      math, m, [y](int s) { return y[s]; }, [out](int slot) { return out[slot]; },
+      [p](const ir::Compartment &c) { return p[c.capacitanceParam]; }, dydt);
+  for (const ir::Compartment &c : m.compartments)
+    if (c.clampedOutput >= 0 && out[c.clampedOutput] != 0)
+      dydt[c.voltageState] = 0;
 }
 
 FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelRef kernel, SimulationStats *stats)
@@ -130,22 +130,14 @@ void FixedStepper::settle(double *y, double *out, double t) {
 }
 
 void FixedStepper::rk4Step(double *y, const double *out, double t, double h, double end) {
-  size_t n = k1_.size();
-  stateDerivative(m_, p_, y, out, k1_.data());
-  for (size_t i = 0; i < n; ++i)
-    tmp_[i] = y[i] + 0.5 * h * k1_[i];
-  evaluate(tmp_.data(), t + 0.5 * h, scratch_.data());
-  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k2_.data());
-  for (size_t i = 0; i < n; ++i)
-    tmp_[i] = y[i] + 0.5 * h * k2_[i];
-  evaluate(tmp_.data(), t + 0.5 * h, scratch_.data());
-  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k3_.data());
-  for (size_t i = 0; i < n; ++i)
-    tmp_[i] = y[i] + h * k3_[i];
-  evaluate(tmp_.data(), end, scratch_.data());
-  stateDerivative(m_, p_, tmp_.data(), scratch_.data(), k4_.data());
-  for (size_t i = 0; i < n; ++i)
-    y[i] += h / 6 * (k1_[i] + 2 * k2_[i] + 2 * k3_[i] + k4_[i]);
+  DoubleMath math;
+  auto slope = [&](int stage, const double *states, double time, double *dydt) {
+    if (stage > 0) // the first stage is at the step's start, where `out` holds the outputs
+      evaluate(states, time, scratch_.data());
+    stateDerivative(m_, p_, states, stage > 0 ? scratch_.data() : out, dydt);
+  };
+  rungeKutta4Step(math, k1_.size(), y, h, t, t + 0.5 * h, end, slope, k1_.data(), k2_.data(), k3_.data(), k4_.data(),
+                  tmp_.data());
 }
 
 // Gates first (Rush-Larsen, rates at the step's start), then V relaxed exactly with the

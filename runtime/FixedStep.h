@@ -55,11 +55,6 @@ bool healthyState(const ir::Model &model, const double *y, size_t stride, double
 /// when one moved (the outputs must then be evaluated again).
 bool holdClamps(const ir::Model &model, double *y, const double *out);
 
-/// The membrane current density (A/m2, outward) of compartment c from the kernel outputs at y.
-inline double membraneCurrent(const ir::Compartment &c, const double *y, const double *out) {
-  return out[c.gOutput] * y[c.voltageState] - out[c.geOutput] + out[c.iOtherOutput];
-}
-
 /// dy/dt of every state from the kernel outputs at y (a clamped potential does not move).
 void stateDerivative(const ir::Model &model, const double *params, const double *y, const double *out, double *dydt);
 

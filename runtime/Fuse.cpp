@@ -1,6 +1,9 @@
 // Fuse.cpp - Stage 9 (with KernelPlan): the exponential Euler step written into the kernel itself.
 #include "Fuse.h"
 
+#include "Derivative.h"
+
+#include <algorithm>
 #include <cmath>
 
 namespace saltpan {
@@ -29,6 +32,18 @@ std::vector<NodeId> inlineKernel(ir::Kernel &k, const ir::Kernel &src, const std
   return map;
 }
 
+// IR nodes as Derivative.h's arithmetic.
+struct NodeMath {
+  ir::Kernel &k;
+  using Value = NodeId;
+  NodeId constant(double x) { return k.constant(x); }
+  NodeId add(NodeId a, NodeId b) { return k.binary(Op::Add, a, b); }
+  NodeId sub(NodeId a, NodeId b) { return k.binary(Op::Sub, a, b); }
+  NodeId mul(NodeId a, NodeId b) { return k.binary(Op::Mul, a, b); }
+  NodeId div(NodeId a, NodeId b) { return k.binary(Op::Div, a, b); }
+  NodeId neg(NodeId a) { return k.unary(Op::Neg, a); }
+};
+
 } // namespace
 
 std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &m, double dt, bool withOutputs) {
@@ -36,52 +51,30 @@ std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &m, double dt, bool wi
     if (c.clampedOutput >= 0)
       return std::nullopt;
   ir::Kernel k;
+  NodeMath math{k};
   size_t n = m.stateNames.size();
-  std::vector<NodeId> y(n);
+  std::vector<NodeId> y(n), k1(n), k2(n), k3(n), k4(n), tmp(n);
   for (size_t s = 0; s < n; ++s)
     y[s] = k.state(static_cast<int>(s));
-  // dy/dt at (states, time), written as Simulate.cpp's derivative() computes it, so the fused
-  // step gives the same numbers as the C++ RK4 loop.
+  // dy/dt at (states, time): the model's kernel inlined there, then Derivative.h's formula, as
+  // the C++ RK4 step computes it.
   std::vector<NodeId> firstOutputs;
-  auto derivative = [&](const std::vector<NodeId> &states, NodeId time) {
-    std::vector<NodeId> map = inlineKernel(k, m.kernel, states, time);
+  auto slope = [&](int, const NodeId *states, NodeId time, NodeId *d) {
+    std::vector<NodeId> map = inlineKernel(k, m.kernel, std::vector<NodeId>(states, states + n), time);
     auto out = [&](int slot) { return map[m.kernel.outputs[static_cast<size_t>(slot)]]; };
     if (firstOutputs.empty())
       for (NodeId o : m.kernel.outputs)
         firstOutputs.push_back(map[o]);
-    std::vector<NodeId> d(n, k.constant(0));
-    for (const ir::Gate &g : m.gates)
-      d[g.state] = k.binary(Op::Div, k.binary(Op::Sub, out(g.infOutput), states[g.state]), out(g.tauOutput));
-    for (const ir::Pool &pool : m.pools)
-      d[pool.state] = out(pool.derivativeOutput);
-    for (const ir::Compartment &c : m.compartments) {
-      NodeId v = states[c.voltageState];
-      NodeId current = k.binary(Op::Add, k.binary(Op::Sub, k.binary(Op::Mul, out(c.gOutput), v), out(c.geOutput)),
-                                out(c.iOtherOutput));
-      d[c.voltageState] = k.binary(Op::Div, k.unary(Op::Neg, current), k.param(c.capacitanceParam));
-    }
-    return d;
-  };
-  auto along = [&](const std::vector<NodeId> &slope, double h) { // y + h * slope
-    std::vector<NodeId> out(n);
-    for (size_t s = 0; s < n; ++s)
-      out[s] = k.binary(Op::Add, y[s], k.binary(Op::Mul, k.constant(h), slope[s]));
-    return out;
+    std::fill(d, d + n, k.constant(0));
+    timeDerivative(
+        math, m, [states](int s) { return states[s]; }, out,
+        [&k](const ir::Compartment &c) { return k.param(c.capacitanceParam); }, d);
   };
   NodeId t = k.time();
   NodeId half = k.binary(Op::Add, t, k.constant(0.5 * dt)), full = k.binary(Op::Add, t, k.constant(dt));
-  std::vector<NodeId> k1 = derivative(y, t);
-  std::vector<NodeId> k2 = derivative(along(k1, 0.5 * dt), half);
-  std::vector<NodeId> k3 = derivative(along(k2, 0.5 * dt), half);
-  std::vector<NodeId> k4 = derivative(along(k3, dt), full);
-  NodeId two = k.constant(2);
-  for (size_t s = 0; s < n; ++s) {
-    NodeId sum = k.binary(
-        Op::Add,
-        k.binary(Op::Add, k.binary(Op::Add, k1[s], k.binary(Op::Mul, two, k2[s])), k.binary(Op::Mul, two, k3[s])),
-        k4[s]);
-    k.addOutput(k.binary(Op::Add, y[s], k.binary(Op::Mul, k.constant(dt / 6), sum)));
-  }
+  rungeKutta4Step(math, n, y.data(), dt, t, half, full, slope, k1.data(), k2.data(), k3.data(), k4.data(), tmp.data());
+  for (NodeId next : y)
+    k.addOutput(next);
   if (withOutputs)
     for (NodeId o : firstOutputs)
       k.addOutput(o);
