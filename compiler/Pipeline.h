@@ -9,6 +9,7 @@
 #include "Source.h"
 
 #include <map>
+#include <optional>
 #include <string>
 
 namespace saltpan {
@@ -23,6 +24,13 @@ struct Compilation {
   AnalyzedModel model;
   std::map<const ast::ProtocolDecl *, ir::Model> lowered; // every protocol, lowered by check
   bool checked = false; // every stage ran without errors
+
+  /// The model hash (ModelHash.h) of the loaded program, "unknown" if it cannot be had;
+  /// computed on first use (after compileFile) and kept, so callers never re-format the source.
+  const std::string &modelHash() const;
+
+private:
+  mutable std::optional<std::string> modelHash_; // set by modelHash(), from the main thread
 };
 
 /// Runs every stage on the file at `path`; stops after the first stage with errors.

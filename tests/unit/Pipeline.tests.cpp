@@ -1,4 +1,5 @@
 // Pipeline.tests.cpp - compileText end to end: what a clean spec yields, where errors stop.
+#include "ModelHash.h"
 #include "Physics.h"
 #include "TestSupport.h"
 
@@ -234,4 +235,24 @@ TEST_CASE("a constant whose value cannot be computed is an error even when unuse
   auto c = compile("const broken = 1 / 0\n");
   CHECK_FALSE(c->checked);
   CHECK(testing::hasError(*c, "division by zero"));
+}
+
+TEST_CASE("the model hash is computed once and equals a fresh one", "[pipeline]") {
+  auto c = compile(cleanSpec);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  DiagnosticEngine diags;
+  auto fresh = hashProgram(c->program, c->program.root->file->path(), diags);
+  REQUIRE(fresh);
+  const std::string &first = c->modelHash();
+  CHECK(first == fresh->hash);
+  // Kept: without its root the program would now hash as "unknown".
+  c->program.root = nullptr;
+  CHECK(&c->modelHash() == &first);
+  CHECK(c->modelHash() == fresh->hash);
+}
+
+TEST_CASE("a compilation that loaded nothing has the model hash 'unknown'", "[pipeline]") {
+  Compilation c;
+  CHECK(c.modelHash() == "unknown");
 }
