@@ -175,6 +175,14 @@ const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &
   return nullptr;
 }
 
+const ir::Model *loweredModel(const Compilation &c, const ast::ProtocolDecl &protocol) {
+  auto it = c.lowered.find(&protocol);
+  if (it != c.lowered.end())
+    return &it->second;
+  std::fprintf(stderr, "saltpan: internal error: protocol '%s' was not lowered\n", protocol.name.c_str());
+  return nullptr;
+}
+
 std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources) {
   std::vector<NamedFile> named, inputs;
   for (const NamedFile &f : outputs)

@@ -120,12 +120,8 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   ir::Model unstimulated;
   const ir::Model *model = nullptr;
   if (protocol) {
-    auto it = c.lowered.find(protocol);
-    if (it == c.lowered.end()) {
-      std::fprintf(stderr, "saltpan: internal error: protocol '%s' was not lowered\n", protocol->name.c_str());
+    if (!(model = loweredModel(c, *protocol)))
       return Internal;
-    }
-    model = &it->second;
   } else {
     if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, unstimulated)) {
       printDiagnostics(c.diags, colour);

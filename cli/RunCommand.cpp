@@ -140,12 +140,10 @@ int runCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "saltpan: error: '%s' has no protocol to run\n", o.file.c_str());
     return Usage;
   }
-  ir::Model model;
-  if (!lowerModel(c.program, c.model, c.evaluator, protocol, c.diags, model)) {
-    for (const Diagnostic &d : c.diags.all())
-      std::fputs(renderText(d).c_str(), stderr);
-    return SpecErrors;
-  }
+  const ir::Model *lowered = loweredModel(c, *protocol);
+  if (!lowered)
+    return Internal;
+  ir::Model model = *lowered; // a copy: --duration and --every change its protocol
   std::vector<double> params = model.params;
   std::string settingError;
   for (const std::string &s : o.sets)

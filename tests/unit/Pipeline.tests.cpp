@@ -1,4 +1,5 @@
 // Pipeline.tests.cpp - compileText end to end: what a clean spec yields, where errors stop.
+#include "Lower.h"
 #include "ModelHash.h"
 #include "Physics.h"
 #include "TestSupport.h"
@@ -255,4 +256,26 @@ TEST_CASE("the model hash is computed once and equals a fresh one", "[pipeline]"
 TEST_CASE("a compilation that loaded nothing has the model hash 'unknown'", "[pipeline]") {
   Compilation c;
   CHECK(c.modelHash() == "unknown");
+}
+
+TEST_CASE("every protocol is lowered by the pipeline as a fresh lowering would", "[pipeline]") {
+  std::string text = std::string(cleanSpec) +
+                     "protocol kick {\n  duration 3 ms\n  inject soma 10 uA/cm2 from 1 ms to 2 ms\n"
+                     "  record soma.V every 0.1 ms\n}\n"
+                     "protocol quiet {\n  duration 2 ms\n  record soma.V every 0.5 ms\n}\n";
+  auto c = compile(text);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  auto all = protocols(c->program);
+  REQUIRE(all.size() == 2);
+  REQUIRE(c->lowered.size() == 2);
+  for (const ast::ProtocolDecl *p : all) {
+    INFO("protocol " << p->name);
+    ir::Model fresh;
+    DiagnosticEngine diags;
+    REQUIRE(lowerModel(c->program, c->model, c->evaluator, p, diags, fresh));
+    REQUIRE(c->lowered.count(p) == 1);
+    CHECK(ir::dump(c->lowered.at(p)) == ir::dump(fresh));
+  }
+  CHECK(ir::dump(c->lowered.at(all[0])) != ir::dump(c->lowered.at(all[1])));
 }
