@@ -268,11 +268,10 @@ int showCommand(const std::vector<std::string> &args) {
     return usageError(clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.
   std::vector<rest::CompartmentRest> steady;
-  ir::Model model;
-  DiagnosticEngine lowering; // a model that cannot be lowered is still shown, without its rest
-  if (lowerModel(c.program, c.model, c.evaluator, nullptr, lowering, model)) {
+  // A model that cannot be lowered is still shown, without its rest.
+  if (const ir::Model *model = c.unstimulated()) {
     try {
-      steady = rest::findSteadyStates(model, &c.model);
+      steady = rest::findSteadyStates(*model, &c.model);
     } catch (const std::exception &) {
       steady.clear();
     }

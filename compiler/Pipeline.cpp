@@ -60,6 +60,21 @@ const std::string &Compilation::modelHash() const {
   return *modelHash_;
 }
 
+Compilation::Unstimulated &Compilation::lowerUnstimulated() {
+  if (!unstimulated_) {
+    unstimulated_.emplace();
+    unstimulated_->lowered = lowerModel(program, model, evaluator, nullptr, unstimulated_->diags, unstimulated_->model);
+  }
+  return *unstimulated_;
+}
+
+const ir::Model *Compilation::unstimulated() {
+  Unstimulated &u = lowerUnstimulated();
+  return u.lowered ? &u.model : nullptr;
+}
+
+const DiagnosticEngine &Compilation::unstimulatedDiagnostics() { return lowerUnstimulated().diags; }
+
 void compileFile(const std::string &path, Compilation &c) {
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec)) {

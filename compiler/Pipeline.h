@@ -29,8 +29,22 @@ struct Compilation {
   /// computed on first use (after compileFile) and kept, so callers never re-format the source.
   const std::string &modelHash() const;
 
+  /// The model without a protocol (no stimuli, every V recorded) that steady states and
+  /// sweep parameters are read from: lowered on first use (after compileFile) and kept.
+  /// nullptr when it cannot be lowered; what lowering reported is unstimulatedDiagnostics().
+  const ir::Model *unstimulated();
+  const DiagnosticEngine &unstimulatedDiagnostics();
+
 private:
-  mutable std::optional<std::string> modelHash_; // set by modelHash(), from the main thread
+  struct Unstimulated {
+    ir::Model model;
+    DiagnosticEngine diags; // kept apart: most callers do not report them
+    bool lowered = false;
+  };
+  // Both set on first use, from the main thread.
+  mutable std::optional<std::string> modelHash_;
+  std::optional<Unstimulated> unstimulated_;
+  Unstimulated &lowerUnstimulated();
 };
 
 /// Runs every stage on the file at `path`; stops after the first stage with errors.

@@ -279,3 +279,32 @@ TEST_CASE("every protocol is lowered by the pipeline as a fresh lowering would",
   }
   CHECK(ir::dump(c->lowered.at(all[0])) != ir::dump(c->lowered.at(all[1])));
 }
+
+TEST_CASE("the stimulus-free lowering is computed once and equals a fresh one", "[pipeline]") {
+  auto c = compile(cleanSpec);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  ir::Model fresh;
+  DiagnosticEngine diags;
+  REQUIRE(lowerModel(c->program, c->model, c->evaluator, nullptr, diags, fresh));
+  const ir::Model *first = c->unstimulated();
+  REQUIRE(first);
+  CHECK(ir::dump(*first) == ir::dump(fresh));
+  CHECK(c->unstimulatedDiagnostics().all().empty());
+  // Kept: without compartments a fresh lowering would now fail.
+  c->model.compartments.clear();
+  CHECK(c->unstimulated() == first);
+  CHECK(ir::dump(*c->unstimulated()) == ir::dump(fresh));
+}
+
+TEST_CASE("a stimulus-free lowering that fails keeps its diagnostics apart", "[pipeline]") {
+  auto c = compile("model Empty \"no compartment\"\ntemperature 20 degC\n");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  size_t before = c->diags.all().size();
+  CHECK(c->unstimulated() == nullptr);
+  CHECK(c->unstimulated() == nullptr);
+  REQUIRE(c->unstimulatedDiagnostics().all().size() == 1);
+  CHECK(c->unstimulatedDiagnostics().all()[0].message == "the model has no compartment to simulate");
+  CHECK(c->diags.all().size() == before);
+}
