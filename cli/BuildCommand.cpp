@@ -8,7 +8,6 @@
 #include "KernelPlan.h"
 #include "Lower.h"
 #include "ModelFile.h"
-#include "ModelHash.h"
 #include "Pipeline.h"
 #include "SafeWrite.h"
 #include "Sweep.h"
@@ -303,7 +302,7 @@ int buildCommand(const std::vector<std::string> &args) {
     return SpecErrors;
   ModelBundle bundle;
   bundle.toolVersion = SALTPAN_VERSION;
-  bundle.modelHash = modelHash(c.program);
+  bundle.modelHash = c.modelHash();
   bundle.source = fs::path(o.file).filename().string();
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
     auto lowered = c.lowered.find(p);

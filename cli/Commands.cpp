@@ -175,6 +175,14 @@ const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &
   return nullptr;
 }
 
+const ir::Model *loweredModel(const Compilation &c, const ast::ProtocolDecl &protocol) {
+  auto it = c.lowered.find(&protocol);
+  if (it != c.lowered.end())
+    return &it->second;
+  std::fprintf(stderr, "saltpan: internal error: protocol '%s' was not lowered\n", protocol.name.c_str());
+  return nullptr;
+}
+
 std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources) {
   std::vector<NamedFile> named, inputs;
   for (const NamedFile &f : outputs)
@@ -260,11 +268,10 @@ int showCommand(const std::vector<std::string> &args) {
     return usageError(clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.
   std::vector<rest::CompartmentRest> steady;
-  ir::Model model;
-  DiagnosticEngine lowering; // a model that cannot be lowered is still shown, without its rest
-  if (lowerModel(c.program, c.model, c.evaluator, nullptr, lowering, model)) {
+  // A model that cannot be lowered is still shown, without its rest.
+  if (const ir::Model *model = c.unstimulated()) {
     try {
-      steady = rest::findSteadyStates(model, &c.model);
+      steady = rest::findSteadyStates(*model, &c.model);
     } catch (const std::exception &) {
       steady.clear();
     }

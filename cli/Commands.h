@@ -11,6 +11,9 @@ struct Compilation;
 namespace ast {
 struct ProtocolDecl;
 }
+namespace ir {
+struct Model;
+}
 } // namespace saltpan
 
 namespace saltpan::cli {
@@ -44,6 +47,9 @@ int emitStage(const std::string &stage, const std::string &protocol, const std::
 /// The protocol of `c` named `name`, or nullptr after printing an error that lists the
 /// protocols `file` has (exit status Usage).
 const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &name, const std::string &file);
+/// The model check lowered for `protocol` (Compilation::lowered), or nullptr after printing an
+/// internal error (exit status Internal): a compilation without errors lowered every protocol.
+const ir::Model *loweredModel(const Compilation &c, const ast::ProtocolDecl &protocol);
 
 /// findOutputClash (SafeWrite.h) against every file `sources` read: "" when the outputs (empty
 /// paths skipped) may be written, else the message to refuse them with (exit status Usage).

@@ -92,21 +92,14 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
         break;
       }
   }
-  ir::Model unstimulated;
   const ir::Model *model = nullptr;
   if (protocol) {
-    auto it = c.lowered.find(protocol);
-    if (it == c.lowered.end()) {
-      std::fprintf(stderr, "saltpan: internal error: protocol '%s' was not lowered\n", protocol->name.c_str());
+    if (!(model = loweredModel(c, *protocol)))
       return Internal;
-    }
-    model = &it->second;
-  } else {
-    if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, unstimulated)) {
-      printDiagnostics(c.diags, colour);
-      return SpecErrors;
-    }
-    model = &unstimulated;
+  } else if (!(model = c.unstimulated())) {
+    printDiagnostics(c.diags, colour);
+    printDiagnostics(c.unstimulatedDiagnostics(), colour);
+    return SpecErrors;
   }
   if (stage == "ir") {
     std::fputs(ir::dump(*model).c_str(), stdout);

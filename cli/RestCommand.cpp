@@ -3,7 +3,6 @@
 #include "Commands.h"
 #include "Version.h"
 
-#include "Lower.h"
 #include "Pipeline.h"
 #include "Rest.h"
 #include "RunSettings.h"
@@ -211,13 +210,13 @@ int restCommand(const std::vector<std::string> &args) {
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
     return SpecErrors;
-  size_t before = c.diags.all().size();
-  ir::Model model;
-  if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, model)) {
-    for (size_t i = before; i < c.diags.all().size(); ++i)
-      std::fputs(renderText(c.diags.all()[i]).c_str(), stderr);
+  const ir::Model *unstimulated = c.unstimulated();
+  if (!unstimulated) {
+    for (const Diagnostic &d : c.unstimulatedDiagnostics().all())
+      std::fputs(renderText(d).c_str(), stderr);
     return SpecErrors;
   }
+  const ir::Model &model = *unstimulated;
   std::vector<rest::CompartmentRest> result;
   try {
     result = rest::findSteadyStates(model, &c.model, options);

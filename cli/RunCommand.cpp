@@ -6,7 +6,6 @@
 #include "JIT.h"
 #include "Lower.h"
 #include "Measures.h"
-#include "ModelHash.h"
 #include "Pipeline.h"
 #include "Plot.h"
 #include "Run.h"
@@ -141,12 +140,10 @@ int runCommand(const std::vector<std::string> &args) {
     std::fprintf(stderr, "saltpan: error: '%s' has no protocol to run\n", o.file.c_str());
     return Usage;
   }
-  ir::Model model;
-  if (!lowerModel(c.program, c.model, c.evaluator, protocol, c.diags, model)) {
-    for (const Diagnostic &d : c.diags.all())
-      std::fputs(renderText(d).c_str(), stderr);
-    return SpecErrors;
-  }
+  const ir::Model *lowered = loweredModel(c, *protocol);
+  if (!lowered)
+    return Internal;
+  ir::Model model = *lowered; // a copy: --duration and --every change its protocol
   std::vector<double> params = model.params;
   std::string settingError;
   for (const std::string &s : o.sets)
@@ -186,8 +183,7 @@ int runCommand(const std::vector<std::string> &args) {
     // Named so that it cannot be taken for a finished run's output.
     std::filesystem::path out(o.output);
     std::string partial = (out.parent_path() / (out.stem().string() + ".partial" + out.extension().string())).string();
-    std::string text =
-        isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION) : traceCsv(trace);
+    std::string text = isJsonPath(o.output) ? traceJson(trace, model, c.modelHash(), SALTPAN_VERSION) : traceCsv(trace);
     std::string error;
     if (!writeFileAtomically(partial, text, error)) {
       std::fprintf(stderr, "saltpan: %s\n", error.c_str());
@@ -197,8 +193,7 @@ int runCommand(const std::vector<std::string> &args) {
                  partial.c_str(), o.output.c_str());
     return SpecErrors;
   }
-  std::string text =
-      isJsonPath(o.output) ? traceJson(trace, model, modelHash(c.program), SALTPAN_VERSION) : traceCsv(trace);
+  std::string text = isJsonPath(o.output) ? traceJson(trace, model, c.modelHash(), SALTPAN_VERSION) : traceCsv(trace);
   if (o.output.empty()) {
     std::fputs(text.c_str(), stdout);
   } else {

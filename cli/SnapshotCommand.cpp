@@ -5,7 +5,6 @@
 
 #include "JIT.h"
 #include "Lower.h"
-#include "ModelHash.h"
 #include "Pipeline.h"
 #include "Run.h"
 
@@ -103,7 +102,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
     std::snprintf(buf, sizeof buf, "# method %s, step %.9g ms, duration %.9g ms\n",
                   ir::methodName(model.protocol.method), model.protocol.step * 1e3, model.protocol.duration * 1e3);
     text += buf;
-    text += "# model " + modelHash(c.program) + "\n";
+    text += "# model " + c.modelHash() + "\n";
     text += "# research modelling output; not for clinical or diagnostic decisions\n";
     text += "time (ms)";
     for (size_t col = 0; col < t.columns(); ++col)

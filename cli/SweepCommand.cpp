@@ -5,7 +5,6 @@
 
 #include "Diagnostics.h"
 #include "JIT.h"
-#include "ModelHash.h"
 #include "Pipeline.h"
 #include "Shard.h"
 #include "Sweep.h"
@@ -263,7 +262,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   sweep::Table table;
   table.sweep = chosen->name;
   table.version = SALTPAN_VERSION;
-  table.modelHash = modelHash(c.program);
+  table.modelHash = c.modelHash();
   table.design = plan.design;
   for (size_t a = 0; a < plan.parameters.size(); ++a)
     table.parameters.push_back({plan.parameters[a], plan.parameterUnits[a].name, plan.parameterUnits[a].scale});

@@ -5,7 +5,6 @@
 
 #include "Expect.h"
 #include "JIT.h"
-#include "ModelHash.h"
 #include "Pipeline.h"
 #include "Source.h"
 #include "SpecFiles.h"
@@ -76,7 +75,7 @@ void runFile(FileResult &f, bool jit) {
   }
   if (expectations(c.program).empty())
     return;
-  f.hash = modelHash(c.program);
+  f.hash = c.modelHash();
   KernelCompiler compile;
   std::shared_ptr<JIT> engine;
   if (jit)

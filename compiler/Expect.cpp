@@ -4,7 +4,6 @@
 #include "Diagnostics.h"
 #include "Fuse.h"
 #include "Interpret.h"
-#include "Lower.h"
 #include "Measures.h"
 #include "Physics.h"
 #include "Pipeline.h"
@@ -436,14 +435,13 @@ private:
 
   std::optional<double> restValue(const std::string &compartment, bool resistance, std::string &why) {
     if (!rest_) {
-      ir::Model model;
-      DiagnosticEngine quiet;
-      if (!lowerModel(c_.program, c_.model, c_.evaluator, nullptr, quiet, model)) {
+      const ir::Model *model = c_.unstimulated();
+      if (!model) {
         restError_ = "the model cannot be lowered for a steady-state search";
         rest_.emplace();
       } else {
         try {
-          rest_ = rest::findSteadyStates(model, &c_.model);
+          rest_ = rest::findSteadyStates(*model, &c_.model);
         } catch (std::exception &ex) {
           restError_ = ex.what();
           rest_.emplace();

@@ -4,7 +4,6 @@
 // then rendered for the chosen format, so both formats say the same thing. Everything the
 // model does not order (channels, pumps, functions, constants) is sorted by name; numbers
 // are either as written in the spec or printed with %.6g.
-#include "ModelHash.h"
 #include "Methods.h"
 #include "Version.h"
 
@@ -1060,7 +1059,7 @@ private:
     d_.heading(2, "Software");
     d_.para("The model was specified in the saltpan modelling language and checked (units, charge and physical "
             "plausibility) by saltpan " + std::string(SALTPAN_VERSION) + ".");
-    d_.para("The exact model, this file and every module it uses, has the hash " + Code(modelHash(c_.program)) +
+    d_.para("The exact model, this file and every module it uses, has the hash " + Code(c_.modelHash()) +
             " (SHA-256 over their canonical forms and the tool version; " + Code("saltpan hash FILE") + ").");
     std::vector<std::string> refs;
     for (const std::string &method : methodsUsed_)

@@ -50,12 +50,4 @@ std::optional<ModelHash> hashProgram(const ast::Program &program, const std::str
   return out;
 }
 
-std::string modelHash(const ast::Program &program) {
-  if (!program.root || !program.root->file)
-    return "unknown";
-  DiagnosticEngine quiet;
-  auto h = hashProgram(program, program.root->file->path(), quiet);
-  return h ? h->hash : "unknown";
-}
-
 } // namespace saltpan

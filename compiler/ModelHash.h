@@ -20,8 +20,5 @@ struct ModelHash {
 
 /// Hashes a loaded program whose root file is `rootPath`; nullopt (with diagnostics) when
 /// a module cannot be put in canonical form.
-std::optional<ModelHash> hashProgram(const ast::Program &program, const std::string &rootPath,
-                                     DiagnosticEngine &diags);
-/// The hash of a checked program, for the headers of outputs ("unknown" if it cannot be had).
-std::string modelHash(const ast::Program &program);
+std::optional<ModelHash> hashProgram(const ast::Program &program, const std::string &rootPath, DiagnosticEngine &diags);
 } // namespace saltpan

@@ -6,6 +6,7 @@
 #include "CheckUnits.h"
 #include "Expect.h"
 #include "Lower.h"
+#include "ModelHash.h"
 #include "Modules.h"
 #include "Sweep.h"
 
@@ -46,6 +47,33 @@ void run(const SourceFile &root, Compilation &c) {
 }
 
 } // namespace
+
+const std::string &Compilation::modelHash() const {
+  if (!modelHash_) {
+    modelHash_ = "unknown";
+    if (program.root && program.root->file) {
+      DiagnosticEngine quiet; // `saltpan hash` reports why a module has no canonical form
+      if (auto h = hashProgram(program, program.root->file->path(), quiet))
+        modelHash_ = h->hash;
+    }
+  }
+  return *modelHash_;
+}
+
+Compilation::Unstimulated &Compilation::lowerUnstimulated() {
+  if (!unstimulated_) {
+    unstimulated_.emplace();
+    unstimulated_->lowered = lowerModel(program, model, evaluator, nullptr, unstimulated_->diags, unstimulated_->model);
+  }
+  return *unstimulated_;
+}
+
+const ir::Model *Compilation::unstimulated() {
+  Unstimulated &u = lowerUnstimulated();
+  return u.lowered ? &u.model : nullptr;
+}
+
+const DiagnosticEngine &Compilation::unstimulatedDiagnostics() { return lowerUnstimulated().diags; }
 
 void compileFile(const std::string &path, Compilation &c) {
   std::error_code ec;

@@ -9,6 +9,7 @@
 #include "Source.h"
 
 #include <map>
+#include <optional>
 #include <string>
 
 namespace saltpan {
@@ -23,6 +24,27 @@ struct Compilation {
   AnalyzedModel model;
   std::map<const ast::ProtocolDecl *, ir::Model> lowered; // every protocol, lowered by check
   bool checked = false; // every stage ran without errors
+
+  /// The model hash (ModelHash.h) of the loaded program, "unknown" if it cannot be had;
+  /// computed on first use (after compileFile) and kept, so callers never re-format the source.
+  const std::string &modelHash() const;
+
+  /// The model without a protocol (no stimuli, every V recorded) that steady states and
+  /// sweep parameters are read from: lowered on first use (after compileFile) and kept.
+  /// nullptr when it cannot be lowered; what lowering reported is unstimulatedDiagnostics().
+  const ir::Model *unstimulated();
+  const DiagnosticEngine &unstimulatedDiagnostics();
+
+private:
+  struct Unstimulated {
+    ir::Model model;
+    DiagnosticEngine diags; // kept apart: most callers do not report them
+    bool lowered = false;
+  };
+  // Both set on first use, from the main thread.
+  mutable std::optional<std::string> modelHash_;
+  std::optional<Unstimulated> unstimulated_;
+  Unstimulated &lowerUnstimulated();
 };
 
 /// Runs every stage on the file at `path`; stops after the first stage with errors.

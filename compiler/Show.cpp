@@ -2,7 +2,6 @@
 #include "Show.h"
 #include "Version.h"
 
-#include "ModelHash.h"
 #include "Physics.h"
 #include "Pipeline.h"
 
@@ -124,7 +123,7 @@ std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRe
   json doc;
   doc["tool"] = "saltpan";
   doc["version"] = SALTPAN_VERSION;
-  doc["model_hash"] = modelHash(c.program);
+  doc["model_hash"] = c.modelHash();
   doc["caution"] = caution;
   doc["model"] = m.header ? json(m.header->name) : json(nullptr);
   doc["title"] = m.header && !m.header->title.empty() ? json(m.header->title) : json(nullptr);
@@ -230,7 +229,7 @@ std::string showText(const Compilation &c, const std::vector<rest::CompartmentRe
            (values.chargeKnown ? num("%+.0f", double(values.netOutwardCharge)) : "?"));
   }
   line("");
-  line("saltpan " + std::string(SALTPAN_VERSION) + ", model " + modelHash(c.program));
+  line("saltpan " + std::string(SALTPAN_VERSION) + ", model " + c.modelHash());
   line(std::string("note: ") + caution);
   return out;
 }

@@ -4,7 +4,6 @@
 #include "Diagnostics.h"
 #include "KernelPlan.h"
 #include "LaneSimulate.h"
-#include "Lower.h"
 #include "Pipeline.h"
 #include "Rest.h"
 #include "Run.h"
@@ -27,17 +26,14 @@ constexpr uint64_t maxPoints = 100000000; // 1e8: beyond this a sweep is a typo,
 
 // The lowered model whose parameters a sweep's axes name: its first measured protocol's,
 // or the stimulus-free lowering for steady-state measures.
-const ir::Model *parameterModel(Compilation &c, const SweepDecl &s, ir::Model &scratch) {
+const ir::Model *parameterModel(Compilation &c, const SweepDecl &s) {
   for (auto &m : s.measures)
     if (m->target) {
       auto it = c.lowered.find(m->target);
       if (it != c.lowered.end())
         return &it->second;
     }
-  DiagnosticEngine quiet;
-  if (!lowerModel(c.program, c.model, c.evaluator, nullptr, quiet, scratch))
-    return nullptr;
-  return &scratch;
+  return c.unstimulated();
 }
 
 bool isWholeNumber(double v, double low, double high) { return v == std::floor(v) && v >= low && v <= high; }
@@ -53,8 +49,7 @@ public:
       diags_.error(s.nameRange, "sweep '" + s.name + "' measures nothing; add 'measure PROTOCOL: MEASURE(...)'");
     for (auto &m : s.measures)
       measure(*m);
-    ir::Model scratch;
-    const ir::Model *model = parameterModel(c_, s, scratch);
+    const ir::Model *model = parameterModel(c_, s);
     if (!model)
       return;
     bool sampled = s.design != SampleDesign::Grid;
@@ -211,8 +206,7 @@ SweepPlan planSweep(Compilation &c, const SweepDecl &s) {
   DiagnosticEngine quiet;
   SweepChecker checker(c, quiet);
   std::vector<sweep::Axis> axes = checker.planAxes(s);
-  ir::Model scratch;
-  const ir::Model *model = parameterModel(c, s, scratch);
+  const ir::Model *model = parameterModel(c, s);
   for (const SweepAxis &a : s.axes) {
     plan.parameters.push_back(a.parameter);
     int p = model->findParam(a.parameter);
@@ -375,8 +369,8 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
     im.runs.push_back(std::move(run));
   }
   if (plan.needsRest) {
-    DiagnosticEngine quiet;
-    lowerModel(c.program, c.model, c.evaluator, nullptr, quiet, im.restModel);
+    if (const ir::Model *unstimulated = c.unstimulated())
+      im.restModel = *unstimulated;
     for (const std::string &name : plan.parameters)
       im.restParam.push_back(im.restModel.findParam(name));
   }

@@ -1,4 +1,6 @@
 // Pipeline.tests.cpp - compileText end to end: what a clean spec yields, where errors stop.
+#include "Lower.h"
+#include "ModelHash.h"
 #include "Physics.h"
 #include "TestSupport.h"
 
@@ -234,4 +236,75 @@ TEST_CASE("a constant whose value cannot be computed is an error even when unuse
   auto c = compile("const broken = 1 / 0\n");
   CHECK_FALSE(c->checked);
   CHECK(testing::hasError(*c, "division by zero"));
+}
+
+TEST_CASE("the model hash is computed once and equals a fresh one", "[pipeline]") {
+  auto c = compile(cleanSpec);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  DiagnosticEngine diags;
+  auto fresh = hashProgram(c->program, c->program.root->file->path(), diags);
+  REQUIRE(fresh);
+  const std::string &first = c->modelHash();
+  CHECK(first == fresh->hash);
+  // Kept: without its root the program would now hash as "unknown".
+  c->program.root = nullptr;
+  CHECK(&c->modelHash() == &first);
+  CHECK(c->modelHash() == fresh->hash);
+}
+
+TEST_CASE("a compilation that loaded nothing has the model hash 'unknown'", "[pipeline]") {
+  Compilation c;
+  CHECK(c.modelHash() == "unknown");
+}
+
+TEST_CASE("every protocol is lowered by the pipeline as a fresh lowering would", "[pipeline]") {
+  std::string text = std::string(cleanSpec) +
+                     "protocol kick {\n  duration 3 ms\n  inject soma 10 uA/cm2 from 1 ms to 2 ms\n"
+                     "  record soma.V every 0.1 ms\n}\n"
+                     "protocol quiet {\n  duration 2 ms\n  record soma.V every 0.5 ms\n}\n";
+  auto c = compile(text);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  auto all = protocols(c->program);
+  REQUIRE(all.size() == 2);
+  REQUIRE(c->lowered.size() == 2);
+  for (const ast::ProtocolDecl *p : all) {
+    INFO("protocol " << p->name);
+    ir::Model fresh;
+    DiagnosticEngine diags;
+    REQUIRE(lowerModel(c->program, c->model, c->evaluator, p, diags, fresh));
+    REQUIRE(c->lowered.count(p) == 1);
+    CHECK(ir::dump(c->lowered.at(p)) == ir::dump(fresh));
+  }
+  CHECK(ir::dump(c->lowered.at(all[0])) != ir::dump(c->lowered.at(all[1])));
+}
+
+TEST_CASE("the stimulus-free lowering is computed once and equals a fresh one", "[pipeline]") {
+  auto c = compile(cleanSpec);
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  ir::Model fresh;
+  DiagnosticEngine diags;
+  REQUIRE(lowerModel(c->program, c->model, c->evaluator, nullptr, diags, fresh));
+  const ir::Model *first = c->unstimulated();
+  REQUIRE(first);
+  CHECK(ir::dump(*first) == ir::dump(fresh));
+  CHECK(c->unstimulatedDiagnostics().all().empty());
+  // Kept: without compartments a fresh lowering would now fail.
+  c->model.compartments.clear();
+  CHECK(c->unstimulated() == first);
+  CHECK(ir::dump(*c->unstimulated()) == ir::dump(fresh));
+}
+
+TEST_CASE("a stimulus-free lowering that fails keeps its diagnostics apart", "[pipeline]") {
+  auto c = compile("model Empty \"no compartment\"\ntemperature 20 degC\n");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  size_t before = c->diags.all().size();
+  CHECK(c->unstimulated() == nullptr);
+  CHECK(c->unstimulated() == nullptr);
+  REQUIRE(c->unstimulatedDiagnostics().all().size() == 1);
+  CHECK(c->unstimulatedDiagnostics().all()[0].message == "the model has no compartment to simulate");
+  CHECK(c->diags.all().size() == before);
 }
