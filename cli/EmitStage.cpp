@@ -71,7 +71,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     const SourceFile *file = c.sources.load(path, error);
     if (!file) {
       std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", path.c_str(), error.c_str());
-      return SpecErrors;
+      return BadInput;
     }
     if (stage == "tokens") {
       std::fputs(dumpTokens(*file).c_str(), stdout);
@@ -80,16 +80,16 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     auto module = parse(*file, c.diags);
     printDiagnostics(c.diags, colour);
     if (!module)
-      return SpecErrors;
+      return BadInput;
     std::fputs(ast::dump(*module).c_str(), stdout);
-    return c.diags.errorCount() ? SpecErrors : Ok;
+    return c.diags.errorCount() ? BadInput : Ok;
   }
 
   Compilation c;
   compileFile(path, c);
   printDiagnostics(c.diags, colour);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   if (stage == "resolved") {
     std::fputs(ast::dumpResolved(c.program).c_str(), stdout);
     return Ok;
@@ -106,7 +106,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   if (!protocolName.empty()) {
     protocol = namedProtocol(c, protocolName, path);
     if (!protocol)
-      return Usage;
+      return BadUsage;
   } else if (!all.empty()) {
     // The spec's own first protocol; a spec whose only protocols are in modules it uses shows
     // the first of those.
@@ -123,13 +123,13 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     auto it = c.lowered.find(protocol);
     if (it == c.lowered.end()) {
       std::fprintf(stderr, "saltpan: internal error: protocol '%s' was not lowered\n", protocol->name.c_str());
-      return Internal;
+      return InternalFault;
     }
     model = &it->second;
   } else {
     if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, unstimulated)) {
       printDiagnostics(c.diags, colour);
-      return SpecErrors;
+      return BadInput;
     }
     model = &unstimulated;
   }
@@ -145,7 +145,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
                    "saltpan: error: %s has no fused kernel: method %s%s steps the model kernel (see --emit ir)\n",
                    protocol ? ("protocol '" + protocol->name + "'").c_str() : "the model without a protocol",
                    ir::methodName(model->protocol.method), clamped(*model) ? " with a voltage clamp" : "");
-      return Usage;
+      return BadUsage;
     }
     for (const NamedKernel &k : kernels)
       std::printf("kernel %s\n%s", k.label.c_str(), ir::dumpKernel(*k.kernel).c_str());
@@ -155,12 +155,12 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   auto jit = JIT::create(error);
   if (!jit) {
     std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
-    return Internal;
+    return InternalFault;
   }
   for (const NamedKernel &k : kernels) {
     if (!jit->compile(*k.kernel, error)) {
       std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
-      return Internal;
+      return InternalFault;
     }
     std::printf("; saltpan kernel: %s\n", k.label.c_str());
     std::fputs((stage == "llvm" ? jit->lastIR() : jit->lastUnoptimisedIR()).c_str(), stdout);

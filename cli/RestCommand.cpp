@@ -44,7 +44,7 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), restHelp);
-  return Usage;
+  return BadUsage;
 }
 
 // "-100mV", "-100 mV", "-0.1 V", "-100" (a bare number is in mV) -> volts.
@@ -210,20 +210,20 @@ int restCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   size_t before = c.diags.all().size();
   ir::Model model;
   if (!lowerModel(c.program, c.model, c.evaluator, nullptr, c.diags, model)) {
     for (size_t i = before; i < c.diags.all().size(); ++i)
       std::fputs(renderText(c.diags.all()[i]).c_str(), stderr);
-    return SpecErrors;
+    return BadInput;
   }
   std::vector<rest::CompartmentRest> result;
   try {
     result = rest::findSteadyStates(model, &c.model, options);
   } catch (const std::exception &e) {
     std::fprintf(stderr, "saltpan: internal error: %s\n", e.what());
-    return Internal;
+    return InternalFault;
   }
   std::string out = fmt == "json" ? json(model.name, result, options) : text(model.name, result, options);
   std::fputs(out.c_str(), stdout);
