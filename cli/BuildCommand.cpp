@@ -82,12 +82,12 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan build: error: %s\n\n%s", message.c_str(), buildHelp);
-  return Usage;
+  return BadUsage;
 }
 
 int fault(const std::string &message) {
   std::fprintf(stderr, "saltpan build: error: %s\n", message.c_str());
-  return Internal;
+  return InternalFault;
 }
 
 // Where a moved or installed saltpan keeps its runtime: PREFIX/bin/saltpan, PREFIX/lib/saltpan/.
@@ -299,7 +299,7 @@ int buildCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0 || !c.checked)
-    return SpecErrors;
+    return BadInput;
   ModelBundle bundle;
   bundle.toolVersion = SALTPAN_VERSION;
   bundle.modelHash = c.modelHash();
@@ -312,7 +312,7 @@ int buildCommand(const std::vector<std::string> &args) {
   }
   if (bundle.protocols.empty()) {
     std::fprintf(stderr, "saltpan build: error: '%s' has no protocol to build\n", o.file.c_str());
-    return Usage;
+    return BadUsage;
   }
   bundleSweeps(c, bundle);
 

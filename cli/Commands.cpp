@@ -84,7 +84,7 @@ struct Options {
 
 int usageError(const std::string &message, const char *help) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), help);
-  return Usage;
+  return BadUsage;
 }
 
 // Returns an exit code when parsing must stop, or -1 to go on.
@@ -219,11 +219,11 @@ int checkCommand(const std::vector<std::string> &args) {
     for (const UnreadableFolder &u : unreadable)
       std::fprintf(stderr, "saltpan: error: %s\n", u.text().c_str());
     if (!unreadable.empty())
-      return SpecErrors;
+      return BadInput;
     if (found.empty()) {
       std::fprintf(stderr, "saltpan: error: %s\n",
                    error.empty() ? ("no spec files (*.saltpan) in '" + path + "'").c_str() : error.c_str());
-      return SpecErrors; // as for a file that cannot be read: nothing was checked
+      return BadInput; // as for a file that cannot be read: nothing was checked
     }
     files.insert(files.end(), found.begin(), found.end());
   }
@@ -250,7 +250,7 @@ int checkCommand(const std::vector<std::string> &args) {
   if (o.format == "text" && o.files.size() > 1)
     std::fprintf(stderr, "%zu file%s checked: %zu error%s, %zu warning%s\n", o.files.size(),
                  o.files.size() == 1 ? "" : "s", errors, errors == 1 ? "" : "s", warnings, warnings == 1 ? "" : "s");
-  return failed ? SpecErrors : Ok;
+  return failed ? BadInput : Ok;
 }
 
 int showCommand(const std::vector<std::string> &args) {
@@ -263,7 +263,7 @@ int showCommand(const std::vector<std::string> &args) {
   compileFile(o.files[0], c);
   printDiagnostics(c.diags, useColour("auto"));
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty())
     return usageError(clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.

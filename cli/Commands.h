@@ -1,5 +1,6 @@
 // Commands.h - the subcommands of the saltpan executable.
 #pragma once
+#include "ExitCode.h"
 #include "SafeWrite.h"
 
 #include <string>
@@ -17,9 +18,6 @@ struct Model;
 } // namespace saltpan
 
 namespace saltpan::cli {
-
-/// Exit codes (sysexits): documented in every --help.
-enum ExitCode { Ok = 0, ExpectationsFailed = 1, Usage = 64, SpecErrors = 65, Internal = 70, CannotWrite = 73 };
 
 int checkCommand(const std::vector<std::string> &args);
 int showCommand(const std::vector<std::string> &args);
@@ -45,13 +43,13 @@ bool isEmitStage(const std::string &stage);
 /// the first one when empty); returns the exit code.
 int emitStage(const std::string &stage, const std::string &protocol, const std::string &path, bool colour);
 /// The protocol of `c` named `name`, or nullptr after printing an error that lists the
-/// protocols `file` has (exit status Usage).
+/// protocols `file` has (exit status BadUsage).
 const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &name, const std::string &file);
 /// The model check lowered for `protocol` (Compilation::lowered), or nullptr after printing an
 /// internal error (exit status Internal): a compilation without errors lowered every protocol.
 const ir::Model *loweredModel(const Compilation &c, const ast::ProtocolDecl &protocol);
 
 /// findOutputClash (SafeWrite.h) against every file `sources` read: "" when the outputs (empty
-/// paths skipped) may be written, else the message to refuse them with (exit status Usage).
+/// paths skipped) may be written, else the message to refuse them with (exit status BadUsage).
 std::string outputClash(const std::vector<NamedFile> &outputs, const SourceManager &sources);
 } // namespace saltpan::cli

@@ -46,7 +46,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     const SourceFile *file = c.sources.load(path, error);
     if (!file) {
       std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", path.c_str(), error.c_str());
-      return SpecErrors;
+      return BadInput;
     }
     if (stage == "tokens") {
       std::fputs(dumpTokens(*file).c_str(), stdout);
@@ -55,16 +55,16 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
     auto module = parse(*file, c.diags);
     printDiagnostics(c.diags, colour);
     if (!module)
-      return SpecErrors;
+      return BadInput;
     std::fputs(ast::dump(*module).c_str(), stdout);
-    return c.diags.errorCount() ? SpecErrors : Ok;
+    return c.diags.errorCount() ? BadInput : Ok;
   }
 
   Compilation c;
   compileFile(path, c);
   printDiagnostics(c.diags, colour);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   if (stage == "resolved") {
     std::fputs(ast::dumpResolved(c.program).c_str(), stdout);
     return Ok;
@@ -81,7 +81,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   if (!protocolName.empty()) {
     protocol = namedProtocol(c, protocolName, path);
     if (!protocol)
-      return Usage;
+      return BadUsage;
   } else if (!all.empty()) {
     // The spec's own first protocol; a spec whose only protocols are in modules it uses shows
     // the first of those.
@@ -95,11 +95,11 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   const ir::Model *model = nullptr;
   if (protocol) {
     if (!(model = loweredModel(c, *protocol)))
-      return Internal;
+      return InternalFault;
   } else if (!(model = c.unstimulated())) {
     printDiagnostics(c.diags, colour);
     printDiagnostics(c.unstimulatedDiagnostics(), colour);
-    return SpecErrors;
+    return BadInput;
   }
   if (stage == "ir") {
     std::fputs(ir::dump(*model).c_str(), stdout);
@@ -123,7 +123,7 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
                    "saltpan: error: %s has no fused kernel: method %s%s steps the model kernel (see --emit ir)\n",
                    protocol ? ("protocol '" + protocol->name + "'").c_str() : "the model without a protocol",
                    ir::methodName(model->protocol.method), clamped(*model) ? " with a voltage clamp" : "");
-      return Usage;
+      return BadUsage;
     }
     for (const KernelPlan::Entry &k : kernels)
       std::printf("kernel %s\n%s", k.label.c_str(), ir::dumpKernel(*k.kernel).c_str());
@@ -133,12 +133,12 @@ int emitStage(const std::string &stage, const std::string &protocolName, const s
   auto jit = JIT::create(error);
   if (!jit) {
     std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
-    return Internal;
+    return InternalFault;
   }
   for (const KernelPlan::Entry &k : kernels) {
     if (!jit->compile(*k.kernel, error)) {
       std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", error.c_str());
-      return Internal;
+      return InternalFault;
     }
     std::printf("; saltpan kernel: %s\n", k.label.c_str());
     std::fputs((stage == "llvm" ? jit->lastIR() : jit->lastUnoptimisedIR()).c_str(), stdout);

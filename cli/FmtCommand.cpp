@@ -48,7 +48,7 @@ exit status: 0 success (with --check: every file is canonical), 1 with --check: 
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), fmtHelp);
-  return Usage;
+  return BadUsage;
 }
 
 // Where an in-place rewrite of `path` goes, or "" with `error` when it must not happen.
@@ -171,7 +171,7 @@ int fmtCommand(const std::vector<std::string> &args) {
     }
   }
   if (errors)
-    return SpecErrors;
+    return BadInput;
   if (cannotWrite)
     return CannotWrite;
   return check && changed ? ExpectationsFailed : Ok;

@@ -43,7 +43,7 @@ exit status: 0 success, 64 bad usage, 65 the spec or a module it uses has syntax
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), hashHelp);
-  return Usage;
+  return BadUsage;
 }
 
 } // namespace
@@ -92,7 +92,7 @@ int hashCommand(const std::vector<std::string> &args) {
   const SourceFile *root = sources.load(files[0], error);
   if (!root) {
     std::fprintf(stderr, "saltpan: cannot read '%s': %s\n", files[0].c_str(), error.c_str());
-    return SpecErrors;
+    return BadInput;
   }
   ast::Program program;
   bool loaded = loadProgram(*root, sources, diags, program);
@@ -100,14 +100,14 @@ int hashCommand(const std::vector<std::string> &args) {
     // Only what stopped the loading is worth showing; `saltpan check` reports the rest.
     for (const Diagnostic &d : diags.all())
       std::fputs(renderText(d, colour).c_str(), stderr);
-    return SpecErrors;
+    return BadInput;
   }
 
   std::optional<ModelHash> hashed = hashProgram(program, root->path(), diags);
   if (!hashed) {
     for (const Diagnostic &d : diags.all())
       std::fputs(renderText(d, colour).c_str(), stderr);
-    return SpecErrors;
+    return BadInput;
   }
   std::string hash = hashed->hash;
   nlohmann::json modules = nlohmann::json::array();

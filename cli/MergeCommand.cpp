@@ -37,12 +37,12 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan merge: error: %s\n\n%s", message.c_str(), mergeHelp);
-  return Usage;
+  return BadUsage;
 }
 
 int refuse(const std::string &message) {
   std::fprintf(stderr, "saltpan merge: error: %s\n", message.c_str());
-  return SpecErrors;
+  return BadInput;
 }
 
 } // namespace
@@ -79,7 +79,7 @@ int mergeCommand(const std::vector<std::string> &args) {
     shardFiles.push_back({"the shard", in});
   if (std::string clash = findOutputClash(named, shardFiles); !clash.empty()) {
     std::fprintf(stderr, "saltpan merge: error: %s\n", clash.c_str());
-    return Usage;
+    return BadUsage;
   }
 
   std::vector<sweep::Table> shards(inputs.size());

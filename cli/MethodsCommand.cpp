@@ -44,7 +44,7 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), methodsHelp);
-  return Usage;
+  return BadUsage;
 }
 
 } // namespace
@@ -113,10 +113,10 @@ int methodsCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d, colour).c_str(), stderr);
   if (c.diags.errorCount() > 0 || !c.checked)
-    return SpecErrors;
+    return BadInput;
   if (std::string clash = outputClash({{"-o", output}}, c.sources); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return Usage;
+    return BadUsage;
   }
 
   MethodsOptions options;

@@ -37,31 +37,31 @@ int main(int argc, char **argv) {
   MPI_Comm_rank(MPI_COMM_WORLD, &rank);
   MPI_Comm_size(MPI_COMM_WORLD, &size);
   std::vector<std::string> args(argv + 1, argv + argc);
-  int rc = saltpan::cli::Ok;
+  int rc = saltpan::Ok;
   std::vector<std::string> outputs, sweepArgs;
   if (args.empty() || args[0] != "sweep" || (args.size() > 1 && (args[1] == "--help" || args[1] == "-h"))) {
     if (rank == 0)
       std::fputs(mpiHelp, args.size() > 1 && args[1] == "--help" ? stdout : stderr);
     MPI_Finalize();
-    return args.size() > 1 && args[1] == "--help" ? saltpan::cli::Ok : saltpan::cli::Usage;
+    return args.size() > 1 && args[1] == "--help" ? saltpan::Ok : saltpan::BadUsage;
   }
   for (size_t i = 1; i < args.size(); ++i) {
     std::string v;
     if (saltpan::cli::optionValue(args, i, "-o", v))
       outputs.push_back(v);
     else if (args[i] == "--shard" || args[i].rfind("--shard=", 0) == 0)
-      rc = saltpan::cli::Usage;
+      rc = saltpan::BadUsage;
     else
       sweepArgs.push_back(args[i]);
   }
-  if (rc != saltpan::cli::Ok || outputs.empty()) {
+  if (rc != saltpan::Ok || outputs.empty()) {
     if (rank == 0)
       std::fprintf(stderr, "saltpan-mpi: error: %s\n\n%s",
                    outputs.empty() ? "give at least one output with -o FILE"
                                    : "the ranks choose the shards; drop --shard",
                    mpiHelp);
     MPI_Finalize();
-    return saltpan::cli::Usage;
+    return saltpan::BadUsage;
   }
   auto shardFile = [&](int r) {
     return outputs.front() + ".rank-" + std::to_string(r) + "-of-" + std::to_string(size) + ".json";
@@ -83,14 +83,14 @@ int main(int argc, char **argv) {
   rc = saltpan::cli::sweepCommand(mine);
   int worst = 0;
   MPI_Allreduce(&rc, &worst, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
-  if (worst == saltpan::cli::Ok && rank == 0) {
+  if (worst == saltpan::Ok && rank == 0) {
     std::vector<std::string> merge;
     for (const std::string &o : outputs)
       merge.insert(merge.end(), {"-o", o});
     for (int r = 0; r < size; ++r)
       merge.push_back(shardFile(r));
     worst = saltpan::cli::mergeCommand(merge);
-    if (worst == saltpan::cli::Ok)
+    if (worst == saltpan::Ok)
       for (int r = 0; r < size; ++r)
         std::filesystem::remove(shardFile(r));
   }

@@ -43,7 +43,7 @@ saltpan is a research modelling tool; it is not for clinical or diagnostic decis
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), restHelp);
-  return Usage;
+  return BadUsage;
 }
 
 // "-100mV", "-100 mV", "-0.1 V", "-100" (a bare number is in mV) -> volts.
@@ -209,12 +209,12 @@ int restCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   const ir::Model *unstimulated = c.unstimulated();
   if (!unstimulated) {
     for (const Diagnostic &d : c.unstimulatedDiagnostics().all())
       std::fputs(renderText(d).c_str(), stderr);
-    return SpecErrors;
+    return BadInput;
   }
   const ir::Model &model = *unstimulated;
   std::vector<rest::CompartmentRest> result;
@@ -222,7 +222,7 @@ int restCommand(const std::vector<std::string> &args) {
     result = rest::findSteadyStates(model, &c.model, options);
   } catch (const std::exception &e) {
     std::fprintf(stderr, "saltpan: internal error: %s\n", e.what());
-    return Internal;
+    return InternalFault;
   }
   std::string out = fmt == "json" ? json(model.name, result, options) : text(model.name, result, options);
   std::fputs(out.c_str(), stdout);

@@ -64,7 +64,7 @@ struct RunOptions {
 int usage(const std::string &message) {
   // One line that names the fault; the whole help would bury it.
   std::fprintf(stderr, "saltpan: error: %s (saltpan run --help lists the options)\n", message.c_str());
-  return Usage;
+  return BadUsage;
 }
 
 } // namespace
@@ -120,36 +120,36 @@ int runCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   if (std::string clash = outputClash({{"-o", o.output}, {"--plot", o.plot}}, c.sources); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return Usage;
+    return BadUsage;
   }
   auto all = protocols(c.program);
   const ast::ProtocolDecl *protocol = nullptr;
   if (!o.protocol.empty()) {
     if (!(protocol = namedProtocol(c, o.protocol, o.file)))
-      return Usage;
+      return BadUsage;
   } else if (all.size() == 1) {
     protocol = all.front();
   } else if (all.size() > 1) {
     std::fprintf(stderr, "saltpan: error: '%s' has %zu protocols; choose one with --protocol\n", o.file.c_str(),
                  all.size());
-    return Usage;
+    return BadUsage;
   } else {
     std::fprintf(stderr, "saltpan: error: '%s' has no protocol to run\n", o.file.c_str());
-    return Usage;
+    return BadUsage;
   }
   const ir::Model *lowered = loweredModel(c, *protocol);
   if (!lowered)
-    return Internal;
+    return InternalFault;
   ir::Model model = *lowered; // a copy: --duration and --every change its protocol
   std::vector<double> params = model.params;
   std::string settingError;
   for (const std::string &s : o.sets)
     if (!applyParameterSetting(model, s, params, "`saltpan check --emit ir " + o.file + "` lists them", settingError)) {
       std::fprintf(stderr, "saltpan: error: %s\n", settingError.c_str());
-      return Usage;
+      return BadUsage;
     }
   if (!applyTiming(model.protocol, o.duration, o.every, settingError))
     return usage(settingError);
@@ -161,14 +161,14 @@ int runCommand(const std::vector<std::string> &args) {
     jit = JIT::create(jitError);
     if (!jit) {
       std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", jitError.c_str());
-      return Internal;
+      return InternalFault;
     }
     compile = [&jit](const ir::Kernel &k, int lanes, std::string &error) { return jit->compile(k, lanes, error); };
   }
   RunOutcome outcome = runModel(model, params, compile);
   if (compile && !outcome.native) {
     std::fprintf(stderr, "saltpan: internal error: the JIT failed: %s\n", outcome.compileError.c_str());
-    return Internal;
+    return InternalFault;
   }
   const SimulationFailure &failure = outcome.failure;
   const SimulationStats &stats = outcome.stats;
@@ -178,7 +178,7 @@ int runCommand(const std::vector<std::string> &args) {
                  failure.variable.c_str(), failure.reason.c_str());
     if (!o.keepPartial) {
       std::fprintf(stderr, "note: no output was written (--keep-partial keeps what was recorded)\n");
-      return SpecErrors;
+      return BadInput;
     }
     // Named so that it cannot be taken for a finished run's output.
     std::filesystem::path out(o.output);
@@ -191,7 +191,7 @@ int runCommand(const std::vector<std::string> &args) {
     }
     std::fprintf(stderr, "note: %zu samples up to the failure written to %s; %s was not written\n", trace.time.size(),
                  partial.c_str(), o.output.c_str());
-    return SpecErrors;
+    return BadInput;
   }
   std::string text = isJsonPath(o.output) ? traceJson(trace, model, c.modelHash(), SALTPAN_VERSION) : traceCsv(trace);
   if (o.output.empty()) {

@@ -52,25 +52,25 @@ int snapshotCommand(const std::vector<std::string> &args) {
       (a == "--protocol" ? only : engine) = args[++i];
     } else if (a.size() > 1 && a[0] == '-') {
       std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), snapshotHelp);
-      return Usage;
+      return BadUsage;
     } else if (file.empty()) {
       file = a;
     } else {
       std::fprintf(stderr, "saltpan: snapshot takes one spec file\n\n%s", snapshotHelp);
-      return Usage;
+      return BadUsage;
     }
   }
   if (file.empty() || (engine != "jit" && engine != "interpreter")) {
     std::fprintf(stderr, "saltpan: %s\n\n%s",
                  file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'", snapshotHelp);
-    return Usage;
+    return BadUsage;
   }
   Compilation c;
   compileFile(file, c);
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   KernelCompiler compile;
   std::unique_ptr<JIT> jit;
   if (engine == "jit")
@@ -93,7 +93,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
     if (run.failure.failed) {
       std::fprintf(stderr, "saltpan: error: protocol '%s' failed at t = %.6g ms: '%s' %s\n", p->name.c_str(),
                    run.failure.time * 1e3, run.failure.variable.c_str(), run.failure.reason.c_str());
-      return SpecErrors;
+      return BadInput;
     }
     const Trace &t = run.trace;
     char buf[160];
@@ -130,7 +130,7 @@ int snapshotCommand(const std::vector<std::string> &args) {
   if (written == 0) {
     std::fprintf(stderr, "saltpan: error: '%s' has %s\n", file.c_str(),
                  only.empty() ? "no protocol" : ("no protocol '" + only + "'").c_str());
-    return Usage;
+    return BadUsage;
   }
   return Ok;
 }

@@ -78,7 +78,7 @@ struct SweepOptions {
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
-  return Usage;
+  return BadUsage;
 }
 
 bool wholeNumber(const std::string &s, long low, long high, long &into) {
@@ -216,7 +216,7 @@ int sweepCommand(const std::vector<std::string> &args) {
     std::error_code ec;
     if (!std::filesystem::is_regular_file(o.file, ec)) {
       std::fprintf(stderr, "saltpan sweep: error: cannot read '%s'\n", o.file.c_str());
-      return SpecErrors;
+      return BadInput;
     }
     compileText("<command line>", commandLineSpec(o), c);
   } else {
@@ -225,7 +225,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   for (const Diagnostic &d : c.diags.all())
     std::fputs(renderText(d).c_str(), stderr);
   if (c.diags.errorCount() > 0)
-    return SpecErrors;
+    return BadInput;
   std::vector<NamedFile> outputs;
   for (const std::string &out : o.outputs)
     outputs.push_back({"-o", out});
@@ -254,7 +254,7 @@ int sweepCommand(const std::vector<std::string> &args) {
     else
       std::fprintf(stderr, "saltpan sweep: error: there is no sweep '%s' in '%s'; it has %s\n", o.sweep.c_str(),
                    o.file.c_str(), names.c_str());
-    return Usage;
+    return BadUsage;
   }
   SweepPlan plan = planSweep(c, *chosen);
 
@@ -282,7 +282,7 @@ int sweepCommand(const std::vector<std::string> &args) {
     jit = JIT::create(jitError);
     if (!jit) {
       std::fprintf(stderr, "saltpan sweep: internal error: the JIT failed: %s\n", jitError.c_str());
-      return Internal;
+      return InternalFault;
     }
     if (lanes > jit->nativeLanes())
       return usage("this CPU's vectors hold at most " + std::to_string(jit->nativeLanes()) + " lanes");
@@ -294,7 +294,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   std::string error;
   if (!evaluator.ready(error)) {
     std::fprintf(stderr, "saltpan sweep: internal error: %s\n", error.c_str());
-    return Internal;
+    return InternalFault;
   }
   table.engine = evaluator.description();
   table.sweepHash = sweep::sweepHash(table);
@@ -322,7 +322,7 @@ int sweepCommand(const std::vector<std::string> &args) {
   };
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
     std::fprintf(stderr, "saltpan sweep: error: %s\n", error.c_str());
-    return sweep::cannotWriteJournal(error) ? CannotWrite : Usage;
+    return sweep::cannotWriteJournal(error) ? CannotWrite : BadUsage;
   }
 
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {

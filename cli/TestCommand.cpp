@@ -141,32 +141,32 @@ int testCommand(const std::vector<std::string> &args) {
     } else if (value("--engine", engine)) {
       if (engine != "jit" && engine != "interpreter") {
         std::fprintf(stderr, "saltpan: --engine must be 'jit' or 'interpreter'\n\n%s", testHelp);
-        return Usage;
+        return BadUsage;
       }
     } else if (value("--jobs", v)) {
       int n = std::atoi(v.c_str());
       if (n < 1) {
         std::fprintf(stderr, "saltpan: --jobs needs a positive number\n\n%s", testHelp);
-        return Usage;
+        return BadUsage;
       }
       jobs = static_cast<unsigned>(n);
     } else if (a.size() > 1 && a[0] == '-') {
       std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), testHelp);
-      return Usage;
+      return BadUsage;
     } else {
       paths.push_back(a);
     }
   }
   if (paths.empty()) {
     std::fprintf(stderr, "saltpan: no path given\n\n%s", testHelp);
-    return Usage;
+    return BadUsage;
   }
   std::string error;
   std::vector<UnreadableFolder> unreadable; // reported like files with errors
   std::vector<std::string> files = discoverSpecs(paths, unreadable, error);
   if (!error.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", error.c_str());
-    return Usage;
+    return BadUsage;
   }
   std::vector<NamedFile> outputs, specs;
   for (const NamedFile &out : {NamedFile{"--junit", junit}, NamedFile{"--json", jsonPath}})
@@ -176,7 +176,7 @@ int testCommand(const std::vector<std::string> &args) {
     specs.push_back({"the spec", f});
   if (std::string clash = findOutputClash(outputs, specs); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return Usage;
+    return BadUsage;
   }
   std::vector<FileResult> results(files.size());
   for (size_t i = 0; i < files.size(); ++i)
@@ -304,7 +304,7 @@ int testCommand(const std::vector<std::string> &args) {
     }
   }
   if (broken)
-    return SpecErrors;
+    return BadInput;
   // CI that tests nothing must not pass by accident.
   if (passed + failed == 0 && !allowEmpty) {
     std::fprintf(stderr,

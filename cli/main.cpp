@@ -46,22 +46,22 @@ int main(int argc, char **argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     if (args.empty()) {
       std::fputs(usage, stderr);
-      return saltpan::cli::Usage;
+      return saltpan::BadUsage;
     }
     std::string command = args.front();
     std::vector<std::string> rest(args.begin() + 1, args.end());
     if (command == "--help" || command == "-h") {
       std::fputs(usage, stdout);
-      return saltpan::cli::Ok;
+      return saltpan::Ok;
     }
     if (command == "--version") {
       std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return saltpan::cli::Ok;
+      return saltpan::Ok;
     }
     if (command == "help") {
       if (rest.empty() || rest.front() == "--help" || rest.front() == "-h") {
         std::fputs(usage, stdout);
-        return saltpan::cli::Ok;
+        return saltpan::Ok;
       }
       command = rest.front();
       rest = {"--help"};
@@ -91,12 +91,12 @@ int main(int argc, char **argv) {
     if (command == "build")
       return saltpan::cli::buildCommand(rest);
     std::fprintf(stderr, "saltpan: unknown command '%s'\n\n%s", command.c_str(), usage);
-    return saltpan::cli::Usage;
+    return saltpan::BadUsage;
   } catch (const std::exception &e) {
     std::fprintf(stderr, "saltpan: internal error: %s\n", e.what());
-    return saltpan::cli::Internal;
+    return saltpan::InternalFault;
   } catch (...) {
     std::fprintf(stderr, "saltpan: internal error\n");
-    return saltpan::cli::Internal;
+    return saltpan::InternalFault;
   }
 }

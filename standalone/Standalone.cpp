@@ -30,7 +30,7 @@ bool optionValue(const std::vector<std::string> &args, size_t &i, const std::str
 
 int usage(const std::string &program, const std::string &message, const std::string &hint) {
   std::fprintf(stderr, "%s: error: %s\n%s\n", program.c_str(), message.c_str(), hint.c_str());
-  return Usage;
+  return BadUsage;
 }
 
 } // namespace saltpan::standalone
@@ -111,7 +111,7 @@ int run(const std::vector<std::string> &args) {
   std::string error;
   if (!loadEmbeddedBundle(bundle, error) || bundle.protocols.empty()) {
     std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), error.empty() ? "no protocol" : error.c_str());
-    return Internal;
+    return InternalFault;
   }
   if (!args.empty() && args[0] == "sweep")
     return sweepMode(bundle, std::vector<std::string>(args.begin() + 1, args.end()), program);
@@ -171,13 +171,13 @@ int run(const std::vector<std::string> &args) {
   RunOutcome outcome = runModel(model, params, compile);
   if (!outcome.native) {
     std::fprintf(stderr, "%s: internal error: %s\n", program.c_str(), outcome.compileError.c_str());
-    return Internal;
+    return InternalFault;
   }
   if (outcome.failure.failed) {
     std::fprintf(stderr, "%s: error: the simulation failed at t = %.6g ms: '%s' %s\nnote: no output was written\n",
                  program.c_str(), outcome.failure.time * 1e3, outcome.failure.variable.c_str(),
                  outcome.failure.reason.c_str());
-    return Failed;
+    return BadInput;
   }
   std::string text = isJsonPath(o.output) ? traceJson(outcome.trace, model, bundle.modelHash, bundle.toolVersion)
                                           : traceCsv(outcome.trace);
@@ -207,5 +207,5 @@ int main(int argc, char **argv) {
   } catch (...) {
     std::fprintf(stderr, "%s: internal error\n", program.c_str());
   }
-  return Internal;
+  return InternalFault;
 }

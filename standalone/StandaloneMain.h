@@ -1,5 +1,6 @@
 // StandaloneMain.h - pieces of the built executables' main() that its modes share.
 #pragma once
+#include "ExitCode.h"
 #include "ModelFile.h"
 
 #include <string>
@@ -7,11 +8,9 @@
 
 namespace saltpan::standalone {
 
-enum ExitCode { Ok = 0, Usage = 64, Failed = 65, Internal = 70, CannotWrite = 73 };
-
 /// "--name=VALUE" or "--name VALUE" at args[i], as saltpan's own options; advances i past VALUE.
 bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
-/// Prints "PROGRAM: error: MESSAGE" and `hint` (where the options are listed); returns Usage.
+/// Prints "PROGRAM: error: MESSAGE" and `hint` (where the options are listed); returns BadUsage.
 int usage(const std::string &program, const std::string &message, const std::string &hint);
 
 /// `PROGRAM sweep ARGS`: runs a built-in sweep as `saltpan sweep --engine scalar` would.

@@ -170,7 +170,7 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
     kernels.emplace_back(planKernels(m, KernelUse::Run), embeddedKernel);
     if (!kernels.back().native()) {
       std::fprintf(stderr, "%s sweep: internal error: %s\n", program.c_str(), kernels.back().compileError().c_str());
-      return Internal;
+      return InternalFault;
     }
   }
   auto evaluate = [&](const std::vector<size_t> &local, std::vector<sweep::PointResult> &out, int) {
@@ -220,8 +220,8 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
   if (!sweep::runSweep(table, evaluate, run, report, error)) {
     std::fprintf(stderr, "%s sweep: error: %s\n", program.c_str(), error.c_str());
     return sweep::cannotWriteJournal(error)             ? CannotWrite
-           : error.find("journal") != std::string::npos ? Usage
-                                                        : Internal;
+           : error.find("journal") != std::string::npos ? BadUsage
+                                                        : InternalFault;
   }
   if (!sweep::writeOutputs(table, o.outputs, run.journal, error)) {
     std::fprintf(stderr, "%s sweep: error: %s\nnote: the finished points are kept in '%s'\n", program.c_str(),
