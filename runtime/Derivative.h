@@ -39,6 +39,15 @@ void timeDerivative(Math &m, const ir::Model &model, State y, Output out, Capaci
     dydt[pool.state] = out(pool.derivativeOutput);
   for (const ir::Compartment &c : model.compartments)
     dydt[c.voltageState] = m.div(m.neg(membraneCurrent(m, c, y, out)), capacitance(c));
+  // Axial currents between joined compartments, as densities of each end's membrane.
+  for (const ir::Junction &j : model.junctions) {
+    const ir::Compartment &parent = model.compartments[static_cast<size_t>(j.parent)];
+    const ir::Compartment &child = model.compartments[static_cast<size_t>(j.child)];
+    auto flow = m.mul(m.constant(j.conductance), m.sub(y(child.voltageState), y(parent.voltageState))); // A
+    auto &dParent = dydt[parent.voltageState], &dChild = dydt[child.voltageState];
+    dParent = m.add(dParent, m.div(flow, m.mul(m.constant(parent.area), capacitance(parent))));
+    dChild = m.sub(dChild, m.div(flow, m.mul(m.constant(child.area), capacitance(child))));
+  }
 }
 
 /// One classical RK4 step of length h over n states, y advanced in place. `slope(stage, states,

@@ -115,6 +115,11 @@ FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelR
   for (auto *v : {&k1_, &k2_, &k3_, &k4_, &tmp_})
     v->assign(n, 0);
   scratch_.assign(model.kernel.outputs.size(), 0);
+  if (model.protocol.method == ir::Method::BackwardEuler || model.protocol.method == ir::Method::CrankNicolson) {
+    tree_ = std::make_shared<const Tree>(model);
+    for (auto *v : {&diag_, &rhs_, &up_, &low_})
+      v->assign(model.compartments.size(), 0);
+  }
 }
 
 void FixedStepper::evaluate(const double *y, double t, double *out) {
@@ -144,7 +149,7 @@ void FixedStepper::rk4Step(double *y, const double *out, double t, double h, dou
 // conductances of the new gates and the stimulus at the step's middle. Read as a staggered
 // scheme (gates at half steps), it is second order in V; freezing the old gates instead, as
 // the plain Rush-Larsen ordering does, is first order.
-void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, double h) {
+bool FixedStepper::gatesAndPools(double *y, const double *out, double t, double h) {
   for (const ir::Pool &pool : m_.pools) // forward Euler; their currents change slowly
     y[pool.state] += h * out[pool.derivativeOutput];
   for (const ir::Gate &g : m_.gates) {
@@ -153,8 +158,16 @@ void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, 
   }
   auto clamped = [&](const ir::Compartment &c) { return c.clampedOutput >= 0 && out[c.clampedOutput] != 0; };
   if (std::all_of(m_.compartments.begin(), m_.compartments.end(), clamped))
-    return;                                  // every potential is held by its clamp; set again at the next step's start
+    return false;                            // every potential is held by its clamp; set again at the next step's start
   evaluate(y, t + 0.5 * h, scratch_.data()); // new gates and pools, old potentials
+  return true;
+}
+
+void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, double h) {
+  assert(m_.junctions.empty() && "exponential Euler steps each compartment alone");
+  if (!gatesAndPools(y, out, t, h))
+    return;
+  auto clamped = [&](const ir::Compartment &c) { return c.clampedOutput >= 0 && out[c.clampedOutput] != 0; };
   for (const ir::Compartment &c : m_.compartments) {
     if (clamped(c))
       continue;
@@ -164,18 +177,65 @@ void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, 
   }
 }
 
+// The gates as exponential Euler moves them, then every potential at once from the linear
+// system of the membranes (linearised with the new gates, stimulus at the step's middle) and the
+// axial conductances: backward Euler over the step, or Crank-Nicolson as backward Euler over
+// half the step and extrapolation to its end (second order in V; the gates are staggered half a
+// step, as in exponential Euler). The tree's elimination solves it in O(N).
+void FixedStepper::implicitStep(double *y, const double *out, double t, double h) {
+  if (!gatesAndPools(y, out, t, h))
+    return;
+  bool crank = m_.protocol.method == ir::Method::CrankNicolson;
+  double span = crank ? 0.5 * h : h;
+  const std::vector<ir::Compartment> &cs = m_.compartments;
+  for (size_t i = 0; i < cs.size(); ++i) {
+    const ir::Compartment &c = cs[i];
+    double capacitance = p_[c.capacitanceParam] / span;
+    diag_[i] = capacitance + scratch_[c.gOutput];
+    rhs_[i] = capacitance * y[c.voltageState] + scratch_[c.geOutput] - scratch_[c.iOtherOutput];
+    up_[i] = low_[i] = 0;
+  }
+  for (size_t i = 0; i < cs.size(); ++i) {
+    int p = tree_->parent(i);
+    if (p < 0)
+      continue;
+    double g = tree_->conductance(i);
+    diag_[i] += g / cs[i].area;
+    up_[i] = -g / cs[i].area;
+    diag_[static_cast<size_t>(p)] += g / cs[static_cast<size_t>(p)].area;
+    low_[i] = -g / cs[static_cast<size_t>(p)].area;
+  }
+  for (size_t i = 0; i < cs.size(); ++i) // a clamped row is V = its held value
+    if (cs[i].clampedOutput >= 0 && out[cs[i].clampedOutput] != 0) {
+      diag_[i] = 1;
+      rhs_[i] = y[cs[i].voltageState];
+      up_[i] = 0;
+      for (size_t k = 0; k < cs.size(); ++k)
+        if (tree_->parent(k) == static_cast<int>(i))
+          low_[k] = 0;
+    }
+  tree_->solve(diag_.data(), up_.data(), low_.data(), rhs_.data());
+  for (size_t i = 0; i < cs.size(); ++i) {
+    double &v = y[cs[i].voltageState];
+    v = crank ? 2 * rhs_[i] - v : rhs_[i];
+  }
+}
+
 void FixedStepper::piece(double *y, const double *out, double t, double h, double end, double *injected) {
   if (injected)
     for (size_t c = 0; c < m_.compartments.size(); ++c)
       injected[c] += out[m_.compartments[c].injectedOutput] * h;
-  if (m_.protocol.method == ir::Method::RungeKutta4)
-    rk4Step(y, out, t, h, end);
-  else
-    exponentialEulerStep(y, out, t, h);
+  switch (m_.protocol.method) {
+  case ir::Method::RungeKutta4: rk4Step(y, out, t, h, end); break;
+  case ir::Method::ExponentialEuler: exponentialEulerStep(y, out, t, h); break;
+  case ir::Method::BackwardEuler:
+  case ir::Method::CrankNicolson: implicitStep(y, out, t, h); break;
+  case ir::Method::DormandPrince:
+  case ir::Method::Rosenbrock: assert(!"adaptive methods take no fixed step"); break;
+  }
 }
 
 void FixedStepper::step(const StepGrid &grid, long i, double *y, double *out, double *injected) {
-  assert(m_.protocol.method == ir::Method::RungeKutta4 || m_.protocol.method == ir::Method::ExponentialEuler);
   double start = grid.time(i);
   if (grid.smooth(i)) { // as a fused kernel takes it: a whole dt from the start
     piece(y, out, start, grid.step(), start + grid.step(), injected);

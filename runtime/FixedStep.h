@@ -9,6 +9,9 @@
 #pragma once
 #include "IR.h"
 #include "Simulate.h"
+#include "Tree.h"
+
+#include <memory>
 
 #include <span>
 #include <vector>
@@ -74,6 +77,10 @@ private:
   // One step of length h from t; `end` is the time for stages at the piece's end.
   void rk4Step(double *y, const double *out, double t, double h, double end);
   void exponentialEulerStep(double *y, const double *out, double t, double h);
+  void implicitStep(double *y, const double *out, double t, double h);
+  // Exponential Euler's gates and forward Euler's pools; then the outputs at the step's middle
+  // with the new gates into scratch_ (false when every potential is clamped: nothing to do).
+  bool gatesAndPools(double *y, const double *out, double t, double h);
   void piece(double *y, const double *out, double t, double h, double end, double *injected);
 
   const ir::Model &m_;
@@ -81,6 +88,8 @@ private:
   KernelRef kernel_;
   SimulationStats *stats_;
   std::vector<double> k1_, k2_, k3_, k4_, tmp_, scratch_;
+  std::shared_ptr<const Tree> tree_; // implicit methods: the junctions' elimination order
+  std::vector<double> diag_, rhs_, up_, low_;
 };
 
 /// The fixed-step run of one parameter set, step by step: a step the grid calls smooth is one

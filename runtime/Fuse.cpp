@@ -82,6 +82,8 @@ std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &m, double dt, bool wi
 }
 
 std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bool withOutputs) {
+  if (!m.junctions.empty()) // its potentials relax one compartment at a time
+    return std::nullopt;
   for (const ir::Compartment &c : m.compartments)
     if (c.clampedOutput >= 0)
       return std::nullopt;

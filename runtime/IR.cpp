@@ -35,6 +35,8 @@ const char *methodName(Method m) {
   case Method::RungeKutta4: return "rk4";
   case Method::DormandPrince: return "dormand_prince";
   case Method::Rosenbrock: return "rosenbrock";
+  case Method::BackwardEuler: return "backward_euler";
+  case Method::CrankNicolson: return "crank_nicolson";
   }
   return "?";
 }
@@ -130,6 +132,9 @@ std::string dump(const Model &m) {
   for (const Compartment &c : m.compartments)
     out << "compartment " << c.name << " V=y" << c.voltageState << " C=p" << c.capacitanceParam << " area "
         << num(c.area) << " G=out" << c.gOutput << " GE=out" << c.geOutput << " Iother=out" << c.iOtherOutput << "\n";
+  for (const Junction &j : m.junctions)
+    out << "junction " << m.compartments[static_cast<size_t>(j.parent)].name << " - "
+        << m.compartments[static_cast<size_t>(j.child)].name << " " << num(j.conductance) << " S\n";
   for (const Gate &g : m.gates)
     out << "gate " << g.name << " y" << g.state << " inf=out" << g.infOutput << " tau=out" << g.tauOutput << "\n";
   for (const Probe &r : m.probes)

@@ -84,6 +84,13 @@ struct Compartment {
   bool allCurrentCarried = false; // every membrane current is carried by a dynamic ion
 };
 
+/// Two compartments joined by an axial conductance: the pieces of a cable, or a cable and the
+/// compartment it grows from. A current conductance * (V_child - V_parent) flows into the parent.
+struct Junction {
+  int parent = -1, child = -1; // compartment indices; following parents from any compartment ends at a root
+  double conductance = 0;      // S
+};
+
 /// A dynamic inside concentration: d[X]/dt = -I_X * (area/volume) / (z F).
 struct Pool {
   std::string name; // "soma.Ca"
@@ -104,7 +111,7 @@ struct Probe {
   bool entryCurrent = false; // the current of one channel or pump (not a per-ion sum)
 };
 
-enum class Method { ExponentialEuler, RungeKutta4, DormandPrince, Rosenbrock };
+enum class Method { ExponentialEuler, RungeKutta4, DormandPrince, Rosenbrock, BackwardEuler, CrankNicolson };
 const char *methodName(Method m);
 
 /// A protocol after lowering: how long, with which method, what to record.
@@ -127,6 +134,7 @@ struct Model {
   std::vector<double> params;
   std::vector<Dimension> paramDims; // what `--set` must give for each parameter
   std::vector<Compartment> compartments;
+  std::vector<Junction> junctions; // empty: every compartment is its own isolated patch
   std::vector<Gate> gates;
   std::vector<Pool> pools;
   std::vector<Probe> probes;

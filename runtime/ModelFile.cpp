@@ -73,8 +73,8 @@ ir::Op readOp(const std::string &name) {
 }
 
 ir::Method readMethod(const std::string &name) {
-  for (ir::Method m :
-       {ir::Method::ExponentialEuler, ir::Method::RungeKutta4, ir::Method::DormandPrince, ir::Method::Rosenbrock})
+  for (ir::Method m : {ir::Method::ExponentialEuler, ir::Method::RungeKutta4, ir::Method::DormandPrince,
+                       ir::Method::Rosenbrock, ir::Method::BackwardEuler, ir::Method::CrankNicolson})
     if (name == ir::methodName(m))
       return m;
   throw std::runtime_error("unknown method '" + name + "'");
@@ -159,19 +159,26 @@ json model(const ir::Model &m) {
                    {"step", number(p.step)},   {"duration", number(p.duration)},
                    {"every", number(p.every)}, {"rtol", number(p.rtol)},
                    {"atol", number(p.atol)},   {"record", p.record}};
-  return {{"name", m.name},
-          {"temperature", number(m.temperature)},
-          {"state_names", m.stateNames},
-          {"initial_state", numbers(m.initialState)},
-          {"param_names", m.paramNames},
-          {"params", numbers(m.params)},
-          {"param_dims", dims},
-          {"compartments", compartments},
-          {"gates", gates},
-          {"pools", pools},
-          {"probes", probes},
-          {"protocol", protocol},
-          {"kernel", kernel(m.kernel)}};
+  json out = {{"name", m.name},
+              {"temperature", number(m.temperature)},
+              {"state_names", m.stateNames},
+              {"initial_state", numbers(m.initialState)},
+              {"param_names", m.paramNames},
+              {"params", numbers(m.params)},
+              {"param_dims", dims},
+              {"compartments", compartments},
+              {"gates", gates},
+              {"pools", pools},
+              {"probes", probes},
+              {"protocol", protocol},
+              {"kernel", kernel(m.kernel)}};
+  if (!m.junctions.empty()) { // absent for isolated compartments: their bundles read as before
+    json junctions = json::array();
+    for (const ir::Junction &jn : m.junctions)
+      junctions.push_back({{"parent", jn.parent}, {"child", jn.child}, {"conductance", number(jn.conductance)}});
+    out["junctions"] = junctions;
+  }
+  return out;
 }
 
 ir::Model readModel(const json &j) {
@@ -190,6 +197,9 @@ ir::Model readModel(const json &j) {
          readNumber(c.at("area")), c.at("g_output").get<int>(), c.at("ge_output").get<int>(),
          c.at("i_other_output").get<int>(), c.at("clamped_output").get<int>(), c.at("command_output").get<int>(),
          c.at("injected_output").get<int>(), c.at("all_current_carried").get<bool>()});
+  if (j.contains("junctions"))
+    for (const json &jn : j.at("junctions"))
+      m.junctions.push_back({jn.at("parent").get<int>(), jn.at("child").get<int>(), readNumber(jn.at("conductance"))});
   for (const json &g : j.at("gates"))
     m.gates.push_back({g.at("name").get<std::string>(), g.at("state").get<int>(), g.at("inf_output").get<int>(),
                        g.at("tau_output").get<int>()});
@@ -301,6 +311,12 @@ void checkIndices(const ir::Model &m) {
       within(o, outputs, false, "output");
     within(c.clampedOutput, outputs, true, "output");
     within(c.commandOutput, outputs, c.clampedOutput < 0, "output");
+  }
+  for (const ir::Junction &jn : m.junctions) {
+    within(jn.parent, m.compartments.size(), false, "compartment");
+    within(jn.child, m.compartments.size(), false, "compartment");
+    if (!(jn.conductance > 0) || !std::isfinite(jn.conductance))
+      throw std::runtime_error("a junction's conductance must be positive and finite");
   }
   for (const ir::Gate &g : m.gates) {
     within(g.state, states, false, "state");

@@ -88,7 +88,9 @@ public:
   void runMethod() {
     switch (m_.protocol.method) {
     case ir::Method::ExponentialEuler:
-    case ir::Method::RungeKutta4: fixedSteps(); break;
+    case ir::Method::RungeKutta4:
+    case ir::Method::BackwardEuler:
+    case ir::Method::CrankNicolson: fixedSteps(); break;
     case ir::Method::DormandPrince: dormandPrince(); break;
     case ir::Method::Rosenbrock: rosenbrock(); break;
     }

@@ -152,9 +152,10 @@ saltpan_model *saltpan_model_create(const char *protocol) {
           return nullptr;
         }
         ir::Method method = chosen->protocol.method;
-        if (method != ir::Method::ExponentialEuler && method != ir::Method::RungeKutta4) {
+        if (method == ir::Method::DormandPrince || method == ir::Method::Rosenbrock) {
           createError = "protocol '" + chosen->protocol.name + "' uses " + ir::methodName(method) +
-                        "; the C interface steps fixed-step methods only (exponential_euler, rk4)";
+                        "; the C interface steps fixed-step methods only (exponential_euler, rk4, backward_euler, "
+                        "crank_nicolson)";
           return nullptr;
         }
         auto m = std::make_unique<saltpan_model>();
