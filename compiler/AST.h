@@ -44,6 +44,7 @@ using ExprPtr = std::unique_ptr<Expr>;
 struct NumberExpr : Expr {
   NumberExpr(SourceRange r) : Expr(ExprKind::Number, r) {}
   double written = 0;   // the number as written
+  std::string spelling; // its digits as written, without a sign ("0.07", "2e-6"); empty if unknown
   double value = 0;     // in coherent SI (kelvin for degC)
   Unit unit;            // the written unit (scale 1, dimensionless when absent)
   bool celsius = false; // written in degC / °C

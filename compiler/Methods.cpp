@@ -64,37 +64,11 @@ std::string latexNumber(const std::string &text) {
   return mantissa + " \\times " + power;
 }
 
-/// The digits of a number literal as written in its source ("0.07", "2e-6"), or %.15g.
+/// The digits of a number literal as the AST builder kept them ("0.07", "2e-6"), or %.15g.
 std::string writtenNumber(const NumberExpr &n) {
-  if (const SourceFile *f = n.range.begin.file) {
-    const std::string &t = f->text();
-    size_t i = n.range.begin.offset;
-    while (i < t.size() && (t[i] == '-' || t[i] == '+' || t[i] == ' ' || t[i] == '\t' || t[i] == '^'))
-      ++i;
-    size_t j = i;
-    auto digit = [&](size_t k) { return k < t.size() && std::isdigit(static_cast<unsigned char>(t[k])); };
-    while (digit(j))
-      ++j;
-    if (j < t.size() && t[j] == '.') {
-      ++j;
-      while (digit(j))
-        ++j;
-    }
-    if (j > i && j < t.size() && (t[j] == 'e' || t[j] == 'E')) {
-      size_t k = j + 1;
-      if (k < t.size() && (t[k] == '+' || t[k] == '-'))
-        ++k;
-      if (digit(k)) {
-        while (digit(k))
-          ++k;
-        j = k;
-      }
-    }
-    std::string token = t.substr(i, j - i);
-    if (!token.empty() && token != "." && std::strtod(token.c_str(), nullptr) == std::fabs(n.written))
-      return (std::signbit(n.written) ? "-" : "") + token;
-  }
-  return format("%.15g", n.written);
+  if (n.spelling.empty())
+    return format("%.15g", n.written);
+  return (std::signbit(n.written) ? "-" : "") + n.spelling;
 }
 
 // ---- Units and names ---------------------------------------------------------------

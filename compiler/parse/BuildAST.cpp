@@ -968,9 +968,15 @@ private:
     return e;
   }
 
+  // The digits of an exponent ("-2.5" -> "2.5"): a NumberExpr keeps its sign in `written`.
+  static std::string unsignedSpelling(const std::string &exponentText) {
+    return exponentText.rfind('-', 0) == 0 ? exponentText.substr(1) : exponentText;
+  }
+
   ExprPtr powerOf(ExprPtr base, const std::string &exponentText, SourceRange whole) {
     auto n = std::make_unique<NumberExpr>(whole);
     n->written = n->value = std::atof(exponentText.c_str());
+    n->spelling = unsignedSpelling(exponentText);
     auto e = std::make_unique<BinaryExpr>(SourceRange::join(base->range, whole));
     e->op = BinaryOp::Pow;
     e->opRange = whole;
@@ -1008,7 +1014,9 @@ private:
     std::vector<SourceRange> at;
     for (antlr4::tree::TerminalNode *p : ctx->UNIT_POW()) {
       auto n = std::make_unique<NumberExpr>(exponentRange(p));
-      n->written = n->value = std::atof(p->getText().c_str() + 1);
+      std::string exponentText = p->getText().substr(1); // after the '^'
+      n->written = n->value = std::atof(exponentText.c_str());
+      n->spelling = unsignedSpelling(exponentText);
       exponents.push_back(std::move(n));
       at.push_back(range(p));
     }
@@ -1070,8 +1078,11 @@ private:
   // unit : (IDENT UNIT_POW? | UNIT_DIV) (UNIT_MUL | UNIT_DIV)* ;
   ExprPtr build(P::QuantityContext *ctx) {
     auto e = std::make_unique<NumberExpr>(range(ctx));
+    size_t errors = diags_.errorCount();
     e->written = parseNumber(ctx->NUMBER());
     e->value = e->written;
+    if (diags_.errorCount() == errors) // a number too large to represent has no spelling of its value
+      e->spelling = ctx->NUMBER()->getText();
     if (!ctx->unit())
       return e;
     P::UnitContext *u = ctx->unit();

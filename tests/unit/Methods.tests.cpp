@@ -29,6 +29,13 @@ std::string normaliseVersion(std::string text) {
   return text;
 }
 
+// The body of function `name` of a checked compilation as LaTeX.
+std::string fnLatex(const Compilation &c, const char *name) {
+  const ast::FnDecl *fn = testing::find<ast::FnDecl>(c, name);
+  REQUIRE(fn != nullptr);
+  return latexExpr(*fn->body);
+}
+
 std::string methodsOf(const std::string &spec, MethodsFormat format, bool fragment = false) {
   Compilation c;
   compileFile(std::string(SALTPAN_SOURCE_DIR) + "/" + spec, c);
@@ -146,13 +153,36 @@ fn c(v: mV) -> 1 = if v > 0 mV then 1 else 0
 )");
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);
-  auto body = [&](const char *name) {
-    const ast::FnDecl *fn = testing::find<ast::FnDecl>(*c, name);
-    REQUIRE(fn != nullptr);
-    return latexExpr(*fn->body);
-  };
+  auto body = [&](const char *name) { return fnLatex(*c, name); };
   CHECK(body("f") == "\\frac{\\exp\\left(-x\\right)}{1 + x}");
   CHECK(body("g") == "-\\left(x + 1\\right) \\cdot 2 \\times 10^{-6} - \\left(x - 3\\right)");
   CHECK(body("h") == "{x}^{2} + {\\left(\\frac{x}{2}\\right)}^{2} + \\left|x\\right| + \\sqrt{x} + \\mathrm{k\\_B2}");
   CHECK(body("c") == "\\begin{cases} 1 & \\text{if } v > 0\\,\\mathrm{mV} \\\\ 0 & \\text{otherwise} \\end{cases}");
+}
+
+TEST_CASE("methods: numbers as the AST keeps them, wherever they are written", "[methods]") {
+  auto c = compile(R"(fn p(x: 1) -> 1 = (2.50) * x + 1.0e-3 - (-
+  3.0)
+fn q(x: 1, w: 1) -> 1 = x/w^2.0 + x^-1.50
+)");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  auto body = [&](const char *name) { return fnLatex(*c, name); };
+  CHECK(body("p") == "2.50 \\cdot x + 1.0 \\times 10^{-3} - \\left(-3.0\\right)");
+  CHECK(body("q") == "\\frac{x}{{w}^{2.0}} + {x}^{-1.50}");
+  // The digits come from the AST, not from the source text.
+  auto *p = ast::dyn_cast<ast::FnDecl>(c->program.root->decls.front().get());
+  REQUIRE(p != nullptr);
+  auto *difference = ast::dyn_cast<ast::BinaryExpr>(p->body.get());
+  auto *sum = ast::dyn_cast<ast::BinaryExpr>(difference->lhs.get());
+  auto *product = ast::dyn_cast<ast::BinaryExpr>(sum->lhs.get());
+  REQUIRE(product != nullptr);
+  auto *first = ast::dyn_cast<ast::NumberExpr>(product->lhs.get());
+  REQUIRE(first != nullptr);
+  first->spelling = "2.5000";
+  CHECK(body("p") == "2.5000 \\cdot x + 1.0 \\times 10^{-3} - \\left(-3.0\\right)");
+  // A number without digits of its own is printed with %.15g.
+  first->spelling.clear();
+  first->written = 0.1 + 0.2;
+  CHECK(body("p") == "0.3 \\cdot x + 1.0 \\times 10^{-3} - \\left(-3.0\\right)");
 }
