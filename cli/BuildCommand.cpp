@@ -251,27 +251,13 @@ struct BuildOptions {
 
 int buildCommand(const std::vector<std::string> &args) {
   BuildOptions o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(buildHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (a == "--shared") {
-      o.shared = true;
-    } else if (optionValue(args, i, "-o", o.output)) {
-    } else if (a == "-o") {
-      return usage("-o needs a file name");
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else if (o.file.empty()) {
-      o.file = a;
-    } else {
-      return usage("build takes one spec file");
-    }
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, buildHelp);
+  parser.flag("--shared", o.shared);
+  parser.value("-o", o.output).ifMissing("-o needs a file name");
+  parser.positional(o.file, "build takes one spec file");
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (o.file.empty())
     return usage("no spec file given");
   std::string stem = fs::path(o.file).stem().string();

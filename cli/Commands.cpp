@@ -87,48 +87,38 @@ int usageError(const std::string &message, const char *help) {
   return BadUsage;
 }
 
-// Returns an exit code when parsing must stop, or -1 to go on.
+// Returns an exit code when parsing must stop, or -1 to go on. --help and --version are kept
+// for after the loop: an option refused anywhere on the line wins over them.
 int parseOptions(const std::vector<std::string> &args, Options &o, const char *help, bool allowCheckOptions) {
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    if (a == "--help" || a == "-h")
-      o.help = true;
-    else if (a == "--version")
-      o.version = true;
-    else if (value("--format", o.format)) {
-      if (o.format != "text" && o.format != "json")
-        return usageError("--format must be 'text' or 'json', not '" + o.format + "'", help);
-    } else if (allowCheckOptions && a == "--warnings-as-errors")
-      o.werror = true;
-    else if (allowCheckOptions && value("--color", o.color)) {
-      if (o.color != "auto" && o.color != "always" && o.color != "never")
-        return usageError("--color must be 'auto', 'always' or 'never'", help);
-    } else if (allowCheckOptions && value("--emit", o.emit)) {
-      if (!isEmitStage(o.emit))
-        return usageError("--emit must be one of tokens, ast, resolved, values, ir, fused-ir, llvm or "
-                          "llvm-unoptimised, not '" +
-                              o.emit + "'",
-                          help);
-    } else if (allowCheckOptions && value("--protocol", o.protocol)) {
-    } else if (!allowCheckOptions && value("-o", o.output)) {
-    } else if (a == "--") {
-      o.files.insert(o.files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
-      break;
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usageError("unknown option '" + a + "'", help);
-    } else {
-      o.files.push_back(a);
-    }
+  OptionParser parser;
+  parser.flag("--help", o.help);
+  parser.flag("-h", o.help);
+  parser.flag("--version", o.version);
+  parser.value("--format", oneOf(o.format, {"text", "json"}, "--format must be 'text' or 'json', not '{}'"));
+  if (allowCheckOptions) {
+    parser.flag("--warnings-as-errors", o.werror);
+    parser.value("--color", oneOf(o.color, {"auto", "always", "never"}, "--color must be 'auto', 'always' or 'never'"));
+    parser.value("--emit", [&](const std::string &v) -> std::string {
+      o.emit = v;
+      return isEmitStage(v) ? ""
+                            : "--emit must be one of tokens, ast, resolved, values, ir, fused-ir, llvm or "
+                              "llvm-unoptimised, not '" +
+                                  v + "'";
+    });
+    parser.value("--protocol", o.protocol);
+  } else {
+    parser.value("-o", o.output);
   }
+  parser.positional(o.files);
+  parser.endOfOptions();
+  if (auto code = parser.parse(args, [&](const std::string &message) { return usageError(message, help); }))
+    return *code;
   if (o.help) {
     std::fputs(help, stdout);
     return Ok;
   }
-  if (o.version) {
-    std::printf("saltpan %s\n", SALTPAN_VERSION);
-    return Ok;
-  }
+  if (o.version)
+    return printVersion();
   if (o.files.empty())
     return usageError("no spec file given", help);
   return -1;
@@ -149,17 +139,17 @@ bool useColour(const std::string &setting) {
 
 } // namespace
 
-bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into) {
-  const std::string &a = args[i];
-  if (a.rfind(name + "=", 0) == 0) {
-    into = a.substr(name.size() + 1);
-    return true;
-  }
-  if (a == name && i + 1 < args.size()) {
-    into = args[++i];
-    return true;
-  }
-  return false;
+int printVersion() {
+  std::printf("saltpan %s\n", SALTPAN_VERSION);
+  return Ok;
+}
+
+void addHelpAndVersion(OptionParser &parser, const char *help) {
+  parser.stop({"--help", "-h"}, [help] {
+    std::fputs(help, stdout);
+    return Ok;
+  });
+  parser.stop({"--version"}, printVersion);
 }
 
 const ast::ProtocolDecl *namedProtocol(const Compilation &c, const std::string &name, const std::string &file) {

@@ -1,6 +1,7 @@
 // Commands.h - the subcommands of the saltpan executable.
 #pragma once
 #include "ExitCode.h"
+#include "Options.h"
 #include "SafeWrite.h"
 
 #include <string>
@@ -32,9 +33,11 @@ int sweepCommand(const std::vector<std::string> &args);
 int mergeCommand(const std::vector<std::string> &args);
 int buildCommand(const std::vector<std::string> &args);
 
-/// If args[i] is "NAME=VALUE", or "NAME" followed by a value, stores the value (moving i
-/// past it) and returns true.
-bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
+/// Prints "saltpan VERSION"; returns Ok.
+int printVersion();
+/// Declares --help and -h (print `help` on standard output) and --version, each ending the
+/// reading with status Ok.
+void addHelpAndVersion(OptionParser &parser, const char *help);
 /// The stages `saltpan check --emit` prints, in pipeline order.
 inline constexpr const char *emitStages[] = {"tokens", "ast",      "resolved", "values",
                                              "ir",     "fused-ir", "llvm",     "llvm-unoptimised"};

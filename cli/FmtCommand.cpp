@@ -1,6 +1,5 @@
 // FmtCommand.cpp - `saltpan fmt`: rewrites specs in the canonical layout (parse/Format.h).
 #include "Commands.h"
-#include "Version.h"
 
 #include "Diagnostics.h"
 #include "Source.h"
@@ -102,30 +101,15 @@ std::string rewriteTarget(const std::string &path, bool force, std::string &erro
 int fmtCommand(const std::vector<std::string> &args) {
   std::vector<std::string> files;
   bool check = false, toStdout = false, force = false;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(fmtHelp, stdout);
-      return Ok;
-    }
-    if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    }
-    if (a == "--check")
-      check = true;
-    else if (a == "--force")
-      force = true;
-    else if (a == "--stdout")
-      toStdout = true;
-    else if (a == "--") {
-      files.insert(files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
-      break;
-    } else if (a.size() > 1 && a[0] == '-')
-      return usage("unknown option '" + a + "'");
-    else
-      files.push_back(a);
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, fmtHelp);
+  parser.flag("--check", check);
+  parser.flag("--force", force);
+  parser.flag("--stdout", toStdout);
+  parser.positional(files);
+  parser.endOfOptions();
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (files.empty())
     return usage("no spec file given");
   if (check && toStdout)

@@ -51,35 +51,14 @@ int usage(const std::string &message) {
 int hashCommand(const std::vector<std::string> &args) {
   std::vector<std::string> files;
   std::string format = "text";
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(hashHelp, stdout);
-      return Ok;
-    }
-    if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    }
-    if (a == "--format" || a.rfind("--format=", 0) == 0) {
-      if (a == "--format") {
-        if (i + 1 >= args.size())
-          return usage("--format needs a value: 'text' or 'json'");
-        format = args[++i];
-      } else {
-        format = a.substr(9);
-      }
-      if (format != "text" && format != "json")
-        return usage("--format must be 'text' or 'json', not '" + format + "'");
-    } else if (a == "--") {
-      files.insert(files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
-      break;
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else {
-      files.push_back(a);
-    }
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, hashHelp);
+  parser.value("--format", oneOf(format, {"text", "json"}, "--format must be 'text' or 'json', not '{}'"))
+      .ifMissing("--format needs a value: 'text' or 'json'");
+  parser.positional(files);
+  parser.endOfOptions();
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (files.empty())
     return usage("no spec file given");
   if (files.size() != 1)

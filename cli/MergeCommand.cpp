@@ -1,7 +1,6 @@
 // MergeCommand.cpp - `saltpan merge`: the JSON results of a sweep's shards, joined into the
 // file (CSV or JSON) that one unsharded run of the sweep writes.
 #include "Commands.h"
-#include "Version.h"
 
 #include "SweepTable.h"
 #include "TraceOutput.h"
@@ -49,24 +48,17 @@ int refuse(const std::string &message) {
 
 int mergeCommand(const std::vector<std::string> &args) {
   std::vector<std::string> outputs, inputs;
-  for (size_t i = 0; i < args.size(); ++i) {
-    std::string v;
-    if (args[i] == "--help" || args[i] == "-h") {
-      std::fputs(mergeHelp, stdout);
-      return Ok;
-    } else if (args[i] == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (optionValue(args, i, "-o", v)) {
-      if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
-        return usage("-o takes a .csv or .json file, not '" + v + "'");
-      outputs.push_back(v);
-    } else if (args[i].size() > 1 && args[i][0] == '-') {
-      return usage("unknown option '" + args[i] + "'");
-    } else {
-      inputs.push_back(args[i]);
-    }
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, mergeHelp);
+  parser.value("-o", [&](const std::string &v) -> std::string {
+    if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
+      return "-o takes a .csv or .json file, not '" + v + "'";
+    outputs.push_back(v);
+    return "";
+  });
+  parser.positional(inputs);
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (outputs.empty())
     return usage("no output given (-o FILE)");
   if (inputs.empty())

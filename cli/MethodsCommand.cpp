@@ -1,7 +1,6 @@
 // MethodsCommand.cpp - `saltpan methods`: a methods-section description of a checked model
 // (the text is generated in Methods.cpp).
 #include "Commands.h"
-#include "Version.h"
 
 #include "Methods.h"
 #include "Pipeline.h"
@@ -53,55 +52,31 @@ int methodsCommand(const std::vector<std::string> &args) {
   std::vector<std::string> files;
   std::string formatName = "markdown", output;
   bool fragment = false, help = false, version = false;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into, bool &missing) -> bool {
-      if (a.rfind(name + "=", 0) == 0 && name != "-o") {
-        into = a.substr(name.size() + 1);
-        return true;
-      }
-      if (a == name) {
-        if (i + 1 >= args.size()) {
-          missing = true;
-          return true;
-        }
-        into = args[++i];
-        return true;
-      }
-      return false;
-    };
-    bool missing = false;
-    if (a == "--help" || a == "-h")
-      help = true;
-    else if (a == "--version")
-      version = true;
-    else if (a == "--fragment")
-      fragment = true;
-    else if (value("--format", formatName, missing)) {
-      if (missing)
-        return usage("--format needs a value: markdown or latex");
-      if (formatName != "markdown" && formatName != "latex")
-        return usage("--format must be 'markdown' or 'latex', not '" + formatName + "'");
-    } else if (value("-o", output, missing)) {
-      if (missing || output.empty())
-        return usage("-o needs a file name");
-    } else if (a == "--") {
-      files.insert(files.end(), args.begin() + static_cast<long>(i) + 1, args.end());
-      break;
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else {
-      files.push_back(a);
-    }
-  }
+  OptionParser parser;
+  parser.flag("--help", help);
+  parser.flag("-h", help);
+  parser.flag("--version", version);
+  parser.flag("--fragment", fragment);
+  parser.value("--format", oneOf(formatName, {"markdown", "latex"}, "--format must be 'markdown' or 'latex', not '{}'"))
+      .ifMissing("--format needs a value: markdown or latex");
+  parser
+      .value("-o",
+             [&](const std::string &v) -> std::string {
+               output = v;
+               return v.empty() ? "-o needs a file name" : "";
+             })
+      .separateOnly()
+      .ifMissing("-o needs a file name");
+  parser.positional(files);
+  parser.endOfOptions();
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (help) {
     std::fputs(methodsHelp, stdout);
     return Ok;
   }
-  if (version) {
-    std::printf("saltpan %s\n", SALTPAN_VERSION);
-    return Ok;
-  }
+  if (version)
+    return printVersion();
   if (files.size() != 1)
     return usage(files.empty() ? "no spec file given" : "methods takes exactly one spec file");
   if (fragment && formatName != "latex")

@@ -45,15 +45,19 @@ int main(int argc, char **argv) {
     MPI_Finalize();
     return args.size() > 1 && args[1] == "--help" ? saltpan::Ok : saltpan::BadUsage;
   }
-  for (size_t i = 1; i < args.size(); ++i) {
-    std::string v;
-    if (saltpan::cli::optionValue(args, i, "-o", v))
-      outputs.push_back(v);
-    else if (args[i] == "--shard" || args[i].rfind("--shard=", 0) == 0)
+  // Only -o and --shard are read here; everything else goes on to `saltpan sweep` as given.
+  saltpan::OptionParser parser;
+  parser.repeated("-o", outputs);
+  auto passOn = [&](const std::string &a) {
+    if (saltpan::namesOption(a, "--shard"))
       rc = saltpan::BadUsage;
     else
-      sweepArgs.push_back(args[i]);
-  }
+      sweepArgs.push_back(a);
+    return std::string();
+  };
+  parser.positional(passOn);
+  parser.unknown(passOn);
+  parser.parse(std::vector<std::string>(args.begin() + 1, args.end()), [](const std::string &) { return 0; });
   if (rc != saltpan::Ok || outputs.empty()) {
     if (rank == 0)
       std::fprintf(stderr, "saltpan-mpi: error: %s\n\n%s",
@@ -70,7 +74,7 @@ int main(int argc, char **argv) {
   // Ranks on one machine share its cores: without --threads, each takes its share.
   bool threadsGiven = false;
   for (const std::string &a : sweepArgs)
-    threadsGiven = threadsGiven || a == "--threads" || a.rfind("--threads=", 0) == 0;
+    threadsGiven = threadsGiven || saltpan::namesOption(a, "--threads");
   const char *local = std::getenv("OMPI_COMM_WORLD_LOCAL_SIZE");
   if (!threadsGiven && local && std::atoi(local) > 0) {
     unsigned cores = std::max(1u, std::thread::hardware_concurrency());

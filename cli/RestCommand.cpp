@@ -165,38 +165,20 @@ std::string json(const std::string &modelName, const std::vector<rest::Compartme
 int restCommand(const std::vector<std::string> &args) {
   std::string file, fmt = "text";
   rest::Options options;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    std::string v;
-    bool missing = false;
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    if (a == "--help" || a == "-h") {
-      std::fputs(restHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (value("--format", fmt)) {
-      if (missing)
-        return usage("--format needs a value: text or json");
-      if (fmt != "text" && fmt != "json")
-        return usage("--format must be 'text' or 'json'");
-    } else if (value("--from", v) || value("--to", v)) {
-      bool from = a.rfind("--from", 0) == 0;
-      if (missing)
-        return usage(std::string(from ? "--from" : "--to") + " needs a voltage, e.g. -100mV");
+  OptionParser parser;
+  addHelpAndVersion(parser, restHelp);
+  parser.value("--format", oneOf(fmt, {"text", "json"}, "--format must be 'text' or 'json'"));
+  for (const std::string name : {"--from", "--to"})
+    parser.value(name, [&options, name](const std::string &v) -> std::string {
       auto q = parseVoltage(v);
       if (!q)
-        return usage(std::string(from ? "--from" : "--to") + " needs a voltage, e.g. -100mV, not '" + v + "'");
-      (from ? options.from : options.to) = *q;
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else if (file.empty()) {
-      file = a;
-    } else {
-      return usage("rest takes one spec file");
-    }
-  }
+        return name + " needs a voltage, e.g. -100mV, not '" + v + "'";
+      (name == "--from" ? options.from : options.to) = *q;
+      return "";
+    });
+  parser.positional(file, "rest takes one spec file");
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (file.empty())
     return usage("no spec file given");
   if (!(options.from < options.to))

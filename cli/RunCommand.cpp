@@ -52,12 +52,10 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors or the simulation f
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-struct RunOptions {
-  std::string file, protocol, output, engine = "jit";
+struct RunOptions : RunArguments {
+  std::string file, engine = "jit";
   bool keepPartial = false;
   std::string plot;
-  std::vector<std::string> sets;
-  std::string duration, every;
   double threshold = 0;
 };
 
@@ -71,38 +69,22 @@ int usage(const std::string &message) {
 
 int runCommand(const std::vector<std::string> &args) {
   RunOptions o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    std::string v;
-    if (a == "--help" || a == "-h") {
-      std::fputs(runHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--plot", o.plot) ||
-               value("--duration", o.duration) || value("--every", o.every)) {
-    } else if (a == "--keep-partial") {
-      o.keepPartial = true;
-    } else if (value("--engine", o.engine)) {
-      if (o.engine != "jit" && o.engine != "interpreter")
-        return usage("--engine must be 'jit' or 'interpreter'");
-    } else if (value("--set", v)) {
-      o.sets.push_back(v);
-    } else if (value("--threshold", v)) {
-      auto q = parseQuantity(v);
-      if (!q || q->second != dims::voltage())
-        return usage("--threshold needs a voltage, e.g. 0mV");
-      o.threshold = q->first;
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else if (o.file.empty()) {
-      o.file = a;
-    } else {
-      return usage("run takes one spec file");
-    }
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, runHelp);
+  addRunOptions(parser, o);
+  parser.value("--plot", o.plot);
+  parser.flag("--keep-partial", o.keepPartial);
+  parser.value("--engine", oneOf(o.engine, {"jit", "interpreter"}, "--engine must be 'jit' or 'interpreter'"));
+  parser.value("--threshold", [&](const std::string &v) -> std::string {
+    auto q = parseQuantity(v);
+    if (!q || q->second != dims::voltage())
+      return "--threshold needs a voltage, e.g. 0mV";
+    o.threshold = q->first;
+    return "";
+  });
+  parser.positional(o.file, "run takes one spec file");
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (o.file.empty())
     return usage("no spec file given");
   if (o.keepPartial && o.output.empty())

@@ -40,26 +40,16 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors or a run failed, 70
 
 int snapshotCommand(const std::vector<std::string> &args) {
   std::string file, only, engine = "jit";
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    if (a == "--help" || a == "-h") {
-      std::fputs(snapshotHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if ((a == "--protocol" || a == "--engine") && i + 1 < args.size()) {
-      (a == "--protocol" ? only : engine) = args[++i];
-    } else if (a.size() > 1 && a[0] == '-') {
-      std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), snapshotHelp);
-      return BadUsage;
-    } else if (file.empty()) {
-      file = a;
-    } else {
-      std::fprintf(stderr, "saltpan: snapshot takes one spec file\n\n%s", snapshotHelp);
-      return BadUsage;
-    }
-  }
+  OptionParser parser;
+  addHelpAndVersion(parser, snapshotHelp);
+  parser.value("--protocol", only).separateOnly();
+  parser.value("--engine", engine).separateOnly();
+  parser.positional(file, "snapshot takes one spec file");
+  if (auto code = parser.parse(args, [](const std::string &message) {
+        std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), snapshotHelp);
+        return BadUsage;
+      }))
+    return *code;
   if (file.empty() || (engine != "jit" && engine != "interpreter")) {
     std::fprintf(stderr, "saltpan: %s\n\n%s",
                  file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'", snapshotHelp);

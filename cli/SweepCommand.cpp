@@ -66,26 +66,17 @@ exit status: 0 success (failed points are reported in the output), 64 bad usage,
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-struct SweepOptions {
-  std::string file, sweep;
+struct SweepOptions : sweep::RunArguments {
+  std::string file;
   std::vector<std::string> axes, measures, outputs; // axes: spec text of `vary` items
   std::string sample, design = "latin_hypercube", seed = "1";
-  std::string shard, engine = "batched", progress = "auto";
-  int threads = 0, lanes = 0;
-  size_t checkpoint = 256;
-  bool restart = false;
+  std::string engine = "batched";
+  int lanes = 0;
 };
 
 int usage(const std::string &message) {
   std::fprintf(stderr, "saltpan sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
   return BadUsage;
-}
-
-bool wholeNumber(const std::string &s, long low, long high, long &into) {
-  if (s.empty() || s.size() > 16 || s.find_first_not_of("0123456789") != std::string::npos)
-    return false;
-  into = std::stol(s);
-  return into >= low && into <= high;
 }
 
 // NAME=A:B:N -> "vary NAME from A to B points N"
@@ -127,74 +118,48 @@ std::string commandLineSpec(const SweepOptions &o) {
 
 int sweepCommand(const std::vector<std::string> &args) {
   SweepOptions o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    std::string v, error;
+  OptionParser parser;
+  addHelpAndVersion(parser, sweepHelp);
+  sweep::addRunOptions(parser, o);
+  parser.value("--seed", [&](const std::string &v) -> std::string {
+    o.seed = v;
     long n = 0;
-    if (a == "--help" || a == "-h") {
-      std::fputs(sweepHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (a == "--restart") {
-      o.restart = true;
-    } else if (value("--seed", o.seed)) {
-      if (!wholeNumber(o.seed, 0, 9007199254740992L, n))
-        return usage("--seed needs a whole number from 0 to 2^53");
-    } else if (value("--sweep", o.sweep) || value("--shard", o.shard)) {
-    } else if (value("--vary", v)) {
-      std::string item;
-      if (!varyItem(v, false, item, error))
-        return usage(error);
-      o.axes.push_back(item);
-    } else if (value("--vary-log", v)) {
-      std::string item;
-      if (!varyItem(v, true, item, error))
-        return usage(error);
-      o.axes.push_back(item);
-    } else if (value("--values", v)) {
-      size_t eq = v.find('=');
-      if (eq == std::string::npos || eq == 0 || eq + 1 == v.size())
-        return usage("--values needs NAME=A,B,..., not '" + v + "'");
-      o.axes.push_back("vary " + v.substr(0, eq) + " values " + v.substr(eq + 1));
-    } else if (value("--measure", v)) {
-      o.measures.push_back(v);
-    } else if (value("--sample", o.sample)) {
-      if (!wholeNumber(o.sample, 1, 100000000, n))
-        return usage("--sample needs a whole number of points from 1 to 100000000");
-    } else if (value("--design", o.design)) {
-      if (o.design != "latin_hypercube" && o.design != "uniform")
-        return usage("--design must be 'latin_hypercube' or 'uniform'");
-    } else if (value("-o", v)) {
-      o.outputs.push_back(v);
-    } else if (value("--threads", v)) {
-      if (!wholeNumber(v, 1, 4096, n))
-        return usage("--threads needs a whole number from 1 to 4096");
-      o.threads = static_cast<int>(n);
-    } else if (value("--lanes", v)) {
-      if (v != "2" && v != "4" && v != "8")
-        return usage("--lanes must be 2, 4 or 8");
-      o.lanes = std::stoi(v);
-    } else if (value("--checkpoint", v)) {
-      if (!wholeNumber(v, 1, 100000000, n))
-        return usage("--checkpoint needs a whole number of points");
-      o.checkpoint = static_cast<size_t>(n);
-    } else if (value("--engine", o.engine)) {
-      if (o.engine != "batched" && o.engine != "scalar" && o.engine != "interpreter")
-        return usage("--engine must be 'batched', 'scalar' or 'interpreter'");
-    } else if (value("--progress", o.progress)) {
-      if (sweep::Progress p; !sweep::parseProgress(o.progress, p))
-        return usage("--progress must be auto, bar, log or none");
-    } else if (a.size() > 1 && a[0] == '-') {
-      return usage("unknown option '" + a + "'");
-    } else if (o.file.empty()) {
-      o.file = a;
-    } else {
-      return usage("sweep takes one spec file");
-    }
-  }
+    return wholeNumber(v, 0, 9007199254740992L, n) ? "" : "--seed needs a whole number from 0 to 2^53";
+  });
+  for (bool logarithmic : {false, true})
+    parser.value(logarithmic ? "--vary-log" : "--vary", [&o, logarithmic](const std::string &v) {
+      std::string item, error;
+      if (varyItem(v, logarithmic, item, error))
+        o.axes.push_back(item);
+      return error;
+    });
+  parser.value("--values", [&](const std::string &v) -> std::string {
+    size_t eq = v.find('=');
+    if (eq == std::string::npos || eq == 0 || eq + 1 == v.size())
+      return "--values needs NAME=A,B,..., not '" + v + "'";
+    o.axes.push_back("vary " + v.substr(0, eq) + " values " + v.substr(eq + 1));
+    return "";
+  });
+  parser.repeated("--measure", o.measures);
+  parser.value("--sample", [&](const std::string &v) -> std::string {
+    o.sample = v;
+    long n = 0;
+    return wholeNumber(v, 1, 100000000, n) ? "" : "--sample needs a whole number of points from 1 to 100000000";
+  });
+  parser.value("--design",
+               oneOf(o.design, {"latin_hypercube", "uniform"}, "--design must be 'latin_hypercube' or 'uniform'"));
+  parser.repeated("-o", o.outputs);
+  parser.value("--lanes", [&](const std::string &v) -> std::string {
+    if (v != "2" && v != "4" && v != "8")
+      return "--lanes must be 2, 4 or 8";
+    o.lanes = std::stoi(v);
+    return "";
+  });
+  parser.value("--engine", oneOf(o.engine, {"batched", "scalar", "interpreter"},
+                                 "--engine must be 'batched', 'scalar' or 'interpreter'"));
+  parser.positional(o.file, "sweep takes one spec file");
+  if (auto code = parser.parse(args, usage))
+    return *code;
   if (o.file.empty())
     return usage("no spec file given");
   bool onCommandLine = !o.axes.empty() || !o.measures.empty() || !o.sample.empty();

@@ -125,38 +125,25 @@ int testCommand(const std::vector<std::string> &args) {
   std::string junit, jsonPath, engine = "jit";
   bool allowEmpty = false;
   unsigned jobs = std::max(1u, std::thread::hardware_concurrency());
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    std::string v;
-    if (a == "--help" || a == "-h") {
-      std::fputs(testHelp, stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return Ok;
-    } else if (a == "--allow-empty") {
-      allowEmpty = true;
-    } else if (value("--junit", junit) || value("--json", jsonPath)) {
-    } else if (value("--engine", engine)) {
-      if (engine != "jit" && engine != "interpreter") {
-        std::fprintf(stderr, "saltpan: --engine must be 'jit' or 'interpreter'\n\n%s", testHelp);
+  OptionParser parser;
+  addHelpAndVersion(parser, testHelp);
+  parser.flag("--allow-empty", allowEmpty);
+  parser.value("--junit", junit);
+  parser.value("--json", jsonPath);
+  parser.value("--engine", oneOf(engine, {"jit", "interpreter"}, "--engine must be 'jit' or 'interpreter'"));
+  parser.value("--jobs", [&](const std::string &v) -> std::string {
+    int n = std::atoi(v.c_str());
+    if (n < 1)
+      return "--jobs needs a positive number";
+    jobs = static_cast<unsigned>(n);
+    return "";
+  });
+  parser.positional(paths);
+  if (auto code = parser.parse(args, [](const std::string &message) {
+        std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), testHelp);
         return BadUsage;
-      }
-    } else if (value("--jobs", v)) {
-      int n = std::atoi(v.c_str());
-      if (n < 1) {
-        std::fprintf(stderr, "saltpan: --jobs needs a positive number\n\n%s", testHelp);
-        return BadUsage;
-      }
-      jobs = static_cast<unsigned>(n);
-    } else if (a.size() > 1 && a[0] == '-') {
-      std::fprintf(stderr, "saltpan: unknown option '%s'\n\n%s", a.c_str(), testHelp);
-      return BadUsage;
-    } else {
-      paths.push_back(a);
-    }
-  }
+      }))
+    return *code;
   if (paths.empty()) {
     std::fprintf(stderr, "saltpan: no path given\n\n%s", testHelp);
     return BadUsage;

@@ -1,6 +1,5 @@
 // main.cpp - the saltpan command line: dispatches to a subcommand.
 #include "Commands.h"
-#include "Version.h"
 
 #include <cstdio>
 #include <exception>
@@ -54,10 +53,8 @@ int main(int argc, char **argv) {
       std::fputs(usage, stdout);
       return saltpan::Ok;
     }
-    if (command == "--version") {
-      std::printf("saltpan %s\n", SALTPAN_VERSION);
-      return saltpan::Ok;
-    }
+    if (command == "--version")
+      return saltpan::cli::printVersion();
     if (command == "help") {
       if (rest.empty() || rest.front() == "--help" || rest.front() == "-h") {
         std::fputs(usage, stdout);

@@ -1,6 +1,7 @@
 // RunSettings.cpp - quantities with units, parameter settings and timing overrides.
 #include "RunSettings.h"
 #include "Nearest.h"
+#include "Options.h"
 
 #include <algorithm>
 #include <cmath>
@@ -8,6 +9,14 @@
 #include <cstdlib>
 
 namespace saltpan {
+
+void addRunOptions(OptionParser &parser, RunArguments &into) {
+  parser.value("--protocol", into.protocol);
+  parser.repeated("--set", into.sets);
+  parser.value("--duration", into.duration);
+  parser.value("--every", into.every);
+  parser.value("-o", into.output);
+}
 
 std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &text) {
   const char *begin = text.c_str();

@@ -1,5 +1,6 @@
 // RunSettings.h - the run options shared by `saltpan run` and the executables `saltpan build`
-// writes: quantities with units ("100 mS/cm2"), --set NAME=VALUE, --duration and --every.
+// writes: their declaration (--protocol, --set, --duration, --every, -o), quantities with units
+// ("100 mS/cm2"), --set NAME=VALUE, --duration and --every.
 //
 // One implementation, so both accept the same text and refuse it with the same messages.
 #pragma once
@@ -12,6 +13,16 @@
 #include <vector>
 
 namespace saltpan {
+class OptionParser;
+
+/// The options of a run as given on the command line; empty when not given.
+struct RunArguments {
+  std::string protocol, output, duration, every;
+  std::vector<std::string> sets; // each "NAME=VALUE", in the order given
+};
+
+/// Declares --protocol, --set (repeatable), --duration, --every and -o, read into `into`.
+void addRunOptions(OptionParser &parser, RunArguments &into);
 
 /// "100 mS/cm2", "50ms", "-20 mV" -> SI value and dimension; nullopt if it cannot be read.
 std::optional<std::pair<double, Dimension>> parseQuantity(const std::string &text);

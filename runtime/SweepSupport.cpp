@@ -1,6 +1,7 @@
 // SweepSupport.cpp - the table, hash, journal and outputs of a sweep, for every front end.
 #include "SweepSupport.h"
 
+#include "Options.h"
 #include "Sha256.h"
 #include "TraceOutput.h"
 
@@ -10,6 +11,31 @@
 #include <filesystem>
 
 namespace saltpan::sweep {
+
+void addRunOptions(OptionParser &parser, RunArguments &into) {
+  // A whole number from `low` to `high` kept by `keep`, or `message`.
+  auto number = [](long low, long high, const char *message, auto keep) {
+    return [=](const std::string &v) -> std::string {
+      long n = 0;
+      if (!wholeNumber(v, low, high, n))
+        return message;
+      keep(n);
+      return "";
+    };
+  };
+  parser.flag("--restart", into.restart);
+  parser.value("--sweep", into.sweep);
+  parser.value("--shard", into.shard);
+  parser.value("--threads", number(1, 4096, "--threads needs a whole number from 1 to 4096",
+                                   [&into](long n) { into.threads = static_cast<int>(n); }));
+  parser.value("--checkpoint", number(1, 100000000, "--checkpoint needs a whole number of points",
+                                      [&into](long n) { into.checkpoint = static_cast<size_t>(n); }));
+  parser.value("--progress", [&into](const std::string &v) -> std::string {
+    into.progress = v;
+    Progress p;
+    return parseProgress(v, p) ? "" : "--progress must be auto, bar, log or none";
+  });
+}
 
 void setUpTable(Table &t, const std::vector<Point> &points, const ShardChoice &shard) {
   t.totalPoints = points.size();

@@ -12,7 +12,24 @@
 #include <string>
 #include <vector>
 
+namespace saltpan {
+class OptionParser;
+}
+
 namespace saltpan::sweep {
+
+/// How to run a sweep, as given on the command line of `saltpan sweep` or of a built
+/// executable's `sweep` mode.
+struct RunArguments {
+  std::string sweep, shard, progress = "auto";
+  int threads = 0; // 0: every core
+  size_t checkpoint = 256;
+  bool restart = false;
+};
+
+/// Declares --sweep, --shard, --threads, --checkpoint, --restart and --progress, read into
+/// `into` (numbers and the progress style checked as they are read).
+void addRunOptions(OptionParser &parser, RunArguments &into);
 
 /// Fills the shard's part of `t` from `points` (SI, one value per parameter column):
 /// totalPoints, the shard, first, the parameter values as shown and empty results. The

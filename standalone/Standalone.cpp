@@ -1,6 +1,7 @@
 // Standalone.cpp - main() of the executables `saltpan build` writes: runs one of the compiled-in
 // protocols with the options of `saltpan run` and writes the same CSV or JSON bytes, or with
 // `sweep` first, one of the compiled-in sweeps (StandaloneSweep.cpp).
+#include "Options.h"
 #include "Run.h"
 #include "RunSettings.h"
 #include "StandaloneMain.h"
@@ -14,19 +15,6 @@
 #include <vector>
 
 namespace saltpan::standalone {
-
-bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into) {
-  const std::string &a = args[i];
-  if (a.rfind(name + "=", 0) == 0) {
-    into = a.substr(name.size() + 1);
-    return true;
-  }
-  if (a == name && i + 1 < args.size()) {
-    into = args[++i];
-    return true;
-  }
-  return false;
-}
 
 int usage(const std::string &program, const std::string &message, const std::string &hint) {
   std::fprintf(stderr, "%s: error: %s\n%s\n", program.c_str(), message.c_str(), hint.c_str());
@@ -101,11 +89,6 @@ int usage(const std::string &message) {
   return standalone::usage(program, message, "run '" + program + " --help' for the options, protocols and parameters");
 }
 
-struct Options {
-  std::string protocol, output, duration, every;
-  std::vector<std::string> sets;
-};
-
 int run(const std::vector<std::string> &args) {
   ModelBundle bundle;
   std::string error;
@@ -115,28 +98,21 @@ int run(const std::vector<std::string> &args) {
   }
   if (!args.empty() && args[0] == "sweep")
     return sweepMode(bundle, std::vector<std::string>(args.begin() + 1, args.end()), program);
-  Options o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    auto value = [&](const std::string &name, std::string &into) { return optionValue(args, i, name, into); };
-    std::string v;
-    if (a == "--help" || a == "-h") {
-      std::fputs(helpText(bundle).c_str(), stdout);
-      return Ok;
-    } else if (a == "--version") {
-      std::printf("%s: model %s (%s), built by saltpan %s\n", program.c_str(), bundle.protocols.front().name.c_str(),
-                  bundle.modelHash.c_str(), bundle.toolVersion.c_str());
-      return Ok;
-    } else if (value("--protocol", o.protocol) || value("-o", o.output) || value("--duration", o.duration) ||
-               value("--every", o.every)) {
-    } else if (value("--set", v)) {
-      o.sets.push_back(v);
-    } else if (a == "--protocol" || a == "-o" || a == "--duration" || a == "--every" || a == "--set") {
-      return usage(a + " needs a value");
-    } else {
-      return usage("unknown option '" + a + "'");
-    }
-  }
+  RunArguments o;
+  // The options of `saltpan run` that a built executable has; a missing value is named.
+  OptionParser parser(OptionParser::MissingValue::NeedsAValue);
+  parser.stop({"--help", "-h"}, [&] {
+    std::fputs(helpText(bundle).c_str(), stdout);
+    return Ok;
+  });
+  parser.stop({"--version"}, [&] {
+    std::printf("%s: model %s (%s), built by saltpan %s\n", program.c_str(), bundle.protocols.front().name.c_str(),
+                bundle.modelHash.c_str(), bundle.toolVersion.c_str());
+    return Ok;
+  });
+  addRunOptions(parser, o);
+  if (auto code = parser.parse(args, [](const std::string &message) { return usage(message); }))
+    return *code;
 
   if (std::string clash = findOutputClash({{"-o", o.output}}, {{"this program", "/proc/self/exe"}});
       !o.output.empty() && !clash.empty())

@@ -8,8 +8,6 @@
 
 namespace saltpan::standalone {
 
-/// "--name=VALUE" or "--name VALUE" at args[i], as saltpan's own options; advances i past VALUE.
-bool optionValue(const std::vector<std::string> &args, size_t &i, const std::string &name, std::string &into);
 /// Prints "PROGRAM: error: MESSAGE" and `hint` (where the options are listed); returns BadUsage.
 int usage(const std::string &program, const std::string &message, const std::string &hint);
 

@@ -2,6 +2,7 @@
 // the spec, planned by saltpan at build time, run with the compiled-in kernels one point per
 // run, written byte for byte as `saltpan sweep --engine scalar` writes it.
 #include "Measures.h"
+#include "Options.h"
 #include "Run.h"
 #include "StandaloneMain.h"
 #include "StandaloneModel.h"
@@ -46,19 +47,8 @@ std::string helpText(const ModelBundle &b, const std::string &program) {
          "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
 }
 
-bool wholeNumber(const std::string &s, long low, long high, long &into) {
-  if (s.empty() || s.size() > 16 || s.find_first_not_of("0123456789") != std::string::npos)
-    return false;
-  into = std::stol(s);
-  return into >= low && into <= high;
-}
-
-struct SweepOptions {
-  std::string sweep, shard, progress = "auto";
+struct SweepOptions : sweep::RunArguments {
   std::vector<std::string> outputs;
-  int threads = 0;
-  size_t checkpoint = 256;
-  bool restart = false;
 };
 
 } // namespace
@@ -82,38 +72,20 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
     return usage(program + " sweep", message, "run '" + program + " sweep --help' for the options and sweeps");
   };
   SweepOptions o;
-  for (size_t i = 0; i < args.size(); ++i) {
-    const std::string &a = args[i];
-    std::string v;
-    long n = 0;
-    if (a == "--help" || a == "-h") {
-      std::fputs(helpText(bundle, program).c_str(), stdout);
-      return Ok;
-    } else if (a == "--restart") {
-      o.restart = true;
-    } else if (optionValue(args, i, "--sweep", o.sweep) || optionValue(args, i, "--shard", o.shard)) {
-    } else if (optionValue(args, i, "-o", v)) {
-      if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
-        return bad("-o takes a .csv or .json file, not '" + v + "'");
-      o.outputs.push_back(v);
-    } else if (optionValue(args, i, "--threads", v)) {
-      if (!wholeNumber(v, 1, 4096, n))
-        return bad("--threads needs a whole number from 1 to 4096");
-      o.threads = static_cast<int>(n);
-    } else if (optionValue(args, i, "--checkpoint", v)) {
-      if (!wholeNumber(v, 1, 100000000, n))
-        return bad("--checkpoint needs a whole number of points");
-      o.checkpoint = static_cast<size_t>(n);
-    } else if (optionValue(args, i, "--progress", o.progress)) {
-      if (sweep::Progress p; !sweep::parseProgress(o.progress, p))
-        return bad("--progress must be auto, bar, log or none");
-    } else if (a == "--sweep" || a == "--shard" || a == "-o" || a == "--threads" || a == "--checkpoint" ||
-               a == "--progress") {
-      return bad(a + " needs a value");
-    } else {
-      return bad("unknown option '" + a + "'");
-    }
-  }
+  OptionParser parser(OptionParser::MissingValue::NeedsAValue);
+  parser.stop({"--help", "-h"}, [&] {
+    std::fputs(helpText(bundle, program).c_str(), stdout);
+    return Ok;
+  });
+  sweep::addRunOptions(parser, o);
+  parser.value("-o", [&](const std::string &v) -> std::string {
+    if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
+      return "-o takes a .csv or .json file, not '" + v + "'";
+    o.outputs.push_back(v);
+    return "";
+  });
+  if (auto code = parser.parse(args, bad))
+    return *code;
   std::vector<NamedFile> outputs;
   for (const std::string &out : o.outputs)
     outputs.push_back({"-o", out});
