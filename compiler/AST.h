@@ -246,8 +246,37 @@ struct MembraneEntry {
   const Decl *target = nullptr; // set by Resolve: a channel or pump
 };
 
+struct CompartmentDecl;
+
+/// A place along a cable: `at 350 um` (a distance from its start) or `at 0.5` (a fraction of
+/// its length). Unset: the whole of a compartment, or a cable's first piece.
+struct Position {
+  ExprPtr at;
+  SourceRange range;
+  explicit operator bool() const { return at != nullptr; }
+};
+
+/// What makes a compartment a cable: an unbranched cylinder (or cone) cut into pieces, joined
+/// to what it grows from. Whatever the cable leaves out (capacitance, initial potential,
+/// solutions, membrane) it takes from its parent.
+struct CableShape {
+  SourceRange range;  // the `cable` keyword
+  std::string parent; // grows from
+  SourceRange parentRange, growsRange;
+  bool atEnd = false;                          // grows from the parent cable's end
+  Position at;                                 // or from a place along it
+  const CompartmentDecl *parentDecl = nullptr; // set by Resolve
+  ExprPtr length, diameter, diameterEnd;       // diameterEnd: a taper's far end
+  ExprPtr axialResistivity;                    // ohm m
+  SourceRange lengthRange, diameterRange, axialRange;
+  long pieces = 0; // `pieces N`, or 0
+  SourceRange piecesRange;
+  ExprPtr pieceLength; // or `piece length L`
+};
+
 struct CompartmentDecl : Decl {
   CompartmentDecl(SourceRange r) : Decl(DeclKind::Compartment, r) {}
+  std::unique_ptr<CableShape> cable; // set for `cable NAME { ... }`
   Geometry geometry;
   ExprPtr capacitance;
   ExprPtr initialV;
@@ -320,6 +349,7 @@ struct Injection {
   InjectionShape shape = InjectionShape::Step;
   std::string compartment;
   SourceRange compartmentRange;
+  Position position;
   SourceRange range;
   ExprPtr amplitude, amplitudeEnd; // amplitudeEnd: a ramp's final value
   ExprPtr width, period;           // pulses
@@ -331,6 +361,7 @@ struct Injection {
 struct RecordTarget {
   std::string path;
   SourceRange range;
+  Position position; // along a cable
 };
 
 /// clamp COMPARTMENT at LEVEL [from T1 to T2]: a voltage clamp; without a window it holds
@@ -350,6 +381,7 @@ enum class SynapseShape { SingleExponential, DoubleExponential, Alpha };
 struct Synapse {
   std::string compartment;
   SourceRange compartmentRange;
+  Position position;
   SourceRange range;
   ExprPtr conductance, reversal;
   SynapseShape shape = SynapseShape::SingleExponential;

@@ -75,7 +75,26 @@ public:
       DiagnosticEngine::note(d, {}, "reversal potentials depend on it; add e.g. 'temperature 37 degC'");
     }
     for (const CompartmentDecl *c : compartments)
-      model_.compartments.push_back(compartment(*c, baths));
+      if (!c->cable)
+        model_.compartments.push_back(compartment(*c, baths));
+    // Cables after what they grow from, so a cable's junction and inherited values are known.
+    std::vector<const CompartmentDecl *> waiting;
+    for (const CompartmentDecl *c : compartments)
+      if (c->cable)
+        waiting.push_back(c);
+    for (bool progress = true; progress && !waiting.empty();) {
+      progress = false;
+      for (auto it = waiting.begin(); it != waiting.end();) {
+        const CompartmentDecl *parent = (*it)->cable->parentDecl;
+        if (parent && parent->cable && !cableOf(parent)) {
+          ++it;
+          continue;
+        }
+        cable(**it, baths);
+        it = waiting.erase(it);
+        progress = true;
+      }
+    }
   }
 
 private:
@@ -144,15 +163,151 @@ private:
     return nullptr;
   }
 
+  const CableValues *cableOf(const CompartmentDecl *decl) const {
+    for (const CableValues &cv : model_.cables)
+      if (cv.decl == decl)
+        return &cv;
+    return nullptr;
+  }
+
+  // What a cable leaves out it takes from what it grows from: the first of the cable and its
+  // ancestors that gives the item.
+  template <class Has> const CompartmentDecl &from(const CompartmentDecl &c, Has has) const {
+    const CompartmentDecl *d = &c;
+    for (int depth = 0; d && !has(*d) && d->cable && depth < 10000; ++depth)
+      d = d->cable->parentDecl;
+    return d && has(*d) ? *d : c;
+  }
+
+  // A cable: its shape, its pieces (each a compartment of its own area, with the cable's
+  // membrane and solutions) and the junctions between them and to what it grows from.
+  void cable(const CompartmentDecl &c, const std::vector<const SolutionDecl *> &baths) {
+    const CableShape &shape = *c.cable;
+    std::string of = " of cable '" + c.name + "'";
+    CableValues cv;
+    cv.decl = &c;
+    auto need = [&](const ExprPtr &e, const char *what, const char *example) -> std::optional<double> {
+      if (!e) {
+        auto &d = diags_.error(c.nameRange, "cable '" + c.name + "' has no " + what);
+        DiagnosticEngine::note(d, {}, std::string("add e.g. '") + example + "'");
+        return std::nullopt;
+      }
+      auto v = value(*e, std::string("the ") + what + of);
+      if (v && !(*v > 0)) {
+        diags_.error(e->range, std::string("the ") + what + of + " must be positive");
+        return std::nullopt;
+      }
+      return v;
+    };
+    auto length = need(shape.length, "length", "length 400 um");
+    auto diameter = need(shape.diameter, "diameter", "diameter 2 um");
+    auto resistivity = need(shape.axialResistivity, "axial resistivity", "axial resistivity 150 ohm*cm");
+    std::optional<double> diameterEnd = diameter;
+    if (shape.diameterEnd)
+      diameterEnd = need(shape.diameterEnd, "far diameter", "diameter 3 um to 1 um");
+    double count = 0; // unknown
+    if (shape.pieces > 0)
+      count = static_cast<double>(shape.pieces);
+    else if (shape.pieceLength) {
+      auto piece = need(shape.pieceLength, "piece length", "piece length 10 um");
+      if (piece && length)
+        count = std::ceil(*length / *piece - 1e-9);
+    } else {
+      auto &d = diags_.error(c.nameRange, "cable '" + c.name + "' does not say how to cut it into pieces");
+      DiagnosticEngine::note(d, {}, "add 'pieces 40' or 'piece length 10 um'");
+    }
+    if (count > 1e6) {
+      auto &d = diags_.error(shape.piecesRange, "cable '" + c.name + "' would be cut into " +
+                                                    std::to_string(static_cast<long long>(count)) +
+                                                    " pieces; saltpan takes at most 1000000 per cable");
+      DiagnosticEngine::note(d, {}, "give a longer 'piece length'");
+      count = 0;
+    }
+    if (!length || !diameter || !diameterEnd || !resistivity || count < 1)
+      return;
+    cv.length = *length;
+    cv.diameter = *diameter;
+    cv.diameterEnd = *diameterEnd;
+    cv.axialResistivity = *resistivity;
+    cv.pieces = static_cast<size_t>(count);
+    cv.first = model_.compartments.size();
+    model_.cables.push_back(cv);
+
+    CompartmentValues base = compartment(c, baths);
+    double piece = cv.pieceLength();
+    // The axial resistance of a cone of length h between diameters a and b: 4 Ri h / (pi a b).
+    auto resistance = [&](double x0, double x1) {
+      return 4 * cv.axialResistivity * (x1 - x0) / (M_PI * cv.diameterAt(x0) * cv.diameterAt(x1));
+    };
+    for (size_t i = 0; i < cv.pieces; ++i) {
+      CompartmentValues v = base;
+      v.name = c.name + "[" + std::to_string(i) + "]";
+      v.piece = static_cast<int>(i);
+      v.from = piece * static_cast<double>(i);
+      v.to = i + 1 == cv.pieces ? cv.length : piece * static_cast<double>(i + 1);
+      double d = cv.diameterAt(0.5 * (v.from + v.to));
+      v.area = M_PI * d * (v.to - v.from); // the side wall; the ends join the neighbours
+      v.volume = *v.area * d / 4;
+      for (CompartmentValues::Pool &pool : v.pools)
+        if (!pool.entry->shellDepth)
+          pool.areaPerVolume = 4 / d;
+      model_.compartments.push_back(std::move(v));
+      if (i > 0) { // centre to the shared end to centre
+        const CompartmentValues &before = model_.compartments[cv.first + i - 1], &after = model_.compartments.back();
+        double r = resistance(0.5 * (before.from + before.to), before.to) +
+                   resistance(after.from, 0.5 * (after.from + after.to));
+        model_.junctions.push_back({cv.first + i - 1, cv.first + i, 1 / r});
+      }
+    }
+    if (!shape.parentDecl)
+      return;
+    // Joined to a compartment as a whole, or to the piece of the parent cable it grows from.
+    double r = resistance(0, 0.5 * piece);
+    size_t parent = 0;
+    if (const CableValues *p = cableOf(shape.parentDecl)) {
+      size_t at = p->pieces - 1;
+      if (shape.at) {
+        auto x = value(*shape.at.at, "where '" + c.name + "' grows from");
+        if (!x)
+          return;
+        double along = shape.at.at->type.dim == Dimension::none() ? *x * p->length : *x;
+        if (along < 0 || along > p->length) {
+          auto &d = diags_.error(shape.at.range, "cable '" + p->decl->name + "' is " + std::to_string(p->length * 1e6) +
+                                                     " um long; '" + c.name + "' cannot grow from outside it");
+          DiagnosticEngine::note(d, {},
+                                 "a place along a cable is a distance from 0 to its length, or a fraction from 0 to 1");
+          return;
+        }
+        at = std::min(p->pieces - 1, static_cast<size_t>(along / p->pieceLength()));
+      }
+      parent = p->first + at;
+      const CompartmentValues &pp = model_.compartments[parent];
+      double centre = 0.5 * (pp.from + pp.to);
+      r += 4 * p->axialResistivity * 0.5 * (pp.to - pp.from) / (M_PI * p->diameterAt(centre) * p->diameterAt(centre));
+    } else {
+      for (size_t i = 0; i < model_.compartments.size(); ++i)
+        if (model_.compartments[i].decl == shape.parentDecl)
+          parent = i;
+    }
+    model_.junctions.push_back({parent, cv.first, 1 / r});
+  }
+
   CompartmentValues compartment(const CompartmentDecl &c, const std::vector<const SolutionDecl *> &baths) {
     CompartmentValues v;
     v.decl = &c;
-    v.bath = chooseBath(c, baths);
+    v.name = c.name;
+    v.bath = chooseBath(from(c, [](const CompartmentDecl &d) { return !d.bathName.empty(); }), baths);
     if (v.bath)
       v.outside = &model_.baths[v.bath];
-    if (c.hasInside)
-      v.inside = solution(c.inside);
+    const CompartmentDecl &inside = from(c, [](const CompartmentDecl &d) { return d.hasInside; });
+    if (inside.hasInside)
+      v.inside = solution(inside.inside);
     std::string of = " of '" + c.name + "'";
+    if (const CableValues *cv = cableOf(&c)) { // the first piece's, for the pools' checks
+      double d = cv->diameterAt(0.5 * cv->pieceLength());
+      v.area = M_PI * d * cv->pieceLength();
+      v.volume = *v.area * d / 4;
+    }
     const Geometry &g = c.geometry;
     std::optional<double> diameter;
     if (g.diameter)
@@ -169,8 +324,8 @@ private:
       v.volume = M_PI * d * d * d / 6;
     if (g.shape == Shape::Cylinder && diameter && v.area)
       v.volume = *v.area * d / 4;
-    if (c.hasInside)
-      for (const ConcentrationEntry &e : c.inside.entries) {
+    if (inside.hasInside)
+      for (const ConcentrationEntry &e : inside.inside.entries) {
         if (!e.dynamic || !e.target)
           continue;
         CompartmentValues::Pool pool{e.target, &e, 0};
@@ -190,10 +345,12 @@ private:
         if (pool.areaPerVolume > 0)
           v.pools.push_back(pool);
       }
-    if (c.capacitance)
-      v.capacitance = value(*c.capacitance, "the capacitance" + of);
-    if (c.initialV)
-      v.initialV = value(*c.initialV, "the initial potential" + of);
+    const CompartmentDecl &capacitance = from(c, [](const CompartmentDecl &x) { return x.capacitance != nullptr; });
+    if (capacitance.capacitance)
+      v.capacitance = value(*capacitance.capacitance, "the capacitance" + of);
+    const CompartmentDecl &initial = from(c, [](const CompartmentDecl &x) { return x.initialV != nullptr; });
+    if (initial.initialV)
+      v.initialV = value(*initial.initialV, "the initial potential" + of);
 
     std::set<const IonDecl *> ions;
     for (auto &[ion, conc] : v.inside.concentration)
@@ -204,7 +361,7 @@ private:
     v.ions.assign(ions.begin(), ions.end());
     std::sort(v.ions.begin(), v.ions.end(), [](auto *a, auto *b) { return a->name < b->name; });
 
-    for (const MembraneEntry &m : c.membrane)
+    for (const MembraneEntry &m : from(c, [](const CompartmentDecl &x) { return !x.membrane.empty(); }).membrane)
       v.placements.push_back(placement(m, v));
     ghkRest(v);
     return v;

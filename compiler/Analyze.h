@@ -43,6 +43,9 @@ struct Placement {
 
 struct CompartmentValues {
   const ast::CompartmentDecl *decl = nullptr;
+  std::string name;        // the compartment's, or a cable piece's: "dendrite[3]"
+  int piece = -1;          // the index along its cable; -1 for a compartment
+  double from = 0, to = 0; // a piece's ends, m from its cable's start
   const ast::SolutionDecl *bath = nullptr;
   const SolutionValues *outside = nullptr;
   SolutionValues inside;
@@ -69,12 +72,31 @@ struct PumpValues {
   int netOutwardCharge = 0; // elementary charges moved outward per cycle
 };
 
+/// A cable's shape as computed, and where its pieces are in AnalyzedModel::compartments.
+struct CableValues {
+  const ast::CompartmentDecl *decl = nullptr;
+  double length = 0, diameter = 0, diameterEnd = 0; // m
+  double axialResistivity = 0;                      // ohm m
+  size_t first = 0, pieces = 0;
+  double pieceLength() const { return length / static_cast<double>(pieces); }
+  double diameterAt(double x) const { return diameter + (diameterEnd - diameter) * x / length; }
+};
+
+/// Two joined compartments (indices into AnalyzedModel::compartments) and their axial
+/// conductance, centre to centre.
+struct JunctionValues {
+  size_t parent = 0, child = 0;
+  double conductance = 0; // S
+};
+
 struct AnalyzedModel {
   const ast::ModelDecl *header = nullptr;
   const ast::TemperatureDecl *temperatureDecl = nullptr;
   std::optional<double> temperature; // K
   std::map<const ast::SolutionDecl *, SolutionValues> baths;
-  std::vector<CompartmentValues> compartments;
+  std::vector<CompartmentValues> compartments; // the compartments, then each cable's pieces
+  std::vector<CableValues> cables;
+  std::vector<JunctionValues> junctions;
   std::map<const ast::PumpDecl *, PumpValues> pumps;
   std::vector<const ast::IonDecl *> ions;
   std::vector<const ast::ChannelDecl *> channels;

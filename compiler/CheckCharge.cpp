@@ -43,6 +43,8 @@ public:
             electroneutrality(s->body, it->second, "outside solution '" + s->name + "'");
       }
     for (const CompartmentValues &c : model_.compartments) {
+      if (c.piece > 0) // a cable's pieces share what is checked here
+        continue;
       if (c.decl->hasInside)
         electroneutrality(c.decl->inside, c.inside, "the inside of compartment '" + c.decl->name + "'");
       for (const Placement &p : c.placements)

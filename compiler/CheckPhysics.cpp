@@ -44,7 +44,8 @@ public:
           channel(*ch);
       }
     for (const CompartmentValues &c : model_.compartments)
-      compartment(c);
+      if (c.piece <= 0) // a cable's pieces share what is checked here
+        compartment(c);
   }
 
 private:
@@ -101,10 +102,11 @@ private:
     positive(d.geometry.length.get(), d.geometry.length ? evaluator_.evaluate(*d.geometry.length, {}) : std::nullopt,
              "the length" + of);
     positive(d.geometry.area.get(), c.area, "the membrane area" + of);
-    if (!d.capacitance) {
-      auto &diag = diags_.error(d.nameRange, "compartment '" + d.name + "' has no capacitance");
+    const char *kind = d.cable ? "cable" : "compartment";
+    if (!d.capacitance && !(d.cable && c.capacitance)) { // a cable may take its parent's
+      auto &diag = diags_.error(d.nameRange, std::string(kind) + " '" + d.name + "' has no capacitance");
       DiagnosticEngine::note(diag, {}, "add e.g. 'capacitance 1 uF/cm2' (the classical value for nerve membrane)");
-    } else if (c.capacitance) {
+    } else if (c.capacitance && d.capacitance) {
       double cm = *c.capacitance;
       if (cm <= 0)
         diags_.error(d.capacitance->range, "the capacitance" + of + " must be positive");
@@ -115,11 +117,11 @@ private:
         DiagnosticEngine::note(diag, {}, "lipid bilayers measure close to 1 uF/cm2; check the unit");
       }
     }
-    if (c.initialV && (*c.initialV < sampleLowVolts || *c.initialV > sampleHighVolts))
+    if (c.initialV && d.initialV && (*c.initialV < sampleLowVolts || *c.initialV > sampleHighVolts))
       diags_.warning(d.initialV->range, "the initial potential" + of + " is " + mV(*c.initialV) +
                                             ", outside -150 to +100 mV");
-    if (d.membrane.empty())
-      diags_.warning(d.nameRange, "compartment '" + d.name + "' has no channels or pumps in its membrane");
+    if (c.placements.empty())
+      diags_.warning(d.nameRange, std::string(kind) + " '" + d.name + "' has no channels or pumps in its membrane");
     for (const Placement &p : c.placements)
       placement(p, c);
   }

@@ -142,8 +142,26 @@ private:
       expect(i.amount.get(), dims::concentration(), "an impermeant concentration");
   }
 
+  // A distance along a cable, or a plain number: a fraction of its length.
+  void position(Position &p, const std::string &what) {
+    if (!p)
+      return;
+    ExprType t = infer(*p.at);
+    if (t.known && t.dim != dims::length() && t.dim != Dimension::none())
+      mismatch(p.at->range, what, "a distance along the cable (um) or a fraction of its length (0 to 1)", t.dim);
+  }
+
   void compartment(CompartmentDecl &c) {
     std::string of = " of '" + c.name + "'";
+    if (CableShape *cable = c.cable.get()) {
+      expect(cable->length.get(), dims::length(), "the length" + of);
+      expect(cable->diameter.get(), dims::length(), "the diameter" + of);
+      expect(cable->diameterEnd.get(), dims::length(), "the far diameter" + of);
+      expect(cable->pieceLength.get(), dims::length(), "the piece length" + of);
+      expect(cable->axialResistivity.get(), dims::voltage() / dims::current() * dims::length(),
+             "the axial resistivity" + of, "the resistivity of the cytoplasm, e.g. 150 ohm*cm");
+      position(cable->at, "where '" + c.name + "' grows from");
+    }
     expect(c.geometry.diameter.get(), dims::length(), "the diameter" + of);
     expect(c.geometry.length.get(), dims::length(), "the length" + of);
     expect(c.geometry.area.get(), dims::area(), "the membrane area" + of);
@@ -177,7 +195,10 @@ private:
     expect(p.tolerance.get(), Dimension::none(), "the tolerance" + of, "a tolerance is relative, e.g. 1e-8");
     expect(p.duration.get(), dims::time(), "the duration" + of);
     expect(p.every.get(), dims::time(), "the recording interval" + of);
+    for (RecordTarget &r : p.records)
+      position(r.position, "a recorded place");
     for (Injection &i : p.injections) {
+      position(i.position, "the place of an injection");
       for (Expr *e : {i.amplitude.get(), i.amplitudeEnd.get()}) {
         if (!e)
           continue;
@@ -199,6 +220,7 @@ private:
       expect(c.to.get(), dims::time(), "the end of a clamp step");
     }
     for (Synapse &s : p.synapses) {
+      position(s.position, "the place of a synapse");
       if (s.conductance) {
         ExprType t = infer(*s.conductance);
         if (t.known && t.dim != dims::conductanceDensity() && t.dim != dims::conductanceDensity() * dims::area())

@@ -4,6 +4,7 @@
 #include "Nearest.h"
 
 #include "Analyze.h"
+#include "Decimal.h"
 #include "Diagnostics.h"
 #include "Evaluate.h"
 #include "Interpret.h"
@@ -56,8 +57,17 @@ public:
       diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no compartment to simulate");
       return false;
     }
-    for (const CompartmentValues &c : model_.compartments)
+    for (const CompartmentValues &c : model_.compartments) {
+      // A cable's pieces share everything but their geometry: its first piece reports for all.
+      size_t errors = diags_.errorCount();
+      if (c.piece > 0 && quietCable_ == c.decl)
+        continue;
       compartment(c, protocol);
+      if (c.piece == 0 && diags_.errorCount() > errors)
+        quietCable_ = c.decl;
+    }
+    for (const JunctionValues &j : model_.junctions)
+      out_.junctions.push_back({static_cast<int>(j.parent), static_cast<int>(j.child), j.conductance});
     if (protocol)
       lowerProtocol(*protocol);
     else
@@ -71,6 +81,8 @@ public:
 private:
   const AnalyzedModel &model_;
   Evaluator &evaluator_;
+  const CompartmentDecl *quietCable_ = nullptr; // a cable whose first piece reported errors
+  std::map<const Position *, int> pieces_;      // the piece each place along a cable falls in
   DiagnosticEngine &diags_;
   ir::Model &out_;
   ir::Kernel &k_;
@@ -292,7 +304,7 @@ private:
 
   void channel(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
     const ChannelDecl &ch = *p.channel;
-    std::string prefix = c.decl->name + "." + p.entry->name;
+    std::string prefix = c.name + "." + p.entry->name;
     if (!p.density) {
       fail(p.entry->nameRange, "the density of '" + ch.name + "' is unknown");
       return;
@@ -388,6 +400,39 @@ private:
   }
 
   std::optional<double> time(const Expr *e) { return e ? evaluator_.evaluate(*e, {}) : std::nullopt; }
+
+  // The piece index a position along the cable of `c` falls in: 0 without a position; -1 (after
+  // an error) outside the cable.
+  int pieceAt(const Position &at, const CompartmentDecl &decl) {
+    if (!at)
+      return 0;
+    if (auto known = pieces_.find(&at); known != pieces_.end())
+      return known->second; // one report for a place, not one per piece
+    return pieces_[&at] = findPiece(at, decl);
+  }
+  int findPiece(const Position &at, const CompartmentDecl &decl) {
+    const CableValues *cable = nullptr;
+    for (const CableValues &cv : model_.cables)
+      if (cv.decl == &decl)
+        cable = &cv;
+    auto x = time(at.at.get());
+    if (!cable || !x)
+      return -1;
+    double along = at.at->type.dim == Dimension::none() ? *x * cable->length : *x;
+    if (!(along >= 0 && along <= cable->length * (1 + 1e-12))) {
+      fail(at.range, "cable '" + decl.name + "' is " + shortestDecimal(cable->length * 1e6) +
+                         " um long; this place is outside it");
+      DiagnosticEngine::note(*diags_.last(), {},
+                             "a place along a cable is a distance from 0 to its length, or a "
+                             "fraction from 0 to 1");
+      return -1;
+    }
+    return static_cast<int>(std::min(cable->pieces - 1, static_cast<size_t>(along / cable->pieceLength())));
+  }
+  // Whether a stimulus at `at` acts on `c`: a compartment as a whole, or the piece at the place.
+  bool placed(const Position &at, const CompartmentValues &c) {
+    return c.piece < 0 || (c.piece == pieceAt(at, *c.decl));
+  }
 
   // Injected current (A/m2, into the cell) of one inject line at time t.
   NodeId injection(const Injection &inj, const CompartmentValues &c) {
@@ -537,7 +582,7 @@ private:
     allCarried_ = false; // a synaptic current is not assigned to any ion
     cur.g = add(cur.g, g);
     cur.ge = add(cur.ge, mul(g, num(*reversal)));
-    std::string prefix = c.decl->name + ".synapse" + std::to_string(number);
+    std::string prefix = c.name + ".synapse" + std::to_string(number);
     // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
     if (perArea == 1)
       // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
@@ -554,7 +599,7 @@ private:
     const Clamp *holding = nullptr;
     std::vector<const Clamp *> steps;
     for (const Clamp &cl : p.clamps) {
-      if (cl.target != c.decl)
+      if (cl.target != c.decl || c.piece > 0) // a clamp holds a cable's first piece
         continue;
       if (!cl.from) {
         if (holding) {
@@ -597,10 +642,10 @@ private:
       return;
     }
     ir::Compartment comp;
-    comp.name = d.name;
+    comp.name = c.name;
     comp.area = c.area.value_or(0);
-    comp.voltageState = addState(d.name + ".V", *c.initialV);
-    comp.capacitanceParam = addParamIndex(d.name + ".capacitance", *c.capacitance, dims::specificCapacitance());
+    comp.voltageState = addState(c.name + ".V", *c.initialV);
+    comp.capacitanceParam = addParamIndex(c.name + ".capacitance", *c.capacitance, dims::specificCapacitance());
     std::map<const IonDecl *, NodeId> pools;
     for (const CompartmentValues::Pool &pool : c.pools) {
       auto z = integerValence(*pool.ion);
@@ -609,11 +654,11 @@ private:
         fail(pool.entry->range, "a dynamic concentration needs a valence and a value");
         continue;
       }
-      int state = addState(d.name + "." + pool.ion->name, *initial);
+      int state = addState(c.name + "." + pool.ion->name, *initial);
       pools[pool.ion] = k_.state(state);
-      out_.pools.push_back({d.name + "." + pool.ion->name, static_cast<int>(out_.compartments.size()), state, -1, *z,
+      out_.pools.push_back({c.name + "." + pool.ion->name, static_cast<int>(out_.compartments.size()), state, -1, *z,
                             pool.areaPerVolume});
-      out_.probes.push_back({d.name + "." + pool.ion->name, "mM", 1, state, -1});
+      out_.probes.push_back({c.name + "." + pool.ion->name, "mM", 1, state, -1});
     }
     size_t firstPool = out_.pools.size() - pools.size();
     ionCurrent_.clear();
@@ -628,11 +673,11 @@ private:
     }
     if (protocol) {
       for (const Injection &inj : protocol->injections)
-        if (inj.target == &d)
+        if (inj.target == &d && placed(inj.position, c))
           cur.stimulus = add(cur.stimulus, injection(inj, c));
       int number = 0;
       for (const Synapse &syn : protocol->synapses)
-        if (syn.target == &d)
+        if (syn.target == &d && placed(syn.position, c))
           synapse(syn, c, cur, env, ++number);
       clamps(*protocol, c, comp);
     }
@@ -641,7 +686,7 @@ private:
       ir::Pool &pool = out_.pools[i];
       const IonDecl *ion = nullptr;
       for (auto &[candidate, node] : pools)
-        if (out_.stateNames[pool.state] == d.name + "." + candidate->name)
+        if (out_.stateNames[pool.state] == c.name + "." + candidate->name)
           ion = candidate;
       NodeId current = ionCurrent_.count(ion) ? ionCurrent_[ion] : num(0);
       // Outward current removes the ion from the inside: d[X]/dt = -I (A/V) / (z F).
@@ -650,30 +695,31 @@ private:
       if (NodeId e = nernstNode(ion, env); e >= 0)
         probe(pool.name + ".reversal", "mV", 1e3, e);
     }
-    comp.allCurrentCarried = !pools.empty() && allCarried_;
+    // A piece's ions move along the cable too: its own charge does not balance.
+    comp.allCurrentCarried = !pools.empty() && allCarried_ && model_.junctions.empty();
     std::vector<const IonDecl *> carried;
     for (auto &[ion, current] : ionCurrent_)
       carried.push_back(ion);
     std::sort(carried.begin(), carried.end(), [](auto *a, auto *b) { return a->name < b->name; });
     for (const IonDecl *ion : carried)
-      probe(d.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
+      probe(c.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
     comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell
     comp.injectedOutput = k_.addOutput(cur.stimulus);
     out_.compartments.push_back(comp);
-    out_.probes.push_back({d.name + ".V", "mV", 1e3, comp.voltageState, -1});
-    probe(d.name + ".membrane_current", "uA/cm2", 100, ionic);
+    out_.probes.push_back({c.name + ".V", "mV", 1e3, comp.voltageState, -1});
+    probe(c.name + ".membrane_current", "uA/cm2", 100, ionic);
     if (comp.clampedOutput >= 0) // while clamped, the amplifier supplies the ionic current
-      probe(d.name + ".clamp_current", "uA/cm2", 100,
-                 mul(k_.outputs[comp.clampedOutput], ionic));
-    probe(d.name + ".injected", "uA/cm2", 100, cur.stimulus);
+      probe(c.name + ".clamp_current", "uA/cm2", 100, mul(k_.outputs[comp.clampedOutput], ionic));
+    probe(c.name + ".injected", "uA/cm2", 100, cur.stimulus);
   }
 
   void defaultProtocol() {
     out_.protocol = ir::Protocol{};
-    for (const ir::Compartment &c : out_.compartments)
-      out_.protocol.record.push_back(out_.findProbe(c.name + ".V"));
+    recordEveryPotential();
+    if (!out_.junctions.empty()) // exponential Euler relaxes one compartment at a time
+      out_.protocol.method = ir::Method::CrankNicolson;
   }
 
   void lowerProtocol(const ProtocolDecl &p) {
@@ -689,11 +735,23 @@ private:
         proto.method = ir::Method::DormandPrince;
       else if (p.method == "rosenbrock")
         proto.method = ir::Method::Rosenbrock;
+      else if (p.method == "backward_euler")
+        proto.method = ir::Method::BackwardEuler;
+      else if (p.method == "crank_nicolson")
+        proto.method = ir::Method::CrankNicolson;
       else {
         fail(p.methodRange, "unknown method '" + p.method + "'");
         DiagnosticEngine::note(*diags_.last(), {},
-                               "the methods are exponential_euler, rk4, dormand_prince and rosenbrock");
+                               "the methods are exponential_euler, rk4, dormand_prince, rosenbrock, backward_euler "
+                               "and crank_nicolson");
       }
+      if (proto.method == ir::Method::ExponentialEuler && !out_.junctions.empty()) {
+        fail(p.methodRange, "exponential_euler steps each compartment alone; this cell's compartments are joined");
+        DiagnosticEngine::note(*diags_.last(), {},
+                               "use crank_nicolson (the default for joined compartments) or backward_euler");
+      }
+    } else if (!out_.junctions.empty()) {
+      proto.method = ir::Method::CrankNicolson;
     }
     if (p.step) {
       auto v = time(p.step.get());
@@ -726,7 +784,7 @@ private:
     if (diags_.errorCount() == errorsBefore && p.duration)
       checkProtocolTiming(p);
     for (const RecordTarget &r : p.records) {
-      int index = out_.findProbe(r.path);
+      int index = out_.findProbe(recordedName(r));
       if (index < 0) {
         fail(r.range, "there is nothing called '" + r.path + "' to record");
         std::vector<std::string> names;
@@ -748,8 +806,36 @@ private:
       }
     }
     if (p.records.empty())
-      for (const ir::Compartment &c : out_.compartments)
-        proto.record.push_back(out_.findProbe(c.name + ".V"));
+      recordEveryPotential();
+  }
+
+  // What a record line names: a cable's quantity at a place is its piece's ("dendrite[12].V").
+  std::string recordedName(const RecordTarget &r) {
+    std::string head = r.path.substr(0, r.path.find('.'));
+    for (const CableValues &cv : model_.cables)
+      if (cv.decl->name == head) {
+        if (!r.position) {
+          fail(r.range, "'" + head + "' is a cable: say where along it to record");
+          DiagnosticEngine::note(*diags_.last(), {},
+                                 "write e.g. '" + r.path + " at 100 um' or '" + r.path + " at 0.5'");
+          return r.path;
+        }
+        int piece = pieceAt(r.position, *cv.decl);
+        return piece < 0 ? r.path : head + "[" + std::to_string(piece) + "]" + r.path.substr(head.size());
+      }
+    return r.path;
+  }
+
+  // Without a record line: every compartment's V, and each cable's at its far end.
+  void recordEveryPotential() {
+    for (size_t i = 0; i < out_.compartments.size() && i < model_.compartments.size(); ++i) {
+      const CompartmentValues &c = model_.compartments[i];
+      bool farEnd = c.piece < 0;
+      for (const CableValues &cv : model_.cables)
+        farEnd = farEnd || (cv.decl == c.decl && static_cast<size_t>(c.piece) + 1 == cv.pieces);
+      if (farEnd)
+        out_.protocol.record.push_back(out_.findProbe(out_.compartments[i].name + ".V"));
+    }
   }
 
   // The counts a run derives from its timing (steps, samples) must be whole and bounded, or

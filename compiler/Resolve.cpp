@@ -103,6 +103,7 @@ public:
   }
 
   void checkCycles() {
+    checkCableLoops();
     for (auto &[name, decl] : symbols_.byName)
       if (decl->kind == DeclKind::Const || decl->kind == DeclKind::Fn) {
         std::vector<const Decl *> path;
@@ -113,6 +114,28 @@ public:
   }
 
 private:
+  // A cable that grows, through its parents, from itself would be joined in a loop.
+  void checkCableLoops() {
+    for (auto &[name, decl] : symbols_.byName) {
+      auto *c = dyn_cast<CompartmentDecl>(decl);
+      if (!c || !c->cable)
+        continue;
+      std::set<const CompartmentDecl *> seen{c};
+      for (const CompartmentDecl *p = c->cable->parentDecl; p && p->cable; p = p->cable->parentDecl) {
+        if (p == c) {
+          auto &diag = diags_.error(c->cable->parentRange, p == c->cable->parentDecl
+                                                               ? "cable '" + c->name + "' grows from itself"
+                                                               : "cable '" + c->name + "' grows from itself through '" +
+                                                                     c->cable->parent + "'");
+          DiagnosticEngine::note(diag, {}, "a cell is a tree: follow 'grows from' to a compartment or a free cable");
+          break;
+        }
+        if (!seen.insert(p).second)
+          break; // a loop that does not pass through c; reported from its own cables
+      }
+    }
+  }
+
   SymbolTable &symbols_;
   DiagnosticEngine &diags_;
   std::map<const Decl *, std::vector<std::pair<const Decl *, SourceRange>>> uses_; // const/fn -> what it uses
@@ -276,6 +299,7 @@ private:
         for (Expr *e : {i.amplitude.get(), i.amplitudeEnd.get(), i.width.get(), i.period.get(), i.from.get(), i.to.get()})
           expr(e, plain);
         i.target = compartmentNamed(i.compartment, i.compartmentRange);
+        position(i.position, i.target, plain);
       }
       for (Clamp &c : p.clamps) {
         for (Expr *e : {c.level.get(), c.from.get(), c.to.get()})
@@ -289,7 +313,14 @@ private:
         for (auto &t : s.times)
           expr(t.get(), plain);
         s.target = compartmentNamed(s.compartment, s.compartmentRange);
+        position(s.position, s.target, plain);
       }
+      for (RecordTarget &r : p.records)
+        if (r.position) {
+          std::string head = r.path.substr(0, r.path.find('.'));
+          Decl *owner = lookup(head);
+          position(r.position, owner ? dyn_cast<CompartmentDecl>(owner) : nullptr, plain);
+        }
       return;
     }
     case DeclKind::Pump: {
@@ -301,6 +332,17 @@ private:
       expr(p.activity.get(), activity);
       return;
     }
+    }
+  }
+
+  // A position names a place along a cable; a compartment is one isopotential patch.
+  void position(Position &p, const CompartmentDecl *on, Context &context) {
+    if (!p)
+      return;
+    expr(p.at.get(), context);
+    if (on && !on->cable) {
+      auto &diag = diags_.error(p.range, "'" + on->name + "' is a compartment, not a cable: it has no places along it");
+      DiagnosticEngine::note(diag, on->nameRange, "declared here");
     }
   }
 
@@ -329,6 +371,22 @@ private:
 
   void compartment(CompartmentDecl &c) {
     Context plain{"a compartment"};
+    if (CableShape *cable = c.cable.get()) {
+      for (Expr *e : {cable->length.get(), cable->diameter.get(), cable->diameterEnd.get(),
+                      cable->axialResistivity.get(), cable->pieceLength.get()})
+        expr(e, plain);
+      if (!cable->parent.empty()) {
+        cable->parentDecl = compartmentNamed(cable->parent, cable->parentRange);
+        if (cable->parentDecl && !cable->parentDecl->cable && (cable->atEnd || cable->at)) {
+          auto &diag =
+              diags_.error(cable->growsRange,
+                           "'" + cable->parent + "' is a compartment, not a cable: a cable grows from it as a whole");
+          DiagnosticEngine::note(diag, {}, "write 'grows from " + cable->parent + "'");
+        }
+        if (cable->at)
+          expr(cable->at.at.get(), plain);
+      }
+    }
     expr(c.geometry.diameter.get(), plain);
     expr(c.geometry.length.get(), plain);
     expr(c.geometry.area.get(), plain);

@@ -13,6 +13,7 @@ item
   | fnDecl
   | outsideDecl
   | compartmentDecl
+  | cableDecl
   | channelDecl
   | pumpDecl
   | protocolDecl
@@ -33,7 +34,8 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | EXCHANGER | CYCLE | ACTIVITY | IN | OUT | IF | THEN | ELSE | AND | OR | NOT
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
      | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL | EXPECT | WITHIN | RELATIVE | SOURCE
-     | SWEEP | VARY | POINTS | LOGARITHMIC | VALUES | SAMPLE | LATIN_HYPERCUBE | UNIFORM | SEED | MEASURE ;
+     | SWEEP | VARY | POINTS | LOGARITHMIC | VALUES | SAMPLE | LATIN_HYPERCUBE | UNIFORM | SEED | MEASURE
+     | CABLE | GROWS | END | AXIAL | RESISTIVITY | PIECES | PIECE ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -69,6 +71,18 @@ compartmentItem
   | ';'                                           # emptyCompartmentItem
   ;
 membraneEntry : IDENT expr (REVERSAL expr)? ';'? ;
+
+// cable NAME { grows from PARENT [end | at POSITION]; length L; diameter D [to D2];
+//              axial resistivity R; pieces N | piece length L; compartment items }
+cableDecl : CABLE IDENT '{' (cableItem | compartmentItem)* '}' ;
+cableItem
+  : GROWS FROM IDENT (END | AT expr)?             # growsItem
+  | LENGTH expr                                   # cableLengthItem
+  | DIAMETER expr (TO expr)?                      # cableDiameterItem
+  | AXIAL RESISTIVITY expr                        # axialItem
+  | PIECES NUMBER                                 # piecesItem
+  | PIECE LENGTH expr                             # pieceLengthItem
+  ;
 
 channelDecl : CHANNEL IDENT '{' channelItem* '}' ;
 channelItem
@@ -113,10 +127,10 @@ protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
 protocolItem
   : METHOD IDENT (STEP expr)? (TOLERANCE expr)?   # methodItem
   | DURATION expr                                 # durationItem
-  | INJECT IDENT injection                        # injectItem
-  | RECORD recordTarget (',' recordTarget)* (EVERY expr)?   # recordItem
+  | INJECT IDENT position? injection              # injectItem
+  | RECORD recorded (',' recorded)* (EVERY expr)? # recordItem
   | CLAMP IDENT AT expr (FROM expr TO expr)?      # clampItem
-  | SYNAPSE IDENT expr REVERSAL expr synapseShape synapseTimes   # synapseItem
+  | SYNAPSE IDENT position? expr REVERSAL expr synapseShape synapseTimes   # synapseItem
   | ';'                                           # emptyProtocolItem
   ;
 injection
@@ -125,6 +139,9 @@ injection
   | expr FROM expr TO expr                                # stepInjection
   ;
 recordTarget : word ('.' word)* ;
+// Along a cable: a distance from its start, or a plain number, a fraction of its length.
+position : AT expr ;
+recorded : recordTarget position? ;
 synapseShape
   : RISE expr DECAY expr                          # doubleExponential
   | DECAY expr                                    # singleExponential
@@ -237,6 +254,13 @@ LATIN_HYPERCUBE : 'latin_hypercube' ;
 UNIFORM : 'uniform' ;
 SEED : 'seed' ;
 MEASURE : 'measure' ;
+CABLE : 'cable' ;
+GROWS : 'grows' ;
+END : 'end' ;
+AXIAL : 'axial' ;
+RESISTIVITY : 'resistivity' ;
+PIECES : 'pieces' ;
+PIECE : 'piece' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

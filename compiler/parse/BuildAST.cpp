@@ -118,6 +118,8 @@ private:
       return build(c);
     if (auto *c = item->compartmentDecl())
       return build(c);
+    if (auto *c = item->cableDecl())
+      return build(c);
     if (auto *c = item->channelDecl())
       return build(c);
     if (auto *c = item->pumpDecl())
@@ -387,9 +389,101 @@ private:
   // compartmentDecl : COMPARTMENT IDENT '{' compartmentItem* '}' ;
   DeclPtr build(P::CompartmentDeclContext *ctx) {
     auto d = named<CompartmentDecl>(ctx, ctx->IDENT());
-    std::string owner = "compartment '" + d->name + "'";
+    compartmentItems(*d, ctx->compartmentItem(), "compartment '" + d->name + "'");
+    return d;
+  }
+
+  // cableDecl : CABLE IDENT '{' (cableItem | compartmentItem)* '}' ;
+  DeclPtr build(P::CableDeclContext *ctx) {
+    auto d = named<CompartmentDecl>(ctx, ctx->IDENT());
+    std::string owner = "cable '" + d->name + "'";
+    d->cable = std::make_unique<CableShape>();
+    CableShape &cable = *d->cable;
+    cable.range = range(ctx->CABLE());
+    for (P::CableItemContext *item : ctx->cableItem()) {
+      if (auto *c = dynamic_cast<P::GrowsItemContext *>(item)) {
+        // GROWS FROM IDENT (END | AT expr)?
+        if (!cable.parent.empty()) {
+          duplicate(range(c), cable.growsRange, "where it grows from", owner);
+          continue;
+        }
+        cable.parent = c->IDENT()->getText();
+        cable.parentRange = range(c->IDENT());
+        cable.growsRange = range(c);
+        cable.atEnd = c->END() != nullptr;
+        if (c->expr())
+          cable.at = {build(c->expr()), range(c->expr())};
+      }
+      if (auto *c = dynamic_cast<P::CableLengthItemContext *>(item)) {
+        // LENGTH expr
+        if (cable.length)
+          duplicate(range(c), cable.lengthRange, "the length", owner);
+        else {
+          cable.length = build(c->expr());
+          cable.lengthRange = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::CableDiameterItemContext *>(item)) {
+        // DIAMETER expr (TO expr)?
+        if (cable.diameter)
+          duplicate(range(c), cable.diameterRange, "the diameter", owner);
+        else {
+          cable.diameter = build(c->expr(0));
+          if (c->expr().size() > 1)
+            cable.diameterEnd = build(c->expr(1));
+          cable.diameterRange = range(c);
+        }
+      }
+      if (auto *c = dynamic_cast<P::AxialItemContext *>(item)) {
+        // AXIAL RESISTIVITY expr
+        if (cable.axialResistivity)
+          duplicate(range(c), cable.axialRange, "the axial resistivity", owner);
+        else {
+          cable.axialResistivity = build(c->expr());
+          cable.axialRange = range(c);
+        }
+      }
+      auto setPieces = [&](SourceRange r) {
+        if (cable.pieces > 0 || cable.pieceLength) {
+          duplicate(r, cable.piecesRange, "how it is cut", owner);
+          return false;
+        }
+        cable.piecesRange = r;
+        return true;
+      };
+      if (auto *c = dynamic_cast<P::PiecesItemContext *>(item)) {
+        // PIECES NUMBER
+        if (!setPieces(range(c)))
+          continue;
+        double n = std::strtod(c->NUMBER()->getText().c_str(), nullptr);
+        if (!(n >= 1 && n <= 1e6 && n == std::floor(n))) {
+          auto &diag =
+              diags_.error(range(c->NUMBER()), "a cable's piece count must be a whole number from 1 to 1000000");
+          DiagnosticEngine::note(diag, {}, "or give 'piece length' and let saltpan count them");
+          continue;
+        }
+        cable.pieces = static_cast<long>(n);
+      }
+      if (auto *c = dynamic_cast<P::PieceLengthItemContext *>(item)) {
+        // PIECE LENGTH expr
+        if (setPieces(range(c)))
+          cable.pieceLength = build(c->expr());
+      }
+    }
+    compartmentItems(*d, ctx->compartmentItem(), owner);
+    return d;
+  }
+
+  void compartmentItems(CompartmentDecl &compartment, const std::vector<P::CompartmentItemContext *> &items,
+                        const std::string &owner) {
+    CompartmentDecl *d = &compartment;
     SourceRange capacitanceAt, initialAt, insideAt;
     auto setGeometry = [&](Shape shape, SourceRange r) {
+      if (d->cable) {
+        auto &diag = diags_.error(r, "a cable's shape is its length and diameter");
+        DiagnosticEngine::note(diag, {}, "write 'length 400 um' and 'diameter 2 um' in " + owner);
+        return false;
+      }
       if (d->geometry.shape != Shape::None) {
         auto &diag = diags_.error(r, owner + " has more than one geometry");
         DiagnosticEngine::note(diag, d->geometry.range, "geometry first given here");
@@ -399,7 +493,7 @@ private:
       d->geometry.range = r;
       return true;
     };
-    for (P::CompartmentItemContext *item : ctx->compartmentItem()) {
+    for (P::CompartmentItemContext *item : items) {
       if (auto *c = dynamic_cast<P::SphereItemContext *>(item)) {
         // SPHERE DIAMETER expr
         if (setGeometry(Shape::Sphere, range(c)))
@@ -476,7 +570,6 @@ private:
         }
       }
     }
-    return d;
   }
 
   // channelDecl : CHANNEL IDENT '{' channelItem* '}' ;
@@ -767,6 +860,8 @@ private:
         inj.compartment = c->IDENT()->getText();
         inj.compartmentRange = range(c->IDENT());
         inj.range = range(c);
+        if (c->position())
+          inj.position = position(c->position());
         P::InjectionContext *shape = c->injection();
         if (auto *r = dynamic_cast<P::RampInjectionContext *>(shape)) {
           // RAMP expr TO expr FROM expr TO expr
@@ -811,6 +906,8 @@ private:
         syn.compartment = c->IDENT()->getText();
         syn.compartmentRange = range(c->IDENT());
         syn.range = range(c);
+        if (c->position())
+          syn.position = position(c->position());
         syn.conductance = build(c->expr(0));
         syn.reversal = build(c->expr(1));
         if (auto *s2 = dynamic_cast<P::DoubleExponentialContext *>(c->synapseShape())) {
@@ -842,14 +939,22 @@ private:
           continue;
         }
         recordAt = range(c);
-        for (P::RecordTargetContext *t : c->recordTarget())
-          d->records.push_back({t->getText(), range(t)});
+        for (P::RecordedContext *r : c->recorded()) {
+          // recorded : recordTarget position? ;
+          RecordTarget target{r->recordTarget()->getText(), range(r->recordTarget()), {}};
+          if (r->position())
+            target.position = position(r->position());
+          d->records.push_back(std::move(target));
+        }
         if (c->expr())
           d->every = build(c->expr());
       }
     }
     return d;
   }
+
+  // position : AT expr ;
+  Position position(P::PositionContext *ctx) { return {build(ctx->expr()), range(ctx->expr())}; }
 
   // ---- expressions ----
 
