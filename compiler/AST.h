@@ -269,7 +269,7 @@ struct CableShape {
   ExprPtr length, diameter, diameterEnd;       // diameterEnd: a taper's far end
   ExprPtr axialResistivity;                    // ohm m
   SourceRange lengthRange, diameterRange, axialRange;
-  long pieces = 0; // `pieces N`, or 0
+  long pieces = 0; // `pieces N`; 0 when not given, -1 when refused
   SourceRange piecesRange;
   ExprPtr pieceLength; // or `piece length L`
 };

@@ -1,6 +1,7 @@
 // Analyze.cpp - Stage 5: static values of the model, computed once.
 #include "Analyze.h"
 
+#include "Decimal.h"
 #include "Diagnostics.h"
 #include "Evaluate.h"
 #include "Physics.h"
@@ -212,7 +213,7 @@ private:
       auto piece = need(shape.pieceLength, "piece length", "piece length 10 um");
       if (piece && length)
         count = std::ceil(*length / *piece - 1e-9);
-    } else {
+    } else if (shape.pieces == 0) { // below 0: a piece count already refused
       auto &d = diags_.error(c.nameRange, "cable '" + c.name + "' does not say how to cut it into pieces");
       DiagnosticEngine::note(d, {}, "add 'pieces 40' or 'piece length 10 um'");
     }
@@ -272,8 +273,9 @@ private:
           return;
         double along = shape.at.at->type.dim == Dimension::none() ? *x * p->length : *x;
         if (along < 0 || along > p->length) {
-          auto &d = diags_.error(shape.at.range, "cable '" + p->decl->name + "' is " + std::to_string(p->length * 1e6) +
-                                                     " um long; '" + c.name + "' cannot grow from outside it");
+          auto &d = diags_.error(shape.at.range, "cable '" + p->decl->name + "' is " +
+                                                     shortestDecimal(tidyDecimal(p->length * 1e6)) + " um long; '" +
+                                                     c.name + "' cannot grow from outside it");
           DiagnosticEngine::note(d, {},
                                  "a place along a cable is a distance from 0 to its length, or a fraction from 0 to 1");
           return;
@@ -288,6 +290,15 @@ private:
       for (size_t i = 0; i < model_.compartments.size(); ++i)
         if (model_.compartments[i].decl == shape.parentDecl)
           parent = i;
+      if (!model_.compartments[parent].area) {
+        auto &d = diags_.error(shape.parentRange,
+                               "cable '" + c.name + "' grows from '" + shape.parent + "', which has no membrane area");
+        DiagnosticEngine::note(d, shape.parentDecl->nameRange,
+                               "give '" + shape.parent +
+                                   "' a sphere, cylinder or area: joined currents "
+                                   "divide by its area");
+        return;
+      }
     }
     model_.junctions.push_back({parent, cv.first, 1 / r});
   }

@@ -420,7 +420,7 @@ private:
       return -1;
     double along = at.at->type.dim == Dimension::none() ? *x * cable->length : *x;
     if (!(along >= 0 && along <= cable->length * (1 + 1e-12))) {
-      fail(at.range, "cable '" + decl.name + "' is " + shortestDecimal(cable->length * 1e6) +
+      fail(at.range, "cable '" + decl.name + "' is " + shortestDecimal(tidyDecimal(cable->length * 1e6)) +
                          " um long; this place is outside it");
       DiagnosticEngine::note(*diags_.last(), {},
                              "a place along a cable is a distance from 0 to its length, or a "
@@ -784,7 +784,10 @@ private:
     if (diags_.errorCount() == errorsBefore && p.duration)
       checkProtocolTiming(p);
     for (const RecordTarget &r : p.records) {
-      int index = out_.findProbe(recordedName(r));
+      std::string name = recordedName(r);
+      if (name.empty())
+        continue; // a place along a cable, already reported
+      int index = out_.findProbe(name);
       if (index < 0) {
         fail(r.range, "there is nothing called '" + r.path + "' to record");
         std::vector<std::string> names;
@@ -818,10 +821,10 @@ private:
           fail(r.range, "'" + head + "' is a cable: say where along it to record");
           DiagnosticEngine::note(*diags_.last(), {},
                                  "write e.g. '" + r.path + " at 100 um' or '" + r.path + " at 0.5'");
-          return r.path;
+          return "";
         }
         int piece = pieceAt(r.position, *cv.decl);
-        return piece < 0 ? r.path : head + "[" + std::to_string(piece) + "]" + r.path.substr(head.size());
+        return piece < 0 ? "" : head + "[" + std::to_string(piece) + "]" + r.path.substr(head.size());
       }
     return r.path;
   }

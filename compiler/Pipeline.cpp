@@ -1,6 +1,7 @@
 // Pipeline.cpp - parse and load, resolve, units, analyze, charge, physics: in that order.
 #include "Pipeline.h"
 
+#include "CheckCables.h"
 #include "CheckCharge.h"
 #include "CheckPhysics.h"
 #include "CheckUnits.h"
@@ -41,6 +42,9 @@ void run(const SourceFile &root, Compilation &c) {
     else
       lowered = false;
   }
+  if (lowered && !c.model.cables.empty()) // at rest: the model without stimuli
+    if (const ir::Model *rest = c.unstimulated())
+      checkCables(c.model, *rest, c.diags);
   bool expectations = lowered && checkExpectations(c, c.diags);
   bool sweeps = expectations && checkSweeps(c, c.diags);
   c.checked = lowered && expectations && sweeps && c.diags.errorCount() == 0;

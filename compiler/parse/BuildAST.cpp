@@ -460,6 +460,7 @@ private:
           auto &diag =
               diags_.error(range(c->NUMBER()), "a cable's piece count must be a whole number from 1 to 1000000");
           DiagnosticEngine::note(diag, {}, "or give 'piece length' and let saltpan count them");
+          cable.pieces = -1; // refused: not "missing" too
           continue;
         }
         cable.pieces = static_cast<long>(n);
