@@ -432,6 +432,7 @@ struct ExpectArg {
   std::string text; // a string argument (a snapshot file)
   bool isString = false;
   SourceRange range;
+  const Decl *target = nullptr; // set by Resolve when `path` is one name that is declared
 };
 
 /// expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]: a value the model must reproduce.

@@ -150,9 +150,11 @@ std::string display(double si, const Dimension &d) {
   return u.name.empty() ? buf : std::string(buf) + " " + u.name;
 }
 
-const CompartmentValues *compartmentNamed(const AnalyzedModel &m, const std::string &name) {
+// What Analyze computed for the compartment an argument names, or nullptr when it names none.
+const CompartmentValues *compartmentOf(const AnalyzedModel &m, const ExpectArg &a) {
+  const auto *decl = dyn_cast<CompartmentDecl>(a.target);
   for (const CompartmentValues &c : m.compartments)
-    if (c.decl->name == name)
+    if (decl && c.decl == decl)
       return &c;
   return nullptr;
 }
@@ -251,8 +253,7 @@ private:
     case Arg::Ion: {
       if (!needPath("an ion"))
         return false;
-      auto it = c_.symbols.byName.find(a.path);
-      if (it == c_.symbols.byName.end() || it->second->kind != DeclKind::Ion) {
+      if (!isa<IonDecl>(a.target)) {
         diags_.error(a.range, "'" + a.path + "' is not an ion");
         return false;
       }
@@ -261,7 +262,7 @@ private:
     case Arg::Compartment:
       if (!needPath("a compartment"))
         return false;
-      if (!compartmentNamed(c_.model, a.path)) {
+      if (!compartmentOf(c_.model, a)) {
         diags_.error(a.range, "there is no compartment '" + a.path + "'");
         return false;
       }
@@ -269,8 +270,7 @@ private:
     case Arg::Pump: {
       if (!needPath("a pump"))
         return false;
-      auto it = c_.symbols.byName.find(a.path);
-      if (it == c_.symbols.byName.end() || it->second->kind != DeclKind::Pump) {
+      if (!isa<PumpDecl>(a.target)) {
         diags_.error(a.range, "'" + a.path + "' is not a pump or exchanger");
         return false;
       }
@@ -405,22 +405,22 @@ private:
     std::string name = spec.name;
     const AnalyzedModel &m = c_.model;
     if (name == "reversal") {
-      auto *comp = compartmentNamed(m, e.args[1].path);
-      auto *ion = dyn_cast<IonDecl>(c_.symbols.byName.at(e.args[0].path));
+      auto *comp = compartmentOf(m, e.args[1]);
+      auto *ion = dyn_cast<IonDecl>(e.args[0].target);
       auto v = comp && m.temperature ? comp->nernst(ion, *m.temperature) : std::nullopt;
       if (!v)
         why = "no concentrations of '" + e.args[0].path + "' on both sides";
       return v;
     }
     if (name == "ghk_rest" || name == "area") {
-      auto *comp = compartmentNamed(m, e.args[0].path);
+      auto *comp = compartmentOf(m, e.args[0]);
       auto v = name == "area" ? comp->area : comp->ghkRest;
       if (!v)
         why = name == "area" ? "the compartment has no geometry" : "no GHK resting potential (no ungated permeability channels)";
       return v;
     }
     if (name == "net_charge") {
-      auto *pump = dyn_cast<PumpDecl>(c_.symbols.byName.at(e.args[0].path));
+      auto *pump = dyn_cast<PumpDecl>(e.args[0].target);
       auto it = m.pumps.find(pump);
       if (it == m.pumps.end() || !it->second.chargeKnown) {
         why = "the cycle's charge is unknown";
