@@ -391,10 +391,28 @@ struct Synapse {
   const CompartmentDecl *target = nullptr; // set by Resolve
 };
 
+/// The integration method a protocol names; Default when it names none, Unknown for a name
+/// that is no method (CheckProtocol reports it).
+enum class IntegrationMethod {
+  Default,
+  ExponentialEuler,
+  RungeKutta4,
+  DormandPrince,
+  Rosenbrock,
+  BackwardEuler,
+  CrankNicolson,
+  Unknown
+};
+/// The method a name in a protocol means (Unknown for any other name); defined with the builder.
+IntegrationMethod integrationMethodNamed(const std::string &name);
+/// "exponential_euler, rk4, ... and crank_nicolson": every name integrationMethodNamed knows.
+std::string integrationMethodNames();
+
 /// protocol NAME { ... }: how to simulate the model and what to record.
 struct ProtocolDecl : Decl {
   ProtocolDecl(SourceRange r) : Decl(DeclKind::Protocol, r) {}
-  std::string method;
+  IntegrationMethod method = IntegrationMethod::Default; // set by the AST builder
+  std::string methodText;                                // as written, for messages and dumps
   SourceRange methodRange;
   ExprPtr step, tolerance, duration, every;
   std::vector<Injection> injections;
@@ -414,6 +432,7 @@ struct ExpectArg {
   std::string text; // a string argument (a snapshot file)
   bool isString = false;
   SourceRange range;
+  const Decl *target = nullptr; // set by Resolve when `path` is one name that is declared
 };
 
 /// expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]: a value the model must reproduce.

@@ -289,8 +289,8 @@ public:
     }
     case DeclKind::Protocol: {
       auto &p = static_cast<const ProtocolDecl &>(d);
-      if (!p.method.empty())
-        line(1, "method " + p.method);
+      if (p.method != IntegrationMethod::Default)
+        line(1, "method " + p.methodText);
       expr(1, "step", p.step.get());
       expr(1, "tolerance", p.tolerance.get());
       expr(1, "duration", p.duration.get());

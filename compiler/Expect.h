@@ -1,6 +1,6 @@
-// Expect.h - Stage 11: expectations. checkExpectations (run by every `saltpan check`)
+// Expect.h - Stage 11: expectations. checkExpectations (ExpectCheck.cpp, run by every `saltpan check`)
 // validates each expectation: a known measure, arguments of the right kind, expected values
-// in the measure's dimension. runExpectations (run by `saltpan test`) measures each one, running
+// in the measure's dimension. runExpectations (ExpectMeasure.cpp, run by `saltpan test`) measures each one, running
 // protocols and steady-state searches as needed, and compares.
 #pragma once
 #include "AST.h"

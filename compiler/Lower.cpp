@@ -1,8 +1,6 @@
 // Lower.cpp - Stage 8: builds the IR kernel of a model for one protocol.
 #include "Lower.h"
 
-#include "Nearest.h"
-
 #include "Analyze.h"
 #include "Decimal.h"
 #include "Diagnostics.h"
@@ -10,7 +8,6 @@
 #include "Interpret.h"
 #include "Nearest.h"
 #include "Physics.h"
-#include "RunSettings.h"
 
 #include <algorithm>
 #include <cmath>
@@ -31,6 +28,8 @@ std::vector<const ProtocolDecl *> protocols(const Program &program) {
   return out;
 }
 
+bool lowerable(const AnalyzedModel &model) { return model.temperature && !model.compartments.empty(); }
+
 namespace {
 
 // Where an expression is being lowered: its compartment and the membrane potential node.
@@ -49,12 +48,10 @@ public:
   bool run(const Program &program, const ProtocolDecl *protocol) {
     out_.name = model_.header ? model_.header->name : ""; // no header: unnamed
     out_.temperature = model_.temperature.value_or(NAN);
-    if (!model_.temperature) {
-      diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no temperature to simulate at");
-      return false;
-    }
-    if (model_.compartments.empty()) {
-      diags_.error(protocol ? protocol->nameRange : SourceRange{}, "the model has no compartment to simulate");
+    if (!lowerable(model_)) {
+      diags_.error(protocol ? protocol->nameRange : SourceRange{}, !model_.temperature
+                                                                       ? "the model has no temperature to simulate at"
+                                                                       : "the model has no compartment to simulate");
       return false;
     }
     for (const CompartmentValues &c : model_.compartments) {
@@ -722,67 +719,38 @@ private:
       out_.protocol.method = ir::Method::CrankNicolson;
   }
 
+  // Without a method: exponential Euler, or for joined compartments Crank-Nicolson (exponential
+  // Euler relaxes one compartment at a time).
+  ir::Method method(IntegrationMethod m) const {
+    switch (m) {
+    case IntegrationMethod::RungeKutta4: return ir::Method::RungeKutta4;
+    case IntegrationMethod::DormandPrince: return ir::Method::DormandPrince;
+    case IntegrationMethod::Rosenbrock: return ir::Method::Rosenbrock;
+    case IntegrationMethod::BackwardEuler: return ir::Method::BackwardEuler;
+    case IntegrationMethod::CrankNicolson: return ir::Method::CrankNicolson;
+    case IntegrationMethod::Default:
+      return out_.junctions.empty() ? ir::Method::ExponentialEuler : ir::Method::CrankNicolson;
+    case IntegrationMethod::ExponentialEuler:
+    case IntegrationMethod::Unknown: break;
+    }
+    return ir::Method::ExponentialEuler;
+  }
+
   void lowerProtocol(const ProtocolDecl &p) {
     ir::Protocol &proto = out_.protocol;
     proto.name = p.name;
-    size_t errorsBefore = diags_.errorCount();
-    if (!p.method.empty()) {
-      if (p.method == "exponential_euler")
-        proto.method = ir::Method::ExponentialEuler;
-      else if (p.method == "rk4")
-        proto.method = ir::Method::RungeKutta4;
-      else if (p.method == "dormand_prince")
-        proto.method = ir::Method::DormandPrince;
-      else if (p.method == "rosenbrock")
-        proto.method = ir::Method::Rosenbrock;
-      else if (p.method == "backward_euler")
-        proto.method = ir::Method::BackwardEuler;
-      else if (p.method == "crank_nicolson")
-        proto.method = ir::Method::CrankNicolson;
-      else {
-        fail(p.methodRange, "unknown method '" + p.method + "'");
-        DiagnosticEngine::note(*diags_.last(), {},
-                               "the methods are exponential_euler, rk4, dormand_prince, rosenbrock, backward_euler "
-                               "and crank_nicolson");
-      }
-      if (proto.method == ir::Method::ExponentialEuler && !out_.junctions.empty()) {
-        fail(p.methodRange, "exponential_euler steps each compartment alone; this cell's compartments are joined");
-        DiagnosticEngine::note(*diags_.last(), {},
-                               "use crank_nicolson (the default for joined compartments) or backward_euler");
-      }
-    } else if (!out_.junctions.empty()) {
-      proto.method = ir::Method::CrankNicolson;
-    }
-    if (p.step) {
-      auto v = time(p.step.get());
-      if (!v || *v <= 0)
-        fail(p.step->range, "the step must be positive");
-      else
-        proto.step = *v;
-    }
-    if (p.tolerance) {
-      auto v = time(p.tolerance.get());
-      if (!v || *v <= 0 || *v >= 1)
-        fail(p.tolerance->range, "the tolerance must lie between 0 and 1");
-      else
-        proto.rtol = *v;
-    }
-    if (!p.duration)
-      fail(p.nameRange, "protocol '" + p.name + "' has no duration");
-    else if (auto v = time(p.duration.get()); !v || *v <= 0)
-      fail(p.duration->range, "the duration must be positive");
-    else
+    // CheckProtocol (stage 8a) judges the method and the timing on the lowered model; a value it
+    // will refuse is passed over here, and the model is then not kept.
+    proto.method = method(p.method);
+    if (auto v = time(p.step.get()))
+      proto.step = *v;
+    if (auto v = time(p.tolerance.get()))
+      proto.rtol = *v;
+    if (auto v = time(p.duration.get()))
       proto.duration = *v;
     proto.every = proto.step;
-    if (p.every) {
-      auto v = time(p.every.get());
-      if (!v || *v <= 0)
-        fail(p.every->range, "the recording interval must be positive");
-      else
-        proto.every = *v;
-    }
-    if (diags_.errorCount() == errorsBefore && p.duration)
-      checkProtocolTiming(p);
+    if (auto v = time(p.every.get()))
+      proto.every = *v;
     for (const RecordTarget &r : p.records) {
       std::string name = recordedName(r);
       if (name.empty())
@@ -839,25 +807,6 @@ private:
       if (farEnd)
         out_.protocol.record.push_back(out_.findProbe(out_.compartments[i].name + ".V"));
     }
-  }
-
-  // The counts a run derives from its timing (steps, samples) must be whole and bounded, or
-  // the steppers would stop early or record the wrong samples while claiming success.
-  void checkProtocolTiming(const ProtocolDecl &p) {
-    auto problem = checkTiming(out_.protocol);
-    if (!problem)
-      return;
-    using Field = TimingProblem::Field;
-    const Expr *at = problem->field == Field::Step    ? p.step.get()
-                     : problem->field == Field::Every ? (p.every ? p.every.get() : p.step.get())
-                                                      : p.duration.get();
-    fail(at ? at->range : p.duration->range, problem->message);
-    if (!problem->note.empty())
-      DiagnosticEngine::note(*diags_.last(), {}, problem->note);
-    if (problem->field == Field::Duration && p.step)
-      DiagnosticEngine::note(*diags_.last(), p.step->range, "the step is given here");
-    if (problem->field == Field::Every && !p.every)
-      DiagnosticEngine::note(*diags_.last(), {}, "without 'every', the recording interval is the step");
   }
 
   // Gates start at their steady values for the initial potentials.

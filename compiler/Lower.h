@@ -15,9 +15,14 @@ class Evaluator;
 struct AnalyzedModel;
 
 /// Lowers the model for `protocol` (nullptr: no stimulus, record every V). Returns false
-/// if it reported an error (a record target that does not exist, a missing initial V...).
+/// if it reported an error (a missing initial V, an injection that ends before it starts...).
+/// The protocol's own settings and records are judged afterwards, by checkProtocol.
 bool lowerModel(const ast::Program &program, const AnalyzedModel &model, Evaluator &evaluator,
                 const ast::ProtocolDecl *protocol, DiagnosticEngine &diags, ir::Model &out);
+
+/// Whether the model can be lowered at all: it has a temperature and a compartment. When it
+/// has not, lowerModel says so and lowers nothing, for any protocol.
+bool lowerable(const AnalyzedModel &model);
 
 /// Every protocol declared in the program, in order.
 std::vector<const ast::ProtocolDecl *> protocols(const ast::Program &program);

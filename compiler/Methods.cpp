@@ -947,11 +947,12 @@ private:
       d_.heading(3, "Protocol " + Code(p->name));
       if (!p->doc.empty())
         d_.para(p->doc);
-      std::string method = p->method.empty() ? "exponential_euler" : p->method;
+      bool written = p->method != IntegrationMethod::Default;
+      std::string method = written ? p->methodText : "exponential_euler";
       methodsUsed_.insert(method);
-      bool adaptive = method == "dormand_prince" || method == "rosenbrock";
+      bool adaptive = p->method == IntegrationMethod::DormandPrince || p->method == IntegrationMethod::Rosenbrock;
       std::string s = "Integration: " + methodInfo(method).description + " (" + Code(method) +
-                      (p->method.empty() ? ", the default" : "") + "), ";
+                      (written ? "" : ", the default") + "), ";
       std::string step = p->step ? M(mathOf(p->step)) : M("10\\,\\mu\\mathrm{s}") + " (default)";
       s += adaptive ? "first step " + step + ", relative tolerance " +
                           (p->tolerance ? M(mathOf(p->tolerance)) : M("10^{-8}") + " (default)") +

@@ -1,9 +1,11 @@
-// Pipeline.cpp - parse and load, resolve, units, analyze, charge, physics: in that order.
+// Pipeline.cpp - parse and load, resolve, units, analyze, charge, physics, lower and check each
+// protocol, expectations, sweeps: in that order.
 #include "Pipeline.h"
 
 #include "CheckCables.h"
 #include "CheckCharge.h"
 #include "CheckPhysics.h"
+#include "CheckProtocol.h"
 #include "CheckUnits.h"
 #include "Expect.h"
 #include "Lower.h"
@@ -33,11 +35,14 @@ void run(const SourceFile &root, Compilation &c) {
   bool physics = checkPhysics(c.program, c.model, c.evaluator, c.diags);
   if (!charge || !physics)
     return;
-  // Every protocol is lowered once, so `check` finds what `run` would refuse.
+  // Every protocol is lowered once, so `check` finds what `run` would refuse, and then its
+  // settings are checked on what was lowered for it (joined compartments, the timing).
   bool lowered = true;
   for (const ast::ProtocolDecl *p : protocols(c.program)) {
     ir::Model model;
-    if (lowerModel(c.program, c.model, c.evaluator, p, c.diags, model))
+    bool ok = lowerModel(c.program, c.model, c.evaluator, p, c.diags, model);
+    ok = lowerable(c.model) && checkProtocol(*p, model, c.evaluator, c.diags) && ok;
+    if (ok)
       c.lowered.emplace(p, std::move(model));
     else
       lowered = false;

@@ -272,8 +272,13 @@ private:
     case DeclKind::Expect: {
       auto &e = static_cast<ExpectDecl &>(d);
       Context plain{"an expectation"};
-      for (ExpectArg &a : e.args)
+      for (ExpectArg &a : e.args) {
         expr(a.value.get(), plain);
+        // Bound silently: which kind of declaration fits depends on the measure, which
+        // checkExpectations knows, and it reports a name of the wrong kind or none.
+        if (!a.path.empty())
+          a.target = lookup(a.path);
+      }
       for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
         expr(x, plain);
       if (!e.protocol.empty()) {

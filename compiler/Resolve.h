@@ -1,7 +1,7 @@
 // Resolve.h - Stage 3: name resolution.
 //
 // Builds one namespace from every module of the program, binds every name, concentration,
-// call and membrane entry to its declaration, and rejects names used where they have no
+// call, membrane entry and expectation argument to its declaration, and rejects names used where they have no
 // meaning (V inside a function, a channel used as a number). CheckUnits relies on it.
 #pragma once
 #include "AST.h"

@@ -1,8 +1,8 @@
-// Sweep.h - Stage 12: sweeps. checkSweeps (run by every `saltpan check`) validates each
+// Sweep.h - Stage 12: sweeps. checkSweeps (SweepCheck.cpp, run by every `saltpan check`) validates each
 // sweep declaration against the lowered model: parameters that exist, values in their
 // dimensions, a grid or a sample design that makes sense, measures a run or a steady state
-// can give. planSweep turns a valid declaration into its points and columns, and
-// SweepEvaluator computes points, in SIMD lanes where it can.
+// can give. planSweep (SweepCheck.cpp) turns a valid declaration into its points and columns,
+// and SweepEvaluator (Sweep.cpp) computes points, in SIMD lanes where it can.
 #pragma once
 #include "AST.h"
 #include "Expect.h"

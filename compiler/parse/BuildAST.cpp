@@ -8,6 +8,7 @@
 #include <cerrno>
 #include <cmath>
 #include <cstdlib>
+#include <iterator>
 
 namespace saltpan::parsing {
 
@@ -835,11 +836,12 @@ private:
     for (P::ProtocolItemContext *item : ctx->protocolItem()) {
       if (auto *c = dynamic_cast<P::MethodItemContext *>(item)) {
         // METHOD IDENT (STEP expr)? (TOLERANCE expr)?
-        if (!d->method.empty()) {
+        if (d->method != IntegrationMethod::Default) {
           duplicate(range(c), d->methodRange, "the method", owner);
           continue;
         }
-        d->method = c->IDENT()->getText();
+        d->methodText = c->IDENT()->getText();
+        d->method = integrationMethodNamed(d->methodText);
         d->methodRange = range(c->IDENT());
         size_t next = 0;
         if (c->STEP())
@@ -1242,3 +1244,33 @@ std::unique_ptr<Module> buildModule(P::SpecContext *spec, antlr4::CommonTokenStr
 }
 
 } // namespace saltpan::parsing
+
+namespace saltpan::ast {
+
+namespace {
+struct NamedMethod {
+  const char *name;
+  IntegrationMethod method;
+};
+constexpr NamedMethod namedMethods[] = {
+    {"exponential_euler", IntegrationMethod::ExponentialEuler}, {"rk4", IntegrationMethod::RungeKutta4},
+    {"dormand_prince", IntegrationMethod::DormandPrince},       {"rosenbrock", IntegrationMethod::Rosenbrock},
+    {"backward_euler", IntegrationMethod::BackwardEuler},       {"crank_nicolson", IntegrationMethod::CrankNicolson}};
+} // namespace
+
+IntegrationMethod integrationMethodNamed(const std::string &name) {
+  for (const NamedMethod &m : namedMethods)
+    if (name == m.name)
+      return m.method;
+  return IntegrationMethod::Unknown;
+}
+
+std::string integrationMethodNames() {
+  std::string out;
+  size_t n = std::size(namedMethods);
+  for (size_t i = 0; i < n; ++i)
+    out += std::string(i == 0 ? "" : i + 1 == n ? " and " : ", ") + namedMethods[i].name;
+  return out;
+}
+
+} // namespace saltpan::ast
