@@ -4,6 +4,7 @@
 // protocols and steady-state searches as needed, and compares.
 #pragma once
 #include "AST.h"
+#include "DisplayUnits.h"
 #include "Rest.h"
 #include "Run.h"
 #include "Units.h"
@@ -33,13 +34,6 @@ struct ExpectResult {
 /// Measures and judges every expectation of the program, in declaration order. Protocols
 /// run once each; `compile` (may be empty) makes their kernels native.
 std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &compile);
-
-/// The unit a value of some dimension is shown in, and the factor from SI to it.
-struct DisplayUnit {
-  std::string name; // "mV", "ms", "Hz", ... ("" for plain numbers)
-  double scale = 1;
-};
-DisplayUnit displayUnit(const Dimension &d);
 
 /// Validates one measure (of an expectation or a sweep) as checkExpectations does.
 bool checkMeasure(Compilation &c, const ast::ExpectDecl &e, DiagnosticEngine &diags);

@@ -20,46 +20,7 @@ std::vector<const ExpectDecl *> expectations(const Program &program) {
   return out;
 }
 
-DisplayUnit displayUnit(const Dimension &d) {
-  if (d == dims::voltage())
-    return {"mV", 1e3};
-  if (d == dims::time())
-    return {"ms", 1e3};
-  if (d == dims::rate())
-    return {"Hz", 1};
-  if (d == dims::area())
-    return {"um2", 1e12};
-  if (d == dims::voltage() / dims::current())
-    return {"Mohm", 1e-6};
-  if (d == dims::currentDensity())
-    return {"uA/cm2", 100};
-  if (d == dims::conductanceDensity())
-    return {"mS/cm2", 0.1};
-  if (d == dims::concentration())
-    return {"mM", 1};
-  if (d == dims::specificCapacitance())
-    return {"uF/cm2", 100};
-  if (d == dims::permeability())
-    return {"cm/s", 100};
-  if (d == Dimension::none())
-    return {"", 1};
-  return {formatDimension(d), 1}; // coherent SI
-}
-
 namespace {
-
-// A probe's display unit back to its dimension.
-Dimension unitDimension(const std::string &unit) {
-  if (unit == "mV")
-    return dims::voltage();
-  if (unit == "uA/cm2")
-    return dims::currentDensity();
-  if (unit == "mS/cm2")
-    return dims::conductanceDensity();
-  if (unit == "mM")
-    return dims::concentration();
-  return Dimension::none();
-}
 
 Dimension namedDimension(const std::string &name) {
   if (name == "voltage")
