@@ -4,6 +4,7 @@
 #include "Analyze.h"
 #include "Decimal.h"
 #include "Diagnostics.h"
+#include "DisplayUnits.h"
 #include "Evaluate.h"
 #include "Interpret.h"
 #include "Nearest.h"
@@ -107,6 +108,11 @@ private:
   void probe(const std::string &name, const std::string &unit, double scale, NodeId node, bool entryCurrent = false) {
     ir::Probe r{name, unit, scale, -1, k_.addOutput(node), entryCurrent};
     out_.probes.push_back(r);
+  }
+  // A recorded quantity shown in the display unit of its dimension (DisplayUnits.h).
+  void probe(const std::string &name, const Dimension &dim, NodeId node, bool entryCurrent = false) {
+    DisplayUnit unit = displayUnit(dim);
+    probe(name, unit.name, unit.scale, node, entryCurrent);
   }
 
   NodeId add(NodeId a, NodeId b) { return k_.binary(Op::Add, a, b); }
@@ -355,14 +361,14 @@ private:
       cur.g = add(cur.g, g);
       cur.ge = add(cur.ge, mul(g, e));
       current = mul(g, sub(env.voltage, e));
-      probe(prefix + ".conductance", "mS/cm2", 0.1, g);
-      probe(prefix + ".reversal", "mV", 1e3, e);
+      probe(prefix + ".conductance", dims::conductanceDensity(), g);
+      probe(prefix + ".reversal", dims::voltage(), e);
       if (single)
         carries(single, current, env);
       else
         allCarried_ = false;
     }
-    probe(prefix + ".current", "uA/cm2", 100, current, true);
+    probe(prefix + ".current", dims::currentDensity(), current, true);
   }
 
   void pump(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
@@ -393,7 +399,7 @@ private:
       NodeId ionPart = mul(cycles, num(outward));
       carries(t.target, ionPart, env);
     }
-    probe(prefix + ".current", "uA/cm2", 100, current, true);
+    probe(prefix + ".current", dims::currentDensity(), current, true);
   }
 
   std::optional<double> time(const Expr *e) { return e ? evaluator_.evaluate(*e, {}) : std::nullopt; }
@@ -584,12 +590,12 @@ private:
     if (perArea == 1)
       // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
     if (perArea == 1)
-      probe(prefix + ".conductance", "mS/cm2", 0.1, g);
+      probe(prefix + ".conductance", dims::conductanceDensity(), g);
     else
       probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
     else
       probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
-    probe(prefix + ".current", "uA/cm2", 100, mul(g, sub(env.voltage, num(*reversal))));
+    probe(prefix + ".current", dims::currentDensity(), mul(g, sub(env.voltage, num(*reversal))));
   }
 
   void clamps(const ProtocolDecl &p, const CompartmentValues &c, ir::Compartment &comp) {
@@ -655,7 +661,8 @@ private:
       pools[pool.ion] = k_.state(state);
       out_.pools.push_back({c.name + "." + pool.ion->name, static_cast<int>(out_.compartments.size()), state, -1, *z,
                             pool.areaPerVolume});
-      out_.probes.push_back({c.name + "." + pool.ion->name, "mM", 1, state, -1});
+      DisplayUnit mM = displayUnit(dims::concentration());
+      out_.probes.push_back({c.name + "." + pool.ion->name, mM.name, mM.scale, state, -1});
     }
     size_t firstPool = out_.pools.size() - pools.size();
     ionCurrent_.clear();
@@ -690,7 +697,7 @@ private:
       pool.derivativeOutput =
           k_.addOutput(mul(current, num(-pool.areaPerVolume / (pool.valence * physics::faraday))));
       if (NodeId e = nernstNode(ion, env); e >= 0)
-        probe(pool.name + ".reversal", "mV", 1e3, e);
+        probe(pool.name + ".reversal", dims::voltage(), e);
     }
     // A piece's ions move along the cable too: its own charge does not balance.
     comp.allCurrentCarried = !pools.empty() && allCarried_ && model_.junctions.empty();
@@ -699,17 +706,18 @@ private:
       carried.push_back(ion);
     std::sort(carried.begin(), carried.end(), [](auto *a, auto *b) { return a->name < b->name; });
     for (const IonDecl *ion : carried)
-      probe(c.name + "." + ion->name + ".current", "uA/cm2", 100, ionCurrent_[ion]);
+      probe(c.name + "." + ion->name + ".current", dims::currentDensity(), ionCurrent_[ion]);
     comp.gOutput = k_.addOutput(cur.g);
     comp.geOutput = k_.addOutput(cur.ge);
     comp.iOtherOutput = k_.addOutput(sub(cur.other, cur.stimulus)); // injected current enters the cell
     comp.injectedOutput = k_.addOutput(cur.stimulus);
     out_.compartments.push_back(comp);
-    out_.probes.push_back({c.name + ".V", "mV", 1e3, comp.voltageState, -1});
-    probe(c.name + ".membrane_current", "uA/cm2", 100, ionic);
+    DisplayUnit mV = displayUnit(dims::voltage());
+    out_.probes.push_back({c.name + ".V", mV.name, mV.scale, comp.voltageState, -1});
+    probe(c.name + ".membrane_current", dims::currentDensity(), ionic);
     if (comp.clampedOutput >= 0) // while clamped, the amplifier supplies the ionic current
-      probe(c.name + ".clamp_current", "uA/cm2", 100, mul(k_.outputs[comp.clampedOutput], ionic));
-    probe(c.name + ".injected", "uA/cm2", 100, cur.stimulus);
+      probe(c.name + ".clamp_current", dims::currentDensity(), mul(k_.outputs[comp.clampedOutput], ionic));
+    probe(c.name + ".injected", dims::currentDensity(), cur.stimulus);
   }
 
   void defaultProtocol() {

@@ -2,6 +2,7 @@
 #include "Show.h"
 #include "Version.h"
 
+#include "DisplayUnits.h"
 #include "Physics.h"
 #include "Pipeline.h"
 
@@ -26,29 +27,6 @@ double tidy(double v) {
 }
 
 json optional(std::optional<double> v, double scale = 1) { return v ? json(tidy(*v * scale)) : json(nullptr); }
-
-const char *densityUnit(DensityKind k) {
-  switch (k) {
-  case DensityKind::Conductance: return "mS/cm2";
-  case DensityKind::Permeability: return "cm/s";
-  case DensityKind::Current: return "uA/cm2";
-  case DensityKind::Turnover: return "mol/cm2/s";
-  case DensityKind::Unknown: break;
-  }
-  return "";
-}
-
-// SI -> the unit named by densityUnit.
-double densityScale(DensityKind k) {
-  switch (k) {
-  case DensityKind::Conductance: return 0.1;  // S/m2 -> mS/cm2
-  case DensityKind::Permeability: return 100; // m/s -> cm/s
-  case DensityKind::Current: return 100;      // A/m2 -> uA/cm2
-  case DensityKind::Turnover: return 1e-4;    // mol/m2/s -> mol/cm2/s
-  case DensityKind::Unknown: break;
-  }
-  return 1;
-}
 
 bool isDynamic(const CompartmentValues &c, const IonDecl *ion) {
   return std::any_of(c.pools.begin(), c.pools.end(), [ion](auto &p) { return p.ion == ion; });
@@ -80,9 +58,11 @@ json compartmentJson(const CompartmentValues &c, const AnalyzedModel &m, const r
   json membrane = json::array();
   for (const Placement &p : c.placements) {
     json entry{{"entry", p.entry->name},
-               {"kind", p.channel ? "channel" : p.pump ? (p.pump->exchanger ? "exchanger" : "pump") : "unknown"},
-               {"density", optional(p.density, densityScale(p.densityKind))},
-               {"density_unit", densityUnit(p.densityKind)}};
+               {"kind", p.channel ? "channel"
+                        : p.pump  ? (p.pump->exchanger ? "exchanger" : "pump")
+                                  : "unknown"},
+               {"density", optional(p.density, densityUnit(p.densityKind).scale)},
+               {"density_unit", densityUnit(p.densityKind).name}};
     if (p.channel) {
       entry["reversal_mV"] = optional(p.reversal, 1e3);
       entry["reversal_from"] = reversalSpelling(p.reversalKind);
@@ -213,8 +193,8 @@ std::string showText(const Compilation &c, const std::vector<rest::CompartmentRe
            (states.empty() ? std::string("none between -150 and +100 mV") : states));
     }
     for (const Placement &p : cv.placements) {
-      std::string s = "  " + p.entry->name + ": " + num("%.6g", p.density, densityScale(p.densityKind)) + " " +
-                      densityUnit(p.densityKind);
+      std::string s = "  " + p.entry->name + ": " + num("%.6g", p.density, densityUnit(p.densityKind).scale) + " " +
+                      densityUnit(p.densityKind).name;
       if (p.channel)
         s += ", reversal " + num("%.3f mV", p.reversal, 1e3) + " (" + reversalSpelling(p.reversalKind) + ")";
       line(s);

@@ -2,6 +2,7 @@
 // coherent SI and shortest exact decimals, so a number can be traced before lowering folds it.
 #include "Analyze.h"
 #include "Decimal.h"
+#include "DisplayUnits.h"
 
 #include <algorithm>
 #include <sstream>
@@ -12,17 +13,6 @@ namespace {
 
 std::string value(std::optional<double> v, const char *unit) {
   return v ? shortestDecimal(*v) + (*unit ? std::string(" ") + unit : "") : std::string("unknown");
-}
-
-const char *densityUnit(DensityKind k) {
-  switch (k) {
-  case DensityKind::Conductance: return "S/m2";
-  case DensityKind::Permeability: return "m/s";
-  case DensityKind::Current: return "A/m2";
-  case DensityKind::Turnover: return "mol/m2/s";
-  case DensityKind::Unknown: break;
-  }
-  return "";
 }
 
 // Ions in the compartment's order (by name): the maps are keyed by pointer.
@@ -66,8 +56,8 @@ std::string dumpValues(const AnalyzedModel &m) {
     for (const Placement &p : c.placements) {
       const char *what = p.channel ? "channel" : "pump";
       std::string name = p.channel ? p.channel->name : p.pump ? p.pump->name : "?";
-      out << "  " << what << " " << name << " density " << value(p.density, densityUnit(p.densityKind)) << " reversal "
-          << reversalSpelling(p.reversalKind) << " " << value(p.reversal, "V");
+      out << "  " << what << " " << name << " density " << value(p.density, densitySiUnit(p.densityKind))
+          << " reversal " << reversalSpelling(p.reversalKind) << " " << value(p.reversal, "V");
       if (p.concentrationReversal && p.reversalKind == ReversalKind::Written)
         out << " (concentrations give " << shortestDecimal(*p.concentrationReversal) << " V)";
       out << "\n";
