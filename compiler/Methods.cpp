@@ -8,6 +8,7 @@
 #include "Version.h"
 
 #include "Analyze.h"
+#include "DisplayUnits.h"
 #include "Physics.h"
 #include "Pipeline.h"
 
@@ -433,32 +434,11 @@ private:
 
 // ---- The description ---------------------------------------------------------------
 
-const char *densityUnit(DensityKind k) {
-  switch (k) {
-  case DensityKind::Conductance: return "mS/cm2";
-  case DensityKind::Permeability: return "cm/s";
-  case DensityKind::Current: return "uA/cm2";
-  case DensityKind::Turnover: return "mol/cm2/s";
-  case DensityKind::Unknown: break;
-  }
-  return "";
-}
-
-double densityScale(DensityKind k) {
-  switch (k) {
-  case DensityKind::Conductance: return 0.1;
-  case DensityKind::Permeability: return 100;
-  case DensityKind::Current: return 100;
-  case DensityKind::Turnover: return 1e-4;
-  case DensityKind::Unknown: break;
-  }
-  return 1;
-}
-
 std::string densityCell(const Placement &p) {
   if (!p.density || p.densityKind == DensityKind::Unknown)
     return "n/a";
-  return quantity(*p.density * densityScale(p.densityKind), densityUnit(p.densityKind));
+  DisplayUnit unit = densityUnit(p.densityKind);
+  return quantity(*p.density * unit.scale, unit.name);
 }
 
 std::string potentialCell(std::optional<double> v) { return v ? number(*v * 1e3) : "n/a"; }
