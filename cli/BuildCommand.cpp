@@ -80,10 +80,7 @@ environment: SALTPAN_CXX  the C++ compiler driver that links (default: c++ on PA
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan build: error: %s\n\n%s", message.c_str(), buildHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan build: error", message, buildHelp); }
 
 int fault(const std::string &message) {
   std::fprintf(stderr, "saltpan build: error: %s\n", message.c_str());

@@ -82,11 +82,6 @@ struct Options {
   bool version = false;
 };
 
-int usageError(const std::string &message, const char *help) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), help);
-  return BadUsage;
-}
-
 // Returns an exit code when parsing must stop, or -1 to go on. --help and --version are kept
 // for after the loop: an option refused anywhere on the line wins over them.
 int parseOptions(const std::vector<std::string> &args, Options &o, const char *help, bool allowCheckOptions) {
@@ -111,7 +106,7 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
   }
   parser.positional(o.files);
   parser.endOfOptions();
-  if (auto code = parser.parse(args, [&](const std::string &message) { return usageError(message, help); }))
+  if (auto code = parser.parse(args, [&](const std::string &message) { return usageError("saltpan", message, help); }))
     return *code;
   if (o.help) {
     std::fputs(help, stdout);
@@ -120,13 +115,20 @@ int parseOptions(const std::vector<std::string> &args, Options &o, const char *h
   if (o.version)
     return printVersion();
   if (o.files.empty())
-    return usageError("no spec file given", help);
+    return usageError("saltpan", "no spec file given", help);
   return -1;
 }
 
 void printDiagnostics(const DiagnosticEngine &diags, bool colour) {
   for (const Diagnostic &d : diags.all())
     std::fputs(renderText(d, colour).c_str(), stderr);
+}
+
+} // namespace
+
+int usageError(const std::string &who, const std::string &message, const char *help) {
+  std::fprintf(stderr, "%s: %s\n\n%s", who.c_str(), message.c_str(), help);
+  return BadUsage;
 }
 
 bool useColour(const std::string &setting) {
@@ -137,7 +139,11 @@ bool useColour(const std::string &setting) {
   return isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
 }
 
-} // namespace
+bool compileAndReport(const std::string &path, Compilation &c, bool colour) {
+  compileFile(path, c);
+  printDiagnostics(c.diags, colour);
+  return c.diags.errorCount() == 0;
+}
 
 int printVersion() {
   std::printf("saltpan %s\n", SALTPAN_VERSION);
@@ -189,10 +195,10 @@ int checkCommand(const std::vector<std::string> &args) {
   if (int code = parseOptions(args, o, checkHelp, true); code >= 0)
     return code;
   if (!o.protocol.empty() && o.emit.empty())
-    return usageError("--protocol chooses what --emit shows; give --emit too", checkHelp);
+    return usageError("saltpan", "--protocol chooses what --emit shows; give --emit too", checkHelp);
   if (!o.emit.empty()) {
     if (o.files.size() != 1)
-      return usageError("--emit takes exactly one file", checkHelp);
+      return usageError("saltpan", "--emit takes exactly one file", checkHelp);
     return emitStage(o.emit, o.protocol, o.files[0], useColour(o.color));
   }
   // A directory stands for every spec below it, as for `saltpan test`; files are read as given.
@@ -248,14 +254,12 @@ int showCommand(const std::vector<std::string> &args) {
   if (int code = parseOptions(args, o, showHelp, false); code >= 0)
     return code;
   if (o.files.size() != 1)
-    return usageError("show takes exactly one spec file", showHelp);
+    return usageError("saltpan", "show takes exactly one spec file", showHelp);
   Compilation c;
-  compileFile(o.files[0], c);
-  printDiagnostics(c.diags, useColour("auto"));
-  if (c.diags.errorCount() > 0)
+  if (!compileAndReport(o.files[0], c, useColour()))
     return BadInput;
   if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty())
-    return usageError(clash, showHelp);
+    return usageError("saltpan", clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.
   std::vector<rest::CompartmentRest> steady;
   // A model that cannot be lowered is still shown, without its rest.

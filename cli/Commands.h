@@ -33,6 +33,14 @@ int sweepCommand(const std::vector<std::string> &args);
 int mergeCommand(const std::vector<std::string> &args);
 int buildCommand(const std::vector<std::string> &args);
 
+/// Prints "WHO: MESSAGE", a blank line and `help` on standard error; returns BadUsage.
+int usageError(const std::string &who, const std::string &message, const char *help);
+/// Whether text diagnostics on standard error are coloured: "always", "never", or "auto" (a
+/// terminal, and NO_COLOR not set).
+bool useColour(const std::string &setting = "auto");
+/// Compiles `path` into `c` and prints its diagnostics on standard error; false when it has
+/// errors (exit status BadInput).
+bool compileAndReport(const std::string &path, Compilation &c, bool colour);
 /// Prints "saltpan VERSION"; returns Ok.
 int printVersion();
 /// Declares --help and -h (print `help` on standard output) and --version, each ending the

@@ -45,10 +45,7 @@ exit status: 0 success (with --check: every file is canonical), 1 with --check: 
              several hard links, a planted link)
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), fmtHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan", message, fmtHelp); }
 
 // Where an in-place rewrite of `path` goes, or "" with `error` when it must not happen.
 std::string rewriteTarget(const std::string &path, bool force, std::string &error) {
@@ -115,7 +112,7 @@ int fmtCommand(const std::vector<std::string> &args) {
   if (check && toStdout)
     return usage("--check and --stdout cannot be combined");
 
-  bool colour = isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
+  bool colour = useColour();
   bool errors = false, cannotWrite = false, changed = false;
   for (const std::string &path : files) {
     SourceManager sources;

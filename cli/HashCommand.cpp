@@ -41,10 +41,7 @@ exit status: 0 success, 64 bad usage, 65 the spec or a module it uses has syntax
              cannot be read, 70 internal fault
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), hashHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan", message, hashHelp); }
 
 } // namespace
 
@@ -64,7 +61,7 @@ int hashCommand(const std::vector<std::string> &args) {
   if (files.size() != 1)
     return usage("hash takes exactly one spec file");
 
-  bool colour = isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
+  bool colour = useColour();
   SourceManager sources;
   DiagnosticEngine diags;
   std::string error;

@@ -34,10 +34,7 @@ exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 ca
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan merge: error: %s\n\n%s", message.c_str(), mergeHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan merge: error", message, mergeHelp); }
 
 int refuse(const std::string &message) {
   std::fprintf(stderr, "saltpan merge: error: %s\n", message.c_str());
@@ -50,11 +47,9 @@ int mergeCommand(const std::vector<std::string> &args) {
   std::vector<std::string> outputs, inputs;
   OptionParser parser;
   addHelpAndVersion(parser, mergeHelp);
-  parser.value("-o", [&](const std::string &v) -> std::string {
-    if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
-      return "-o takes a .csv or .json file, not '" + v + "'";
+  parser.value("-o", [&](const std::string &v) {
     outputs.push_back(v);
-    return "";
+    return sweep::tableOutputProblem(v);
   });
   parser.positional(inputs);
   if (auto code = parser.parse(args, usage))

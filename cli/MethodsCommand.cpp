@@ -41,10 +41,7 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), methodsHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan", message, methodsHelp); }
 
 } // namespace
 
@@ -83,11 +80,7 @@ int methodsCommand(const std::vector<std::string> &args) {
     return usage("--fragment needs --format latex");
 
   Compilation c;
-  compileFile(files[0], c);
-  bool colour = isatty(fileno(stderr)) && std::getenv("NO_COLOR") == nullptr;
-  for (const Diagnostic &d : c.diags.all())
-    std::fputs(renderText(d, colour).c_str(), stderr);
-  if (c.diags.errorCount() > 0 || !c.checked)
+  if (!compileAndReport(files[0], c, useColour()) || !c.checked)
     return BadInput;
   if (std::string clash = outputClash({{"-o", output}}, c.sources); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());

@@ -41,10 +41,7 @@ exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), restHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan", message, restHelp); }
 
 // "-100mV", "-100 mV", "-0.1 V", "-100" (a bare number is in mV) -> volts.
 std::optional<double> parseVoltage(const std::string &text) {
@@ -187,10 +184,7 @@ int restCommand(const std::vector<std::string> &args) {
     return usage("the scanned range is wider than 10 V");
 
   Compilation c;
-  compileFile(file, c);
-  for (const Diagnostic &d : c.diags.all())
-    std::fputs(renderText(d).c_str(), stderr);
-  if (c.diags.errorCount() > 0)
+  if (!compileAndReport(file, c, false))
     return BadInput;
   const ir::Model *unstimulated = c.unstimulated();
   if (!unstimulated) {

@@ -45,21 +45,14 @@ int snapshotCommand(const std::vector<std::string> &args) {
   parser.value("--protocol", only).separateOnly();
   parser.value("--engine", engine).separateOnly();
   parser.positional(file, "snapshot takes one spec file");
-  if (auto code = parser.parse(args, [](const std::string &message) {
-        std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), snapshotHelp);
-        return BadUsage;
-      }))
+  if (auto code =
+          parser.parse(args, [](const std::string &message) { return usageError("saltpan", message, snapshotHelp); }))
     return *code;
-  if (file.empty() || (engine != "jit" && engine != "interpreter")) {
-    std::fprintf(stderr, "saltpan: %s\n\n%s",
-                 file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'", snapshotHelp);
-    return BadUsage;
-  }
+  if (file.empty() || (engine != "jit" && engine != "interpreter"))
+    return usageError("saltpan", file.empty() ? "no spec file given" : "--engine must be 'jit' or 'interpreter'",
+                      snapshotHelp);
   Compilation c;
-  compileFile(file, c);
-  for (const Diagnostic &d : c.diags.all())
-    std::fputs(renderText(d).c_str(), stderr);
-  if (c.diags.errorCount() > 0)
+  if (!compileAndReport(file, c, false))
     return BadInput;
   KernelCompiler compile;
   std::unique_ptr<JIT> jit;

@@ -74,10 +74,7 @@ struct SweepOptions : sweep::RunArguments {
   int lanes = 0;
 };
 
-int usage(const std::string &message) {
-  std::fprintf(stderr, "saltpan sweep: error: %s\n\n%s", message.c_str(), sweepHelp);
-  return BadUsage;
-}
+int usage(const std::string &message) { return usageError("saltpan sweep: error", message, sweepHelp); }
 
 // NAME=A:B:N -> "vary NAME from A to B points N"
 bool varyItem(const std::string &v, bool logarithmic, std::string &item, std::string &error) {
@@ -167,8 +164,8 @@ int sweepCommand(const std::vector<std::string> &args) {
     return usage(
         "--sweep names a sweep of the file; it cannot be combined with --vary, --values, --sample or --measure");
   for (const std::string &out : o.outputs)
-    if (!isJsonPath(out) && (out.size() < 4 || out.substr(out.size() - 4) != ".csv"))
-      return usage("-o takes a .csv or .json file, not '" + out + "'");
+    if (std::string problem = sweep::tableOutputProblem(out); !problem.empty())
+      return usage(problem);
   sweep::ShardChoice shard;
   if (!o.shard.empty()) {
     std::string error;

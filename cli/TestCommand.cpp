@@ -139,15 +139,11 @@ int testCommand(const std::vector<std::string> &args) {
     return "";
   });
   parser.positional(paths);
-  if (auto code = parser.parse(args, [](const std::string &message) {
-        std::fprintf(stderr, "saltpan: %s\n\n%s", message.c_str(), testHelp);
-        return BadUsage;
-      }))
+  if (auto code =
+          parser.parse(args, [](const std::string &message) { return usageError("saltpan", message, testHelp); }))
     return *code;
-  if (paths.empty()) {
-    std::fprintf(stderr, "saltpan: no path given\n\n%s", testHelp);
-    return BadUsage;
-  }
+  if (paths.empty())
+    return usageError("saltpan", "no path given", testHelp);
   std::string error;
   std::vector<UnreadableFolder> unreadable; // reported like files with errors
   std::vector<std::string> files = discoverSpecs(paths, unreadable, error);

@@ -1,5 +1,6 @@
 // SweepTable.cpp - CSV and JSON of sweep results.
 #include "SweepTable.h"
+#include "TraceOutput.h"
 
 #include <nlohmann/json.hpp>
 
@@ -16,6 +17,12 @@ void shardRange(uint64_t total, int index, int count, uint64_t &first, uint64_t 
   };
   first = at(index);
   size = at(index + 1) - first;
+}
+
+std::string tableOutputProblem(const std::string &path) {
+  if (isJsonPath(path) || (path.size() >= 4 && path.substr(path.size() - 4) == ".csv"))
+    return "";
+  return "-o takes a .csv or .json file, not '" + path + "'";
 }
 
 std::string exactNumber(double v) {

@@ -42,6 +42,9 @@ void shardRange(uint64_t total, int index, int count, uint64_t &first, uint64_t 
 
 /// One row per point: point index, parameters, measures (each "name (unit)"), failure.
 std::string toCsv(const Table &t);
+/// "" when `path` names a table output (.csv, or .json: isJsonPath), else the usage error for
+/// `-o` (saltpan sweep, saltpan merge and a built executable's sweep mode).
+std::string tableOutputProblem(const std::string &path);
 /// The same with provenance; a shard's JSON also says which shard it is.
 std::string toJson(const Table &t);
 /// Reads a table written by toJson; returns false with `error` on anything unexpected.

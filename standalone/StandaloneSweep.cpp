@@ -78,11 +78,9 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
     return Ok;
   });
   sweep::addRunOptions(parser, o);
-  parser.value("-o", [&](const std::string &v) -> std::string {
-    if (!isJsonPath(v) && (v.size() < 4 || v.substr(v.size() - 4) != ".csv"))
-      return "-o takes a .csv or .json file, not '" + v + "'";
+  parser.value("-o", [&](const std::string &v) {
     o.outputs.push_back(v);
-    return "";
+    return sweep::tableOutputProblem(v);
   });
   if (auto code = parser.parse(args, bad))
     return *code;
