@@ -361,7 +361,8 @@ struct Injection {
 struct RecordTarget {
   std::string path;
   SourceRange range;
-  Position position; // along a cable
+  Position position;                            // along a cable
+  const CompartmentDecl *compartment = nullptr; // set by Resolve: what the path starts with, if declared
 };
 
 /// clamp COMPARTMENT at LEVEL [from T1 to T2]: a voltage clamp; without a window it holds

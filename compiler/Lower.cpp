@@ -792,7 +792,7 @@ private:
   std::string recordedName(const RecordTarget &r) {
     std::string head = r.path.substr(0, r.path.find('.'));
     for (const CableValues &cv : model_.cables)
-      if (cv.decl->name == head) {
+      if (r.compartment && cv.decl == r.compartment) {
         if (!r.position) {
           fail(r.range, "'" + head + "' is a cable: say where along it to record");
           DiagnosticEngine::note(*diags_.last(), {},

@@ -320,12 +320,11 @@ private:
         s.target = compartmentNamed(s.compartment, s.compartmentRange);
         position(s.position, s.target, plain);
       }
-      for (RecordTarget &r : p.records)
-        if (r.position) {
-          std::string head = r.path.substr(0, r.path.find('.'));
-          Decl *owner = lookup(head);
-          position(r.position, owner ? dyn_cast<CompartmentDecl>(owner) : nullptr, plain);
-        }
+      // Bound silently: Lower reports a record that names nothing among the lowered probes.
+      for (RecordTarget &r : p.records) {
+        r.compartment = dyn_cast<CompartmentDecl>(lookup(r.path.substr(0, r.path.find('.'))));
+        position(r.position, r.compartment, plain);
+      }
       return;
     }
     case DeclKind::Pump: {

@@ -1,5 +1,6 @@
 // Resolve.tests.cpp - stage 3: what name resolution binds outside expressions (the names
 // that expectations and sweep measures take as arguments), and that it adds no diagnostics.
+#include "Lower.h"
 #include "TestSupport.h"
 
 using namespace saltpan;
@@ -70,4 +71,27 @@ TEST_CASE("an argument of the wrong kind is bound, and reported once, by the exp
       errors.push_back(d.message);
   CHECK(errors == std::vector<std::string>{"'L' is not an ion", "there is no compartment 'nowhere'",
                                            "'K' is not a pump or exchanger"});
+}
+
+TEST_CASE("resolve binds a record target to the compartment or cable its path starts with", "[resolve]") {
+  std::string text = "temperature 20 degC\n"
+                     "compartment c {\n  sphere diameter 20 um\n  capacitance 1 uF/cm2\n  initial V = -60 mV\n"
+                     "  membrane { L 0.3 mS/cm2 }\n}\n"
+                     "cable d {\n  grows from c\n  length 100 um\n  diameter 1 um\n"
+                     "  axial resistivity 100 ohm*cm\n  pieces 4\n}\n"
+                     "channel L { reversal -60 mV }\n"
+                     "protocol p {\n  duration 1 ms\n  record c.V, d.V at 0.5, L.x\n}\n";
+  auto c = compile(text);
+  auto all = protocols(c->program);
+  REQUIRE(all.size() == 1);
+  const auto &records = all[0]->records;
+  REQUIRE(records.size() == 3);
+  CHECK(records[0].compartment == testing::find<ast::CompartmentDecl>(*c, "c"));
+  CHECK(records[1].compartment == testing::find<ast::CompartmentDecl>(*c, "d"));
+  CHECK(records[2].compartment == nullptr); // a channel: Lower finds no such probe
+  std::vector<std::string> errors;
+  for (const Diagnostic &d : c->diags.all())
+    if (d.severity == Severity::Error)
+      errors.push_back(d.message);
+  CHECK(errors == std::vector<std::string>{"there is nothing called 'L.x' to record"});
 }
