@@ -76,7 +76,7 @@ membraneEntry : IDENT expr (REVERSAL expr)? ';'? ;
 //              axial resistivity R; pieces N | piece length L; compartment items }
 cableDecl : CABLE IDENT '{' (cableItem | compartmentItem)* '}' ;
 cableItem
-  : GROWS FROM IDENT (END | AT expr)?             # growsItem
+  : GROWS FROM IDENT (END | position)?            # growsItem
   | LENGTH expr                                   # cableLengthItem
   | DIAMETER expr (TO expr)?                      # cableDiameterItem
   | AXIAL RESISTIVITY expr                        # axialItem
@@ -139,8 +139,9 @@ injection
   | expr FROM expr TO expr                                # stepInjection
   ;
 recordTarget : word ('.' word)* ;
-// Along a cable: a distance from its start, or a plain number, a fraction of its length.
-position : AT expr ;
+// Along a cable: a distance from its start, or a plain number, a fraction of its length. A
+// quantity, not an expression: what follows it (an amplitude) may start with a sign.
+position : AT quantity ;
 recorded : recordTarget position? ;
 synapseShape
   : RISE expr DECAY expr                          # doubleExponential

@@ -403,7 +403,7 @@ private:
     cable.range = range(ctx->CABLE());
     for (P::CableItemContext *item : ctx->cableItem()) {
       if (auto *c = dynamic_cast<P::GrowsItemContext *>(item)) {
-        // GROWS FROM IDENT (END | AT expr)?
+        // GROWS FROM IDENT (END | position)?
         if (!cable.parent.empty()) {
           duplicate(range(c), cable.growsRange, "where it grows from", owner);
           continue;
@@ -412,8 +412,8 @@ private:
         cable.parentRange = range(c->IDENT());
         cable.growsRange = range(c);
         cable.atEnd = c->END() != nullptr;
-        if (c->expr())
-          cable.at = {build(c->expr()), range(c->expr())};
+        if (c->position())
+          cable.at = position(c->position());
       }
       if (auto *c = dynamic_cast<P::CableLengthItemContext *>(item)) {
         // LENGTH expr
@@ -956,8 +956,8 @@ private:
     return d;
   }
 
-  // position : AT expr ;
-  Position position(P::PositionContext *ctx) { return {build(ctx->expr()), range(ctx->expr())}; }
+  // position : AT quantity ;
+  Position position(P::PositionContext *ctx) { return {build(ctx->quantity()), range(ctx->quantity())}; }
 
   // ---- expressions ----
 
