@@ -193,6 +193,10 @@ int restCommand(const std::vector<std::string> &args) {
     return BadInput;
   }
   const ir::Model &model = *unstimulated;
+  if (!model.junctions.empty()) {
+    std::fprintf(stderr, "saltpan: error: %s\n", rest::notForJoinedCompartments);
+    return BadInput;
+  }
   std::vector<rest::CompartmentRest> result;
   try {
     result = rest::findSteadyStates(model, &c.model, options);

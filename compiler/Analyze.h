@@ -78,6 +78,7 @@ struct CableValues {
   double length = 0, diameter = 0, diameterEnd = 0; // m
   double axialResistivity = 0;                      // ohm m
   size_t first = 0, pieces = 0;
+  std::optional<double> lengthConstant; // m at rest; filled by CheckCables (it needs the kernel)
   double pieceLength() const { return length / static_cast<double>(pieces); }
   double diameterAt(double x) const { return diameter + (diameterEnd - diameter) * x / length; }
 };

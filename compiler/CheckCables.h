@@ -10,6 +10,7 @@ class DiagnosticEngine;
 /// Warns for each cable whose pieces are longer than its length constant at rest,
 /// lambda = sqrt(d / (4 Ri G)), G the membrane's conductance density at the initial state of
 /// `lowered` (any lowering of `model`). Returns false if it reported an error (it reports none).
-bool checkCables(const AnalyzedModel &model, const ir::Model &lowered, DiagnosticEngine &diags);
+/// Fills each cable's CableValues::lengthConstant.
+bool checkCables(AnalyzedModel &model, const ir::Model &lowered, DiagnosticEngine &diags);
 
 } // namespace saltpan

@@ -381,6 +381,9 @@ std::vector<std::complex<double>> eigenvalues(std::vector<double> a, int n) {
 }
 
 std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis, const Options &o) {
+  // Each compartment is analysed alone: joined ones would give a wrong number, not an answer.
+  if (!model.junctions.empty())
+    throw std::invalid_argument(notForJoinedCompartments);
   std::vector<CompartmentRest> result;
   for (const ir::Compartment &comp : model.compartments) {
     CompartmentRest cr;

@@ -58,6 +58,10 @@ struct CompartmentRest {
 /// so with no injected current) in [options.from, options.to]. `analysis` (may be null)
 /// supplies the GHK resting potentials. Throws std::runtime_error when the eigenvalue
 /// iteration does not converge.
+/// Why findSteadyStates refuses a model with junctions (cables): it analyses each compartment alone.
+inline constexpr const char *notForJoinedCompartments =
+    "the steady state of joined compartments (cables) is not solved yet: saltpan rest analyses each compartment alone";
+
 std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                               const Options &options = {});
 

@@ -1,5 +1,7 @@
 // Show.cpp - renders the analysed model: concentrations, reversal potentials, GHK rest.
 #include "Show.h"
+
+#include "Decimal.h"
 #include "Version.h"
 
 #include "DisplayUnits.h"
@@ -16,6 +18,13 @@ using namespace ast;
 using json = nlohmann::ordered_json;
 
 namespace {
+
+const CableValues *cableOf(const AnalyzedModel &m, const CompartmentValues &cv) {
+  for (const CableValues &c : m.cables)
+    if (c.decl == cv.decl)
+      return &c;
+  return nullptr;
+}
 
 const char *caution = "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions";
 
@@ -113,9 +122,28 @@ std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRe
   doc["constants"] = {{"R_J_per_mol_K", physics::gasConstant}, {"F_C_per_mol", physics::faraday}};
   doc["temperature_K"] = optional(m.temperature);
   doc["temperature_degC"] = m.temperature ? json(*m.temperature - physics::zeroCelsius) : json(nullptr);
-  json compartments = json::array();
-  for (const CompartmentValues &cv : m.compartments)
-    compartments.push_back(compartmentJson(cv, m, steadyOf(steady, cv.decl->name)));
+  json compartments = json::array(), cables = json::array();
+  for (const CompartmentValues &cv : m.compartments) {
+    const CableValues *cable = cableOf(m, cv);
+    if (!cable) {
+      compartments.push_back(compartmentJson(cv, m, steadyOf(steady, cv.decl->name)));
+      continue;
+    }
+    if (cv.piece > 0)
+      continue;
+    const CableShape &shape = *cv.decl->cable;
+    json j = compartmentJson(cv, m, nullptr); // the first piece: membrane, solutions, capacitance
+    j["grows_from"] = shape.parentDecl ? json(shape.parent) : json(nullptr);
+    j["length_um"] = tidyDecimal(cable->length * 1e6);
+    j["diameter_um"] = tidyDecimal(cable->diameter * 1e6);
+    j["diameter_end_um"] = tidyDecimal(cable->diameterEnd * 1e6);
+    j["axial_resistivity_ohm_cm"] = tidyDecimal(cable->axialResistivity * 100);
+    j["pieces"] = cable->pieces;
+    j["piece_length_um"] = tidyDecimal(cable->pieceLength() * 1e6);
+    j["length_constant_um"] = cable->lengthConstant ? json(*cable->lengthConstant * 1e6) : json(nullptr);
+    j["electrotonic_length"] = cable->lengthConstant ? json(cable->length / *cable->lengthConstant) : json(nullptr);
+    cables.push_back(j);
+  }
   doc["compartments"] = compartments;
   json pumps = json::array();
   std::vector<std::pair<const PumpDecl *, PumpValues>> sorted(m.pumps.begin(), m.pumps.end());
@@ -131,6 +159,8 @@ std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRe
                      {"net_charge_out_per_cycle", values.chargeKnown ? json(values.netOutwardCharge) : json(nullptr)}});
   }
   doc["pumps"] = pumps;
+  if (!cables.empty()) // absent without cables: every other document reads as before
+    doc["cables"] = cables;
   return doc.dump(2) + "\n";
 }
 
@@ -142,6 +172,7 @@ std::string num(const char *format, std::optional<double> v, double scale = 1) {
   std::snprintf(buf, sizeof buf, format, *v * scale);
   return buf;
 }
+
 } // namespace
 
 std::string showText(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
@@ -155,10 +186,27 @@ std::string showText(const Compilation &c, const std::vector<rest::CompartmentRe
        ")");
   line("conventions: V is inside minus outside; membrane current is positive outward");
   for (const CompartmentValues &cv : m.compartments) {
+    if (cv.piece > 0)
+      continue; // a cable is shown once, as its first piece and its shape
     line("");
-    line("compartment " + cv.decl->name + " (outside: " + (cv.bath ? cv.bath->name : "-") + ")");
-    line("  area " + num("%.6g um2", cv.area, 1e12) + ", capacitance " + num("%.4g uF/cm2", cv.capacitance, 100) +
-         ", initial V " + num("%.4g mV", cv.initialV, 1e3));
+    const CableValues *cable = cableOf(m, cv);
+    if (!cable)
+      line("compartment " + cv.decl->name + " (outside: " + (cv.bath ? cv.bath->name : "-") + ")");
+    else {
+      const CableShape &shape = *cv.decl->cable;
+      line("cable " + cv.decl->name + " (" + (shape.parentDecl ? "grows from " + shape.parent + "; " : "") +
+           "outside: " + (cv.bath ? cv.bath->name : "-") + ")");
+      line("  length " + num("%.6g um", cable->length, 1e6) + ", diameter " + num("%.4g um", cable->diameter, 1e6) +
+           (cable->diameterEnd != cable->diameter ? " to " + num("%.4g um", cable->diameterEnd, 1e6) : "") +
+           ", axial resistivity " + num("%.4g ohm*cm", cable->axialResistivity, 100) + ", " +
+           std::to_string(cable->pieces) + " pieces of " + num("%.4g um", cable->pieceLength(), 1e6));
+      line("  length constant at rest " + num("%.4g um", cable->lengthConstant, 1e6) + ", electrotonic length " +
+           num("%.4g",
+               cable->lengthConstant ? std::optional<double>(cable->length / *cable->lengthConstant) : std::nullopt));
+    }
+    line("  " + std::string(cable ? "first piece's area " : "area ") + num("%.6g um2", cv.area, 1e12) +
+         ", capacitance " + num("%.4g uF/cm2", cv.capacitance, 100) + ", initial V " +
+         num("%.4g mV", cv.initialV, 1e3));
     if (cv.ions.empty())
       line("  (no concentrations given)");
     char header[128];

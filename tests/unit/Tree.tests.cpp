@@ -198,3 +198,33 @@ TEST_CASE("backward Euler is first order in time on a cable, Crank-Nicolson seco
       CHECK_THAT(std::log2(errors[i - 1] / errors[i]), Catch::Matchers::WithinAbs(order, 0.15));
   }
 }
+
+TEST_CASE("a cable written in the language settles to the closed form of cable theory", "[tree][cable]") {
+  // The same sealed cable as above, now cut and joined by saltpan from its `cable` block: a free
+  // cable (it grows from nothing), a current into its first piece, V recorded at both ends.
+  // V(x) = I0 r_a lambda cosh((L - x) / lambda) / sinh(L / lambda) (Rall 1969; Jack, Noble &
+  // Tsien 1975, ch. 3), lambda = 1 mm, L = 0.5 mm.
+  auto c =
+      testing::compile("temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
+                       "cable c {\n  length 500 um\n  diameter 2 um\n  axial resistivity 100 ohm*cm\n"
+                       "  pieces 100\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n"
+                       "  membrane { Leak 0.05 mS/cm2 }\n}\n"
+                       "protocol hold {\n  method backward_euler step 0.1 ms\n  duration 400 ms\n"
+                       "  inject c at 0 1 uA/cm2 from 0 ms to 1000 ms\n  record c.V at 0, c.V at 1 every 400 ms\n}\n");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  const ir::Model &m = c->lowered.begin()->second;
+  REQUIRE(m.compartments.size() == 100);
+  REQUIRE(m.junctions.size() == 99);
+  Trace t = runModel(m, m.params, KernelCompiler()).trace;
+  REQUIRE(t.names == std::vector<std::string>{"c[0].V", "c[99].V"});
+  double d = 2e-6, length = 500e-6, ri = 1.0, rm = 2.0, piece = length / 100;
+  double lambda = std::sqrt(rm * d / (4 * ri)), ra = 4 * ri / (M_PI * d * d);
+  auto closedForm = [&](double x) {
+    return ra * lambda * std::cosh((length - x) / lambda) / std::sinh(length / lambda);
+  };
+  double injected = 1e-2 * M_PI * d * piece; // A
+  double v0 = (t.values[t.values.size() - 2] + 65) * 1e-3, vEnd = (t.values.back() + 65) * 1e-3;
+  CHECK_THAT(v0 / injected, Catch::Matchers::WithinRel(closedForm(0.5 * piece), 5e-6));
+  CHECK_THAT(vEnd / injected, Catch::Matchers::WithinRel(closedForm(length - 0.5 * piece), 5e-6));
+}
