@@ -202,6 +202,19 @@ public:
     case DeclKind::Compartment: {
       auto &c = static_cast<const CompartmentDecl &>(d);
       static const char *shapes[] = {"none", "sphere", "cylinder", "area"};
+      if (const CableShape *cable = c.cable.get()) {
+        line(1, "cable" + (cable->parent.empty() ? std::string(" (free)")
+                                                 : " grows from " + cable->parent + bound(cable->parentDecl) +
+                                                       (cable->atEnd ? " end" : "")));
+        expr(2, "at", cable->at.at.get());
+        expr(2, "length", cable->length.get());
+        expr(2, "diameter", cable->diameter.get());
+        expr(2, "to diameter", cable->diameterEnd.get());
+        expr(2, "axial resistivity", cable->axialResistivity.get());
+        if (cable->pieces > 0)
+          line(2, "pieces " + std::to_string(cable->pieces));
+        expr(2, "piece length", cable->pieceLength.get());
+      }
       line(1, std::string("geometry ") + shapes[static_cast<int>(c.geometry.shape)]);
       expr(2, "diameter", c.geometry.diameter.get());
       expr(2, "length", c.geometry.length.get());
@@ -297,6 +310,7 @@ public:
       static const char *shapes[] = {"step", "ramp", "pulses"};
       for (auto &i : p.injections) {
         line(1, std::string("inject ") + i.compartment + " " + shapes[static_cast<int>(i.shape)] + bound(i.target));
+        expr(2, "at", i.position.at.get());
         expr(2, "amplitude", i.amplitude.get());
         expr(2, "to amplitude", i.amplitudeEnd.get());
         expr(2, "width", i.width.get());
@@ -304,8 +318,10 @@ public:
         expr(2, "from", i.from.get());
         expr(2, "to", i.to.get());
       }
-      for (auto &r : p.records)
+      for (auto &r : p.records) {
         line(1, "record " + r.path);
+        expr(2, "at", r.position.at.get());
+      }
       expr(1, "every", p.every.get());
       break;
     }
