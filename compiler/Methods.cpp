@@ -8,6 +8,7 @@
 #include "Version.h"
 
 #include "Analyze.h"
+#include "Decimal.h"
 #include "DisplayUnits.h"
 #include "Physics.h"
 #include "Pipeline.h"
@@ -465,6 +466,21 @@ MethodRef methodInfo(const std::string &method) {
             "each step below " + M("\\mathrm{atol} + \\mathrm{rtol}\\,|y|"),
             "J. R. Dormand and P. J. Prince (1980). A family of embedded Runge" "\u2013" "Kutta formulae. Journal of "
             "Computational and Applied Mathematics 6(1):19" "\u2013" "26."};
+  if (method == "backward_euler" || method == "crank_nicolson") {
+    bool crank = method == "crank_nicolson";
+    return {std::string("gates by exponential Euler (Rush & Larsen 1978), then every membrane potential at once by ") +
+                (crank ? "Crank"
+                         "\u2013"
+                         "Nicolson (backward Euler over half the step, extrapolated to its end; second "
+                         "order in time)"
+                       : "backward Euler (first order in time)") +
+                " on the linear system of the membranes and the axial conductances, solved in O(N) by elimination "
+                "from the leaves of the tree to its root (Hines 1984); steps are split at the edges of stimuli",
+            "M. Hines (1984). Efficient computation of branched nerve equations. International Journal of "
+            "Bio-Medical Computing 15(1):69"
+            "\u2013"
+            "76."};
+  }
   if (method == "rosenbrock")
     return {"the second-order L-stable Rosenbrock method ROS2 of Verwer et al. (1999), adaptive with its embedded "
             "first-order solution and a finite-difference Jacobian at every step",
@@ -522,6 +538,8 @@ private:
   void collectPlacements() {
     for (const CompartmentValues &cv : m_.compartments)
       for (const Placement &p : cv.placements) {
+        if (cv.piece > 0) // a cable's pieces share its membrane
+          break;
         if (p.channel) {
           auto &entry = channels_[p.channel->name];
           entry.first = p.channel;
@@ -615,7 +633,7 @@ private:
     d_.heading(2, "Solutions and reversal potentials");
     bool any = false;
     for (const CompartmentValues &cv : m_.compartments) {
-      if (cv.ions.empty())
+      if (cv.ions.empty() || cv.piece > 0) // a cable's pieces share its solutions
         continue;
       any = true;
       d_.heading(3, "Compartment " + Code(cv.decl->name) +
@@ -666,8 +684,20 @@ private:
     d_.heading(2, "Compartments");
     std::vector<std::vector<std::string>> rows;
     for (const CompartmentValues &cv : m_.compartments) {
+      if (cv.piece > 0)
+        continue;
       const Geometry &g = cv.decl->geometry;
       std::string geometry = "n/a";
+      if (const CableValues *cable = cableOf(cv)) {
+        geometry = "cable, " + std::to_string(cable->pieces) + " pieces (see below)";
+        double area = 0;
+        for (size_t i = 0; i < cable->pieces; ++i)
+          area += m_.compartments[cable->first + i].area.value_or(0);
+        rows.push_back({Code(cv.decl->name), geometry, number(area * 1e12),
+                        cv.capacitance ? number(*cv.capacitance * 100) : "n/a",
+                        cv.initialV ? number(*cv.initialV * 1e3) : "n/a"});
+        continue;
+      }
       if (g.shape == Shape::Sphere)
         geometry = "sphere, diameter " + M(mathOf(g.diameter));
       else if (g.shape == Shape::Cylinder)
@@ -687,10 +717,55 @@ private:
             M("\\pi d L") + ". In each compartment " +
             M("C_m \\, dV/dt = -\\sum I_{\\mathrm{membrane}} + I_{\\mathrm{injected}}") +
             ", with the currents as densities per membrane area.");
+    morphology();
     for (const CompartmentValues &cv : m_.compartments)
-      if (cv.ghkRest)
+      if (cv.ghkRest && cv.piece <= 0)
         d_.para("In " + Code(cv.decl->name) + " the GHK resting potential of the ungated permeability channels (" +
                 std::to_string(cv.ghkChannels) + ") is " + quantity(*cv.ghkRest * 1e3, "mV") + ".");
+  }
+
+  const CableValues *cableOf(const CompartmentValues &cv) const {
+    for (const CableValues &c : m_.cables)
+      if (c.decl == cv.decl)
+        return &c;
+    return nullptr;
+  }
+
+  // Each cable's shape and how it was cut, and how joined compartments share current.
+  void morphology() {
+    if (m_.cables.empty())
+      return;
+    d_.heading(3, "Morphology and discretisation");
+    std::vector<std::string> items;
+    for (const CableValues &cable : m_.cables) {
+      const CableShape &shape = *cable.decl->cable;
+      std::string from = shape.parentDecl ? ", grown from " + Code(shape.parent) +
+                                                (shape.at ? " at " + M(mathOf(shape.at.at)) : std::string()) +
+                                                (shape.parentDecl->cable && !shape.at ? " (its far end)" : "")
+                                          : " (a free cable)";
+      std::string diameter = cable.diameterEnd != cable.diameter
+                                 ? "diameter tapering from " + quantity(cable.diameter * 1e6, "um") + " to " +
+                                       quantity(cable.diameterEnd * 1e6, "um")
+                                 : "diameter " + quantity(cable.diameter * 1e6, "um");
+      std::string s = Code(cable.decl->name) + from + ": length " + quantity(tidyDecimal(cable.length * 1e6), "um") +
+                      ", " + diameter + ", axial resistivity " + quantity(cable.axialResistivity * 100, "ohm*cm") +
+                      "; cut into " + std::to_string(cable.pieces) + " pieces of " +
+                      quantity(tidyDecimal(cable.pieceLength() * 1e6), "um");
+      if (cable.lengthConstant)
+        s += "; length constant at rest " + quantity(*cable.lengthConstant * 1e6, "um") + " (electrotonic length " +
+             M(g6(cable.length / *cable.lengthConstant)) + ")";
+      items.push_back(s + ".");
+    }
+    d_.items(items);
+    d_.para("Each piece of a cable is a compartment of its own, with the side wall of its stretch of cable as "
+            "membrane area and the cable's membrane, solutions and capacitance (a cable that gives none takes those "
+            "of what it grows from). Neighbouring pieces, and a cable and what it grows from, are joined by the axial "
+            "resistance between their centres, " +
+            M("4 R_i h / (\\pi d_1 d_2)") + " for each stretch of length " + M("h") + " between diameters " + M("d_1") +
+            " and " + M("d_2") + "; the far ends are sealed. The length constant is " +
+            M("\\lambda = \\sqrt{d / (4 R_i G)}") + ", with " + M("G") +
+            " the membrane's conductance density at the initial state (Rall 1969). Ions do "
+            "not diffuse along a cable.");
   }
 
   std::string carriesText(const ChannelDecl &ch) {
@@ -928,7 +1003,7 @@ private:
       if (!p->doc.empty())
         d_.para(p->doc);
       bool written = p->method != IntegrationMethod::Default;
-      std::string method = written ? p->methodText : "exponential_euler";
+      std::string method = written ? p->methodText : m_.junctions.empty() ? "exponential_euler" : "crank_nicolson";
       methodsUsed_.insert(method);
       bool adaptive = p->method == IntegrationMethod::DormandPrince || p->method == IntegrationMethod::Rosenbrock;
       std::string s = "Integration: " + methodInfo(method).description + " (" + Code(method) +
@@ -943,7 +1018,8 @@ private:
 
       std::vector<std::string> stimuli;
       for (const Injection &inj : p->injections) {
-        std::string into = " into " + Code(inj.compartment);
+        std::string into =
+            " into " + Code(inj.compartment) + (inj.position ? " at " + M(mathOf(inj.position.at)) : std::string());
         switch (inj.shape) {
         case InjectionShape::Step:
           stimuli.push_back("A current step of " + M(mathOf(inj.amplitude)) + into + window(inj.from, inj.to) + ".");
@@ -1000,7 +1076,7 @@ private:
                 "potential (outward positive); the capacitive transient at a command step is not included.");
       std::vector<std::string> records;
       for (const RecordTarget &r : p->records)
-        records.push_back(Code(r.path));
+        records.push_back(Code(r.path) + (r.position ? " at " + M(mathOf(r.position.at)) : std::string()));
       std::string rec = records.empty() ? "Recorded: the membrane potential of every compartment"
                                         : "Recorded: " + joinAnd(records);
       rec += p->every ? ", every " + M(mathOf(p->every)) + "."

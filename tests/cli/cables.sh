@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # cables.sh - a branched cell (a soma, a cable grown from it, a branch grown from the cable's
-# middle) through the commands: check, show (text and JSON), run (interpreter pinned, the JIT
+# middle) through the commands: check, show (text and JSON), methods, run (interpreter pinned, the JIT
 # within rounding of it), build (the executable equals run), and rest, which refuses joined
 # compartments rather than analysing each piece alone. Goldens in tests/golden/cables/,
 # refreshed with SALTPAN_UPDATE_GOLDEN=1.
@@ -35,6 +35,9 @@ assert (branch["name"], branch["pieces"], branch["grows_from"]) == ("branch", 10
 assert abs(dend["length_constant_um"] - 1000) < 1e-9, dend["length_constant_um"]
 assert abs(dend["electrotonic_length"] - 0.5) < 1e-12
 PY
+run methods methods branched_cell.saltpan
+same methods.md "$TMP/methods.out"
+grep -q 'Morphology and discretisation' "$TMP/methods.out" || fail "methods does not describe the morphology"
 cd - >/dev/null
 
 expect_rc interp 0 run "$SPEC" --engine interpreter -o "$TMP/interp.csv"
