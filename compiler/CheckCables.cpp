@@ -1,4 +1,4 @@
-// CheckCables.cpp - Stage 8a: pieces against the length constant.
+// CheckCables.cpp - Stage 8b: pieces against the length constant.
 #include "CheckCables.h"
 
 #include "Decimal.h"

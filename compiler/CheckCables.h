@@ -1,4 +1,4 @@
-// CheckCables.h - Stage 8a: whether each cable is cut finely enough for its length constant at
+// CheckCables.h - Stage 8b: whether each cable is cut finely enough for its length constant at
 // rest (which needs the lowered kernel: the membrane's conductance at the initial state).
 #pragma once
 #include "Analyze.h"

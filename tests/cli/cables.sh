@@ -58,6 +58,13 @@ expect_rc build 0 build "$SPEC" -o "$TMP/cell"
 "$TMP/cell" -o "$TMP/exe.csv" >/dev/null 2>&1 || fail "the built cell did not run"
 cmp -s "$TMP/exe.csv" "$TMP/jit.csv" || fail "the built executable's trace differs from saltpan run's"
 
+# RK4 steps a tree fused in SIMD lanes too: every lane gives what a scalar run gives, bit for bit.
+SWEEP=$GOLDEN/rk4_sweep_cell.saltpan
+expect_rc lanes 0 sweep --sweep g --progress none -o "$TMP/lanes.csv" "$SWEEP"
+expect_grep lanes err 'batched, [0-9]+ lanes'
+expect_rc scalar 0 sweep --sweep g --progress none --engine scalar -o "$TMP/scalar.csv" "$SWEEP"
+cmp -s "$TMP/lanes.csv" "$TMP/scalar.csv" || fail "lanes and scalar points differ on a tree"
+
 expect_rc rest 65 rest "$SPEC"
 expect_grep rest err 'the steady state of joined compartments \(cables\) is not solved yet'
 finish
