@@ -123,6 +123,7 @@ SweepEvaluator::SweepEvaluator(Compilation &c, const SweepPlan &plan, SweepEngin
     for (const std::string &name : plan.parameters)
       run.axisParam.push_back(run.model.findParam(name));
     KernelCompiler native = im.engine == SweepEngine::Interpreter ? KernelCompiler() : compile;
+    run.kernels.reserve(workers); // `kernels` below refers into it while the copies are added
     run.kernels.emplace_back(planKernels(run.model, KernelUse::Lanes, im.engine == SweepEngine::Batched ? im.lanes : 1),
                              native);
     const PlannedKernels &kernels = run.kernels.front();

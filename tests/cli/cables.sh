@@ -64,6 +64,17 @@ expect_rc lanes 0 sweep --sweep g --progress none -o "$TMP/lanes.csv" "$SWEEP"
 expect_grep lanes err 'batched, [0-9]+ lanes'
 expect_rc scalar 0 sweep --sweep g --progress none --engine scalar -o "$TMP/scalar.csv" "$SWEEP"
 cmp -s "$TMP/lanes.csv" "$TMP/scalar.csv" || fail "lanes and scalar points differ on a tree"
+# Interpreted points give each of several threads its own interpreters (more than two threads).
+expect_rc interpreted 0 sweep --sweep g --progress none --engine interpreter --threads 4 -o "$TMP/interp4.csv" "$SWEEP"
+"$PY" - "$TMP/interp4.csv" "$TMP/scalar.csv" <<'PY' || fail "interpreted points differ from native ones beyond rounding"
+import csv, sys
+a, b = (list(csv.reader(open(p))) for p in sys.argv[1:])
+assert a[0] == b[0] and len(a) == len(b)
+for x, y in zip(a[1:], b[1:]):
+    for u, v in zip(x, y):
+        if u and v:
+            assert abs(float(u) - float(v)) <= 1e-9 * max(1.0, abs(float(u))), (u, v)
+PY
 
 expect_rc rest 65 rest "$SPEC"
 expect_grep rest err 'the steady state of joined compartments \(cables\) is not solved yet'
