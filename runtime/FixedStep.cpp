@@ -205,15 +205,16 @@ void FixedStepper::implicitStep(double *y, const double *out, double t, double h
     diag_[static_cast<size_t>(p)] += g / cs[static_cast<size_t>(p)].area;
     low_[i] = -g / cs[static_cast<size_t>(p)].area;
   }
-  for (size_t i = 0; i < cs.size(); ++i) // a clamped row is V = its held value
-    if (cs[i].clampedOutput >= 0 && out[cs[i].clampedOutput] != 0) {
+  auto clamped = [&](size_t i) { return cs[i].clampedOutput >= 0 && out[cs[i].clampedOutput] != 0; };
+  for (size_t i = 0; i < cs.size(); ++i) {
+    if (clamped(i)) { // a clamped row is V = its held value
       diag_[i] = 1;
       rhs_[i] = y[cs[i].voltageState];
       up_[i] = 0;
-      for (size_t k = 0; k < cs.size(); ++k)
-        if (tree_->parent(k) == static_cast<int>(i))
-          low_[k] = 0;
     }
+    if (int p = tree_->parent(i); p >= 0 && clamped(static_cast<size_t>(p)))
+      low_[i] = 0; // the clamped parent's row holds no child
+  }
   tree_->solve(diag_.data(), up_.data(), low_.data(), rhs_.data());
   for (size_t i = 0; i < cs.size(); ++i) {
     double &v = y[cs[i].voltageState];

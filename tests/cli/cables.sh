@@ -54,6 +54,18 @@ for x, y in zip(a[1:], b[1:]):
         assert abs(float(u) - float(v)) <= 1e-9 * max(1.0, abs(float(u))), (u, v)
 PY
 
+# A clamped soma holds its command while the tree charges through it (the clamped row of the
+# implicit system is V = command); after the clamp the whole tree relaxes together.
+sed 's/  inject dend at 450 um 0.1 nA from 10 ms to 40 ms/  clamp soma at -40 mV from 10 ms to 40 ms/' "$SPEC" >"$TMP/clamp.saltpan"
+expect_rc clamp 0 run "$TMP/clamp.saltpan" -o "$TMP/clamp.csv"
+"$PY" - "$TMP/clamp.csv" <<'PY' || fail "a clamped soma does not hold its command, or the tree does not follow it"
+import csv, sys
+rows = [list(map(float, r)) for r in list(csv.reader(open(sys.argv[1])))[1:]]
+held = [r for r in rows if 10 < r[0] < 40]
+assert held and all(r[1] == -40 for r in held), held[:3]
+assert -65 < held[-1][2] < -40 and held[-1][2] > held[0][2]  # the far dendrite charges towards -40 mV
+PY
+
 expect_rc build 0 build "$SPEC" -o "$TMP/cell"
 "$TMP/cell" -o "$TMP/exe.csv" >/dev/null 2>&1 || fail "the built cell did not run"
 cmp -s "$TMP/exe.csv" "$TMP/jit.csv" || fail "the built executable's trace differs from saltpan run's"
