@@ -52,7 +52,7 @@ grep -q "\"version\": \"$version\"" "$TMP/squid_default.exe.json" || fail "the J
 
 # No LLVM, no ANTLR, no saltpan library at run time.
 for program in "$TMP/squid" "$TMP/tide"; do
-  if ldd "$program" | grep -Eiq 'llvm|antlr|saltpan'; then
+  if grep -Eiq 'llvm|antlr|saltpan' <<<"$(ldd "$program")"; then
     fail "$(basename "$program") depends on LLVM, ANTLR or saltpan at run time:"
     ldd "$program" | sed 's/^/    /' >&2
   fi

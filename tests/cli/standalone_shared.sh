@@ -17,13 +17,16 @@ cmp -s "$TMP/lib/saltpan_model.h" "$SRC/standalone/saltpan_model.h" || fail "sal
 others=$(nm -D --defined-only "$TMP/lib/libsquid.so" | awk '{print $3}' | grep -v '^saltpan_model_' || true)
 [ -z "$others" ] || fail "the library exports more than saltpan_model_*: $(echo "$others" | head -5 | tr '\n' ' ')"
 nm -D --defined-only "$TMP/lib/libsquid.so" | grep -q ' T saltpan_model_create$' || fail "saltpan_model_create is not exported"
-if ldd "$TMP/lib/libsquid.so" | grep -Eiq 'llvm|antlr|saltpan'; then
+# ldd's output is read whole: `grep -q` stopping early would kill ldd, and pipefail would read
+# that as "not found".
+needed=$(ldd "$TMP/lib/libsquid.so")
+if grep -Eiq 'llvm|antlr|saltpan' <<<"$needed"; then
   fail "the library depends on LLVM, ANTLR or saltpan at run time"
 fi
 
 # A library from a sanitizer build of saltpan needs the sanitizer runtime in the program too.
 sanitize=()
-if ldd "$TMP/lib/libsquid.so" | grep -q libasan; then
+if grep -q libasan <<<"$needed"; then
   sanitize=(-fsanitize=address,undefined)
 fi
 for lib in squid tide; do
