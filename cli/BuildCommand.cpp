@@ -182,7 +182,7 @@ struct ScratchDirectory {
 
 struct Kernels {
   std::vector<KernelPlan> plans; // they own the kernels
-  std::vector<const ir::Kernel *> all;
+  std::vector<EmittedKernel> all;
 };
 
 // Every kernel a run (Run.cpp) and the C interface can ask for under any --duration and
@@ -195,8 +195,9 @@ void collectKernels(const std::vector<const ir::Model *> &models, Kernels &kerne
   for (bool plain : {true, false})
     for (const KernelPlan &plan : kernels.plans) // `plans` no longer grows: pointers stay valid
       for (const KernelPlan::Entry &e : plan.entries())
-        if ((plan.plain && e.kernel == &*plan.plain) == plain && seen.insert(kernelFingerprint(*e.kernel)).second)
-          kernels.all.push_back(e.kernel);
+        if ((plan.plain && e.kernel == &*plan.plain) == plain &&
+            seen.insert(kernelFingerprint(*e.kernel, e.lanes)).second)
+          kernels.all.push_back({e.kernel, e.lanes});
 }
 
 // The root sweeps whose measures all come from protocol runs, planned as `saltpan sweep` plans

@@ -46,8 +46,8 @@ llvm::GlobalVariable *hiddenConstant(llvm::Module &module, llvm::Constant *value
 
 } // namespace
 
-bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::string &bundleText,
-                     const std::string &path, std::string &error) {
+bool emitModelObject(const std::vector<EmittedKernel> &kernels, const std::string &bundleText, const std::string &path,
+                     std::string &error) {
   std::unique_ptr<llvm::TargetMachine> machine = hostMachine(error);
   if (!machine)
     return false;
@@ -61,14 +61,14 @@ bool emitModelObject(const std::vector<const ir::Kernel *> &kernels, const std::
     std::string name = "saltpan_model_kernel_" + std::to_string(i);
     // Each kernel is prepared alone, as the JIT prepares it, before it joins the others.
     std::unique_ptr<llvm::Module> kernelModule =
-        prepareKernelModule(*kernels[i], ctx, name, 1, *machine, nullptr, error);
+        prepareKernelModule(*kernels[i].kernel, ctx, name, kernels[i].lanes, *machine, nullptr, error);
     if (!kernelModule)
       return false;
     if (llvm::Linker::linkModules(*module, std::move(kernelModule))) {
       error = "cannot link kernel " + std::to_string(i) + " into the object";
       return false;
     }
-    table.emplace_back(kernelFingerprint(*kernels[i]), name);
+    table.emplace_back(kernelFingerprint(*kernels[i].kernel, kernels[i].lanes), name);
   }
 
   llvm::Type *i64 = llvm::Type::getInt64Ty(ctx);

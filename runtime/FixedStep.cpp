@@ -115,30 +115,35 @@ FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelR
   for (auto *v : {&k1_, &k2_, &k3_, &k4_, &tmp_})
     v->assign(n, 0);
   scratch_.assign(model.kernel.outputs.size(), 0);
-  if (model.protocol.method == ir::Method::BackwardEuler || model.protocol.method == ir::Method::CrankNicolson) {
+  bool implicit =
+      model.protocol.method == ir::Method::BackwardEuler || model.protocol.method == ir::Method::CrankNicolson;
+  // An implicit step reads gates' rates at its start and currents after the gates have moved.
+  startPart_ = implicit ? KernelPart::Rates : KernelPart::Dynamics;
+  if (implicit) {
     tree_ = std::make_shared<const Tree>(model);
     for (auto *v : {&diag_, &rhs_, &up_, &low_})
       v->assign(model.compartments.size(), 0);
   }
 }
 
-void FixedStepper::evaluate(const double *y, double t, double *out) {
-  kernel_(y, p_, t, out);
+void FixedStepper::evaluate(const double *y, double t, double *out, KernelPart part) {
+  kernel_(y, p_, t, out, part);
   if (stats_)
     ++stats_->kernelCalls;
 }
 
-void FixedStepper::settle(double *y, double *out, double t) {
-  evaluate(y, t, out);
+void FixedStepper::settle(double *y, double *out, double t, bool all) {
+  KernelPart part = all ? KernelPart::All : startPart_;
+  evaluate(y, t, out, part);
   if (holdClamps(m_, y, out))
-    evaluate(y, t, out);
+    evaluate(y, t, out, part);
 }
 
 void FixedStepper::rk4Step(double *y, const double *out, double t, double h, double end) {
   DoubleMath math;
   auto slope = [&](int stage, const double *states, double time, double *dydt) {
     if (stage > 0) // the first stage is at the step's start, where `out` holds the outputs
-      evaluate(states, time, scratch_.data());
+      evaluate(states, time, scratch_.data(), KernelPart::Dynamics);
     stateDerivative(m_, p_, states, stage > 0 ? scratch_.data() : out, dydt);
   };
   rungeKutta4Step(math, k1_.size(), y, h, t, t + 0.5 * h, end, slope, k1_.data(), k2_.data(), k3_.data(), k4_.data(),
@@ -159,7 +164,7 @@ bool FixedStepper::gatesAndPools(double *y, const double *out, double t, double 
   auto clamped = [&](const ir::Compartment &c) { return c.clampedOutput >= 0 && out[c.clampedOutput] != 0; };
   if (std::all_of(m_.compartments.begin(), m_.compartments.end(), clamped))
     return false;                            // every potential is held by its clamp; set again at the next step's start
-  evaluate(y, t + 0.5 * h, scratch_.data()); // new gates and pools, old potentials
+  evaluate(y, t + 0.5 * h, scratch_.data(), KernelPart::Currents); // new gates and pools, old potentials
   return true;
 }
 
@@ -247,7 +252,7 @@ void FixedStepper::step(const StepGrid &grid, long i, double *y, double *out, do
   for (size_t k = 0; k <= cuts.size(); ++k) {
     double to = k < cuts.size() ? cuts[k] : last;
     if (k > 0)
-      settle(y, out, from); // just after the edge: the new stimulus, the new clamp command
+      settle(y, out, from, false); // just after the edge: the new stimulus, the new clamp command
     // A stage at the piece's end sees what held before the edge there.
     double end = grid.isEvent(to) ? std::nextafter(to, from) : to;
     piece(y, out, from, to - from, end, injected);
@@ -269,7 +274,7 @@ void FixedRun::begin(long i, double *y, bool outputs) {
   if (fusedStep_)
     callFused(y, outputs);
   else
-    stepper_.settle(y, out_.data(), grid_.time(i));
+    stepper_.settle(y, out_.data(), grid_.time(i), outputs);
 }
 
 void FixedRun::end(double *y) {

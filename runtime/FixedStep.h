@@ -65,15 +65,16 @@ void stateDerivative(const ir::Model &model, const double *params, const double 
 class FixedStepper {
 public:
   FixedStepper(const ir::Model &model, const double *params, KernelRef kernel, SimulationStats *stats = nullptr);
-  /// Sets clamped potentials in y to their command at t, then `out` to the outputs at (y, t).
-  void settle(double *y, double *out, double t);
+  /// Sets clamped potentials in y to their command at t, then `out` to the outputs at (y, t):
+  /// all of them, or (`all` false) those a step of the method reads at its start.
+  void settle(double *y, double *out, double t, bool all = true);
   /// Advances y over step i of `grid` with the protocol's method, split at the events inside
   /// it. On entry `out` holds settle()'s outputs at (y, grid.time(i)); on return it is spent.
   /// `injected` (one per compartment, or null) gains the injected charge of the step.
   void step(const StepGrid &grid, long i, double *y, double *out, double *injected);
 
 private:
-  void evaluate(const double *y, double t, double *out);
+  void evaluate(const double *y, double t, double *out, KernelPart part = KernelPart::All);
   // One step of length h from t; `end` is the time for stages at the piece's end.
   void rk4Step(double *y, const double *out, double t, double h, double end);
   void exponentialEulerStep(double *y, const double *out, double t, double h);
@@ -90,6 +91,7 @@ private:
   std::vector<double> k1_, k2_, k3_, k4_, tmp_, scratch_;
   std::shared_ptr<const Tree> tree_; // implicit methods: the junctions' elimination order
   std::vector<double> diag_, rhs_, up_, low_;
+  KernelPart startPart_; // what a step reads at its start
 };
 
 /// The fixed-step run of one parameter set, step by step: a step the grid calls smooth is one

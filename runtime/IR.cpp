@@ -41,13 +41,21 @@ const char *methodName(Method m) {
   return "?";
 }
 
+size_t Kernel::KeyHash::operator()(const Key &k) const {
+  auto mix = [](uint64_t x) { // splitmix64's finaliser
+    x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9ull;
+    x = (x ^ (x >> 27)) * 0x94D049BB133111EBull;
+    return x ^ (x >> 31);
+  };
+  uint64_t h = mix(k.constantBits);
+  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(k.op)) << 32 | static_cast<uint32_t>(k.index)));
+  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(k.a)) << 32 | static_cast<uint32_t>(k.b)));
+  return static_cast<size_t>(mix(h ^ static_cast<uint32_t>(k.c)));
+}
+
 NodeId Kernel::add(Node n) {
-  // The key holds everything but the location: equal nodes compute equal values.
-  char key[96];
-  uint64_t bits;
-  std::memcpy(&bits, &n.constant, sizeof bits);
-  std::snprintf(key, sizeof key, "%d:%llx:%d:%d:%d:%d", static_cast<int>(n.op), static_cast<unsigned long long>(bits),
-                n.index, n.a, n.b, n.c);
+  Key key{0, static_cast<int32_t>(n.op), n.index, n.a, n.b, n.c};
+  std::memcpy(&key.constantBits, &n.constant, sizeof key.constantBits);
   auto [it, inserted] = seen_.emplace(key, static_cast<NodeId>(nodes_.size()));
   if (inserted)
     nodes_.push_back(n);

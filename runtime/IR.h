@@ -54,9 +54,18 @@ public:
   }
 
 private:
+  // Everything of a node but its location: equal keys compute equal values.
+  struct Key {
+    uint64_t constantBits;
+    int32_t op, index, a, b, c;
+    bool operator==(const Key &) const = default;
+  };
+  struct KeyHash {
+    size_t operator()(const Key &k) const;
+  };
   NodeId add(Node n);
   std::vector<Node> nodes_;
-  std::unordered_map<std::string, NodeId> seen_;
+  std::unordered_map<Key, NodeId, KeyHash> seen_;
 };
 
 /// A gate's state variable: x' = (inf - x) / tau.

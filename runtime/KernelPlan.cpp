@@ -5,12 +5,33 @@
 #include "Fuse.h"
 #include "Interpret.h"
 
+#include <algorithm>
+
 namespace saltpan {
 
 namespace {
 
 bool fixedStep(const ir::Model &model) {
   return model.protocol.method == ir::Method::ExponentialEuler || model.protocol.method == ir::Method::RungeKutta4;
+}
+
+// A fused step is one straight-line function over every compartment; past this many joined
+// ones LLVM's optimiser takes far longer than the run (its cost grows faster than linearly).
+constexpr size_t largestFusedTree = 64;
+
+bool implicitMethod(ir::Method m) { return m == ir::Method::BackwardEuler || m == ir::Method::CrankNicolson; }
+
+// A tree's kernel by kind of piece: the parts its method's stepper asks for (FixedStep.cpp).
+void splitTree(const ir::Model &model, KernelPlan &plan) {
+  if (!plan.plain || model.junctions.empty())
+    return;
+  std::vector<KernelPart> parts = implicitMethod(model.protocol.method)
+                                      ? std::vector<KernelPart>{KernelPart::Rates, KernelPart::Currents}
+                                      : std::vector<KernelPart>{KernelPart::Dynamics};
+  if (std::optional<PieceSplit> split = splitByPiece(model, parts)) {
+    plan.pieces = std::make_shared<const PieceSplit>(std::move(*split));
+    plan.pieceLanes = hostVectorLanes();
+  }
 }
 
 KernelPlan scalarPlan(const ir::Model &model, KernelUse use) {
@@ -29,6 +50,7 @@ KernelPlan scalarPlan(const ir::Model &model, KernelUse use) {
   // a built model may be run for longer, over edges its protocol's duration does not reach.
   if (!plan.fused || use == KernelUse::Built || StepGrid(model).meetsEvents())
     plan.plain = model.kernel;
+  splitTree(model, plan);
   return plan;
 }
 
@@ -42,13 +64,22 @@ std::vector<KernelPlan::Entry> KernelPlan::entries() const {
     out.push_back({step + " (next state, then every output)", &*fused, lanes});
   if (stateOnly)
     out.push_back({step + ", next state only (steps between recordings)", &*stateOnly, lanes});
-  if (plain)
+  if (plain && !pieces)
     out.push_back({fused ? "model kernel (steps that meet a stimulus edge)" : "model kernel", &*plain, 1});
+  if (pieces) {
+    for (KernelPart part : allParts)
+      for (const PieceClass &cls : pieces->classes(part))
+        out.push_back({std::string("piece kernel, ") + kernelPartName(part) + ", of " + cls.firstName +
+                           (cls.members.size() > 1 ? " and " + std::to_string(cls.members.size() - 1) + " more" : ""),
+                       &cls.kernel, pieceLanes});
+    if (pieces->rest)
+      out.push_back({"outputs no compartment owns", &*pieces->rest, 1});
+  }
   return out;
 }
 
 KernelPlan planKernels(const ir::Model &model, KernelUse use, int lanes) {
-  if (use != KernelUse::Lanes || lanes < 2 || !fixedStep(model))
+  if (use != KernelUse::Lanes || lanes < 2 || !fixedStep(model) || model.compartments.size() > largestFusedTree)
     return scalarPlan(model, use == KernelUse::Lanes ? KernelUse::Run : use);
   // Lanes step with the fused exponential Euler or RK4 step; a model neither can fuse (a clamp)
   // runs point by point.
@@ -83,23 +114,54 @@ PlannedKernels::PlannedKernels(KernelPlan plan, const KernelCompiler &compile)
     };
     build(plan_->fused, plan_->lanes, fused_);
     build(plan_->stateOnly, plan_->lanes, stateOnly_);
-    build(plan_->plain, 1, plain_);
+    if (plan_->pieces)
+      compilePieces(compile);
+    else
+      build(plan_->plain, 1, plain_);
   }
   if (!native_)
     interpret();
 }
 
+void PlannedKernels::compilePieces(const KernelCompiler &compile) {
+  const PieceSplit &split = *plan_->pieces;
+  pieceKernels_.assign(kernelPartCount, {});
+  for (int part = 0; part < kernelPartCount && native_; ++part)
+    for (const PieceClass &cls : split.parts[part]) {
+      KernelFn fn = compile(cls.kernel, plan_->pieceLanes, compileError_);
+      native_ = fn != nullptr;
+      if (!native_)
+        return;
+      pieceKernels_[part].push_back({KernelRef{fn, nullptr, nullptr}, plan_->pieceLanes});
+    }
+  if (split.rest) {
+    pieceRest_.native = compile(*split.rest, 1, compileError_);
+    native_ = pieceRest_.native != nullptr;
+  }
+  if (native_)
+    startPieces();
+}
+
+void PlannedKernels::startPieces() {
+  pieceRunner_ = std::make_unique<PieceRunner>(plan_->pieces, pieceKernels_, pieceRest_);
+  plain_ = KernelRef{nullptr, nullptr, pieceRunner_.get()};
+}
+
 PlannedKernels::PlannedKernels(const PlannedKernels &other)
     : plan_(other.plan_), native_(other.native_), compileError_(other.compileError_), plain_(other.plain_),
-      fused_(other.fused_), stateOnly_(other.stateOnly_) {
+      fused_(other.fused_), stateOnly_(other.stateOnly_), pieceKernels_(other.pieceKernels_),
+      pieceRest_(other.pieceRest_) {
   if (!native_)
     interpret();
+  else if (plan_->pieces)
+    startPieces();
 }
 
 PlannedKernels::~PlannedKernels() = default;
 
 void PlannedKernels::interpret() {
   interpreters_.clear();
+  pieceRunner_.reset();
   auto make = [&](const std::optional<ir::Kernel> &k, KernelRef &into) {
     into = {};
     if (k && plan_->lanes == 1) {

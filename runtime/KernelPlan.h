@@ -4,6 +4,7 @@
 #pragma once
 #include "IR.h"
 #include "LaneSimulate.h"
+#include "PieceSplit.h"
 #include "Simulate.h"
 
 #include <functional>
@@ -30,13 +31,18 @@ struct KernelPlan {
   std::optional<ir::Kernel> fused;                  // next state, then every output
   std::optional<ir::Kernel> stateOnly;              // next state only: steps that record nothing
   std::optional<ir::Kernel> plain;                  // the model's kernel (a copy: the plan owns its kernels)
+  // A tree's native code: the model's kernel computed by kind of piece, `pieceLanes` pieces at
+  // once (the interpreter runs `plain` itself).
+  std::shared_ptr<const PieceSplit> pieces;
+  int pieceLanes = 1;
 
   struct Entry {
     std::string label; // what the kernel is for, as --emit prints it
     const ir::Kernel *kernel;
     int lanes;
   };
-  /// Every kernel of the plan in the order it is compiled: fused, state-only, plain.
+  /// Every kernel of the plan in the order it is compiled: fused, state-only, plain (or, for a
+  /// split tree, each part's kernel of each kind of piece, then the rest).
   std::vector<Entry> entries() const;
 };
 
@@ -66,12 +72,17 @@ public:
 
 private:
   void interpret();
+  void compilePieces(const KernelCompiler &compile);
+  void startPieces(); // this copy's runner over the shared native piece kernels
 
   std::shared_ptr<const KernelPlan> plan_;
   bool native_ = false;
   std::string compileError_;
   KernelRef plain_, fused_, stateOnly_;
   std::vector<std::unique_ptr<Interpreter>> interpreters_;
+  std::vector<std::vector<PieceRunner::ClassKernel>> pieceKernels_; // native code, shared by copies
+  KernelRef pieceRest_;
+  std::unique_ptr<PieceRunner> pieceRunner_;
 };
 
 } // namespace saltpan

@@ -378,7 +378,7 @@ bool readModelBundle(const std::string &text, ModelBundle &bundle, std::string &
   }
 }
 
-uint64_t kernelFingerprint(const ir::Kernel &kernel) {
+uint64_t kernelFingerprint(const ir::Kernel &kernel, int lanes) {
   uint64_t h = 14695981039346656037ull;
   auto mix = [&h](const void *data, size_t size) {
     const auto *bytes = static_cast<const unsigned char *>(data);
@@ -395,6 +395,8 @@ uint64_t kernelFingerprint(const ir::Kernel &kernel) {
   uint64_t count = kernel.outputs.size();
   mix(&count, sizeof count);
   mix(kernel.outputs.data(), kernel.outputs.size() * sizeof(ir::NodeId));
+  if (lanes > 1) // scalar kernels keep the digest they have always had
+    mix(&lanes, sizeof lanes);
   return h;
 }
 

@@ -47,8 +47,9 @@ std::string writeModelBundle(const ModelBundle &bundle);
 /// Reads a document written by writeModelBundle; false with `error` set if it is malformed.
 bool readModelBundle(const std::string &text, ModelBundle &bundle, std::string &error);
 
-/// A 64-bit FNV-1a digest of a kernel's nodes and outputs (not its source locations): names
-/// the native code compiled for it, so a runtime can find the code of a kernel it rebuilt.
-uint64_t kernelFingerprint(const ir::Kernel &kernel);
+/// A 64-bit FNV-1a digest of a kernel's nodes and outputs (not its source locations) and of its
+/// SIMD lanes when above 1: names the native code compiled for it, so a runtime can find the
+/// code of a kernel it rebuilt.
+uint64_t kernelFingerprint(const ir::Kernel &kernel, int lanes = 1);
 
 } // namespace saltpan

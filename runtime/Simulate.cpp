@@ -3,15 +3,18 @@
 
 #include "FixedStep.h"
 #include "Interpret.h"
+#include "PieceSplit.h"
 
 #include <algorithm>
 #include <cmath>
 
 namespace saltpan {
 
-void KernelRef::operator()(const double *y, const double *p, double t, double *out) const {
+void KernelRef::operator()(const double *y, const double *p, double t, double *out, KernelPart part) const {
   if (native)
     native(y, p, t, out);
+  else if (pieces)
+    pieces->run(y, p, t, out, part);
   else
     interpreter->run(y, p, t, out);
 }

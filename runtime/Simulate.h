@@ -6,19 +6,32 @@
 #include "IR.h"
 
 #include <cmath>
+#include <cstdint>
 #include <string>
 #include <vector>
 
 namespace saltpan {
 class Interpreter;
+class PieceRunner;
 
 using KernelFn = void (*)(const double *y, const double *p, double t, double *out);
 
-/// Either a compiled kernel or the interpreter; the branch between them is predictable.
+/// Which outputs a caller needs. The model's own kernel always computes all of them.
+enum class KernelPart : uint8_t {
+  All,      // every output: recording steps
+  Dynamics, // what dy/dt needs: gates' rates, pools, membrane currents, clamps, stimulus
+  Rates,    // an implicit step's start: gates' rates, pools, clamps, stimulus
+  Currents, // an implicit step's middle: the linearised membrane currents alone
+};
+inline constexpr int kernelPartCount = 4;
+
+/// A compiled kernel, the interpreter, or a tree's kernels by kind of piece (PieceSplit.h); the
+/// branch between them is predictable. Only a split kernel computes less than every output.
 struct KernelRef {
   KernelFn native = nullptr;
   Interpreter *interpreter = nullptr;
-  void operator()(const double *y, const double *p, double t, double *out) const;
+  PieceRunner *pieces = nullptr;
+  void operator()(const double *y, const double *p, double t, double *out, KernelPart part = KernelPart::All) const;
 };
 
 /// Recorded samples: one row per recording time, one column per recorded quantity, in the

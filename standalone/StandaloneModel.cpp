@@ -18,15 +18,12 @@ bool loadEmbeddedBundle(ModelBundle &bundle, std::string &error) {
 }
 
 KernelFn embeddedKernel(const ir::Kernel &kernel, int lanes, std::string &error) {
-  if (lanes != 1) {
-    error = "a built model holds scalar kernels only";
-    return nullptr;
-  }
-  uint64_t wanted = kernelFingerprint(kernel);
+  uint64_t wanted = kernelFingerprint(kernel, lanes);
   for (uint64_t i = 0; i < saltpan_embedded_kernel_count; ++i)
     if (saltpan_embedded_kernels[i].fingerprint == wanted)
       return saltpan_embedded_kernels[i].function;
-  error = "no native code was compiled for this kernel (" + std::to_string(kernel.nodes().size()) + " nodes)";
+  error = "no native code was compiled for this kernel (" + std::to_string(kernel.nodes().size()) + " nodes, " +
+          std::to_string(lanes) + " lane(s))";
   return nullptr;
 }
 
