@@ -104,10 +104,6 @@ std::vector<std::complex<double>> hqr(Matrix a) {
     for (int j = std::max(i - 1, 0); j < a.n; ++j)
       anorm += std::fabs(a(i, j));
   int nn = a.n - 1;
-  // The iterations all eigenvalues may take together (as LAPACK's hqr budgets them): clusters of
-  // nearly equal eigenvalues, as in a long cable's pieces, need more than the classic 60 each.
-  const long budget = 30L * std::max(10, a.n);
-  long total = 0;
   double t = 0;
   while (nn >= 0) {
     int its = 0, l;
@@ -140,9 +136,9 @@ std::vector<std::complex<double>> hqr(Matrix a) {
           }
           nn -= 2;
         } else {
-          if (++total > budget)
+          if (its == 60)
             throw std::runtime_error("the QR iteration for the eigenvalues did not converge");
-          if (its == 10 || its == 20 || its == 40 || (its > 40 && its % 20 == 0)) { // exceptional shifts
+          if (its == 10 || its == 20 || its == 40) { // exceptional shift
             t += x;
             for (int i = 0; i <= nn; ++i)
               a(i, i) -= x;

@@ -61,8 +61,8 @@ struct CompartmentRest {
 /// iteration does not converge.
 /// Why findSteadyStates refuses a model with junctions (cables): it analyses each compartment
 /// alone; findTreeSteadyStates solves joined ones together (only `saltpan rest` calls it).
-inline constexpr const char *notForJoinedCompartments = "the steady states of joined compartments (cables) are found "
-                                                        "only by saltpan rest, which solves each tree as one system";
+inline constexpr const char *notForJoinedCompartments =
+    "no steady state: joined compartments (cables) are solved only by saltpan rest (each tree as one system)";
 
 std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                               const Options &options = {});
