@@ -2,8 +2,8 @@
 # rest_tree.sh - `saltpan rest` on joined compartments: the branched passive cell and an HH soma
 # with an HH axon and a passive dendrite (text pinned in tests/golden/cables/, refreshed with
 # SALTPAN_UPDATE_GOLDEN=1; JSON checked for its keys and against the text), a tree too big for
-# the eigenvalue analysis, a model with a tree and a lone patch, and the rest(...) measure, which
-# does not analyse trees.
+# the eigenvalue analysis, a model with a tree and a lone patch, searches stopped by a fold, and
+# the rest(...) measure, which does not analyse trees.
 source "$(dirname "$0")/lib/common.bash"
 
 GOLDEN=$SRC/tests/golden/cables
@@ -87,6 +87,31 @@ expect_grep forest out '^    compartment patch: V = -50\.000000 mV, input resist
 # A range without a steady state: none found, none claimed.
 expect_rc none 0 rest --from -60mV --to -40mV "$GOLDEN/branched_cell.saltpan"
 expect_grep none out '^tree of soma: 61 compartments \(1 lumped, dend 50 pieces, branch 10 pieces\), 61 states: 0 steady states$'
+# Invented: a bistable soma whose low state and saddle merge when the dendrite is joined: the
+# two searches that meet the fold are listed as not followed, in text and JSON.
+cat >"$TMP/fold.saltpan" <<'SPEC'
+model Fold "invented: a bistable soma on a passive dendrite"
+use std.math
+temperature 20 degC
+compartment cell { sphere diameter 20 um capacitance 1 uF/cm2 initial V = -70 mV
+  membrane { InventedLeak 0.3 mS/cm2 InventedPersistentInward 3 mS/cm2 } }
+channel InventedLeak { reversal -70 mV }
+channel DendLeak { reversal -70 mV }
+channel InventedPersistentInward { reversal 50 mV gate p { steady = logistic((V + 45 mV) / 4 mV); tau = 1 ms } }
+cable dend { grows from cell length 220 um diameter 1 um axial resistivity 100 ohm*cm pieces 40 membrane { DendLeak 0.3 mS/cm2 } }
+SPEC
+expect_rc fold 0 rest "$TMP/fold.saltpan"
+expect_grep fold out '^tree of cell: 41 compartments \(1 lumped, dend 40 pieces\), 42 states: 1 steady state$'
+[ "$(grep -c '^  not followed: the isopotential steady state at -6[0-9.]* mV: the continuation stops at a fold' "$TMP/fold.out")" = 2 ] ||
+  fail "fold: the two searches that meet the fold are not both listed"
+expect_rc foldjson 0 rest --format json "$TMP/fold.saltpan"
+"$PY" - "$TMP/foldjson.out" <<'PY' || fail "json: the searches that stopped are not listed"
+import json, sys
+(tree,) = json.load(open(sys.argv[1]))["trees"]
+assert len(tree["steady_states"]) == 1 and len(tree["not_followed"]) == 2
+assert all("fold" in l["why"] and l["isopotential_V_mV"] < -60 for l in tree["not_followed"])
+PY
+
 # The rest(...) measure does not analyse trees yet: it says so rather than give a lone piece's V.
 (cat "$GOLDEN/branched_cell.saltpan"; echo 'expect rest(soma) == -65 mV within 1e-6 mV') >"$TMP/expect.saltpan"
 expect_rc expect 1 test "$TMP/expect.saltpan"

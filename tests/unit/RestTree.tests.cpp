@@ -265,3 +265,43 @@ TEST_CASE("a tree above the eigenvalue limit is solved but its stability is not 
   CHECK(s.eigenvalues.empty());
   CHECK(s.pieces.back().v == Approx(-0.065).margin(1e-12));
 }
+
+TEST_CASE("a continuation that meets a fold is reported as not followed", "[rest][cables]") {
+  // Invented: the bistable membrane, with a stronger inward current, on a soma with a passive
+  // dendrite. Made isopotential the cell has three steady states; joined through the real axial
+  // resistance of a 220 um dendrite only the depolarised one is left: the low state and the
+  // saddle merge on the way (a fold), so both searches stop. With 260 um all three survive.
+  auto spec = [](int length) {
+    return "model Fold \"invented: a bistable soma on a passive dendrite\"\n"
+           "use std.math\ntemperature 20 degC\n"
+           "compartment cell {\n  sphere diameter 20 um\n  capacitance 1 uF/cm2\n  initial V = -70 mV\n"
+           "  membrane {\n    InventedLeak 0.3 mS/cm2\n    InventedPersistentInward 3 mS/cm2\n  }\n}\n"
+           "channel InventedLeak { reversal -70 mV }\n"
+           "channel DendLeak { reversal -70 mV }\n"
+           "channel InventedPersistentInward {\n  reversal 50 mV\n"
+           "  gate p { steady = logistic((V + 45 mV) / 4 mV); tau = 1 ms }\n}\n"
+           "cable dend { grows from cell length " +
+           std::to_string(length) +
+           " um diameter 1 um axial resistivity 100 ohm*cm pieces 40 membrane { DendLeak 0.3 mS/cm2 } }\n";
+  };
+  auto shortCell = testing::compile(spec(220));
+  auto folded = rest::findTreeSteadyStates(restModel(*shortCell), &shortCell->model);
+  REQUIRE(folded.size() == 1);
+  REQUIRE(folded[0].steadyStates.size() == 1);
+  CHECK(folded[0].steadyStates[0].pieces[0].v > 0.030);
+  CHECK(folded[0].steadyStates[0].stable);
+  REQUIRE(folded[0].lost.size() == 2);
+  for (const rest::LostState &l : folded[0].lost) {
+    CHECK(l.isopotentialV < -0.060);
+    CHECK(l.why.find("fold") != std::string::npos);
+  }
+
+  auto longerCell = testing::compile(spec(260));
+  auto all = rest::findTreeSteadyStates(restModel(*longerCell), &longerCell->model);
+  REQUIRE(all.size() == 1);
+  CHECK(all[0].lost.empty());
+  REQUIRE(all[0].steadyStates.size() == 3);
+  CHECK(all[0].steadyStates[0].stable);
+  CHECK_FALSE(all[0].steadyStates[1].stable);
+  CHECK(all[0].steadyStates[2].stable);
+}
