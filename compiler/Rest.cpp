@@ -1,5 +1,6 @@
 // Rest.cpp - steady states and their stability; see Rest.h.
 #include "Rest.h"
+#include "Rest_Internal.h"
 
 #include "Analyze.h"
 #include "Derivative.h"
@@ -93,8 +94,6 @@ void hessenberg(Matrix a) {
     for (int j = 0; j < i - 1; ++j)
       a(i, j) = 0; // the multipliers left below the subdiagonal
 }
-
-double withSign(double a, double b) { return b >= 0 ? std::fabs(a) : -std::fabs(a); }
 
 // Eigenvalues of an upper Hessenberg matrix by the Francis double-shift QR iteration.
 std::vector<std::complex<double>> hqr(Matrix a) {
@@ -295,71 +294,6 @@ private:
   std::vector<int> states_;
 };
 
-// Brent's method on [a, b] with f(a), f(b) of opposite signs.
-template <typename F> double brent(F &&f, double a, double b, double fa, double fb, double tol) {
-  double c = a, fc = fa, d = b - a, e = d;
-  for (int iter = 0; iter < 200; ++iter) {
-    if ((fb > 0) == (fc > 0)) {
-      c = a;
-      fc = fa;
-      d = e = b - a;
-    }
-    if (std::fabs(fc) < std::fabs(fb)) {
-      a = b;
-      b = c;
-      c = a;
-      fa = fb;
-      fb = fc;
-      fc = fa;
-    }
-    double tol1 = 2 * std::numeric_limits<double>::epsilon() * std::fabs(b) + 0.5 * tol;
-    double xm = 0.5 * (c - b);
-    if (std::fabs(xm) <= tol1 || fb == 0)
-      return b;
-    if (std::fabs(e) >= tol1 && std::fabs(fa) > std::fabs(fb)) {
-      double s = fb / fa, p, q;
-      if (a == c) {
-        p = 2 * xm * s;
-        q = 1 - s;
-      } else {
-        double qq = fa / fc, r = fb / fc;
-        p = s * (2 * xm * qq * (qq - r) - (b - a) * (r - 1));
-        q = (qq - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0)
-        q = -q;
-      p = std::fabs(p);
-      if (2 * p < std::min(3 * xm * q - std::fabs(tol1 * q), std::fabs(e * q))) {
-        e = d;
-        d = p / q;
-      } else {
-        d = xm;
-        e = d;
-      }
-    } else {
-      d = xm;
-      e = d;
-    }
-    a = b;
-    fa = fb;
-    b += std::fabs(d) > tol1 ? d : withSign(tol1, xm);
-    fb = f(b);
-  }
-  return b;
-}
-
-bool passivePermeability(const CompartmentValues &cv) {
-  bool any = false;
-  for (const Placement &p : cv.placements) {
-    if (!p.channel)
-      continue;
-    if (!p.channel->gates.empty() || p.densityKind != DensityKind::Permeability)
-      return false;
-    any = true;
-  }
-  return any;
-}
-
 } // namespace
 
 std::vector<std::complex<double>> eigenvalues(std::vector<double> a, int n) {
@@ -397,23 +331,7 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Anal
     CompartmentSystem sys(model, comp);
     auto f = [&](double v) { return sys.steadyCurrent(v); };
 
-    // Scan, bracket, refine.
-    std::vector<double> roots;
-    long steps = std::max(1L, std::lround((o.to - o.from) / o.step));
-    double h = (o.to - o.from) / static_cast<double>(steps);
-    double va = o.from, fa = f(va);
-    if (fa == 0)
-      roots.push_back(va);
-    for (long i = 1; i <= steps; ++i) {
-      double vb = i == steps ? o.to : o.from + static_cast<double>(i) * h, fb = f(vb);
-      if (fb == 0) {
-        roots.push_back(vb);
-      } else if (std::isfinite(fa) && std::isfinite(fb) && fa != 0 && (fa > 0) != (fb > 0)) {
-        roots.push_back(brent(f, va, vb, fa, fb, o.tolerance));
-      }
-      va = vb;
-      fa = fb;
-    }
+    std::vector<double> roots = scanRoots(f, o);
 
     for (double v : roots) {
       SteadyState s;
@@ -443,15 +361,9 @@ std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const Anal
       std::string prefix = comp.name + ".";
       for (const ir::Gate *g : sys.gates())
         s.gates.push_back({g->name.substr(prefix.size()), sys.state()[g->state]});
-      const std::string suffix = ".current";
-      for (const ir::Probe &r : model.probes) {
-        if (!r.entryCurrent || r.output < 0 || r.name.rfind(prefix, 0) != 0 ||
-            r.name.size() <= prefix.size() + suffix.size() ||
-            r.name.compare(r.name.size() - suffix.size(), suffix.size(), suffix) != 0)
-          continue;
-        std::string entry = r.name.substr(prefix.size(), r.name.size() - prefix.size() - suffix.size());
-        s.currents.push_back({entry, sys.outputs()[r.output] * r.scale});
-      }
+      for (const ir::Probe &r : model.probes)
+        if (auto entry = entryOf(r, prefix))
+          s.currents.push_back({*entry, sys.outputs()[r.output] * r.scale});
       s.totalCurrent = total * 100; // A/m2 -> uA/cm2
       // The slope of the steady-state I-V curve gives the input resistance for small
       // steady injected currents (common practice: R_in = dV/dI at rest).

@@ -1,12 +1,13 @@
-// Rest.h - steady states of each compartment (`saltpan rest`): the potentials where, with
-// every gate at its steady value, the total membrane current is zero, and whether each is
-// stable. Analysis only; RestCommand.cpp prints the result.
+// Rest.h - steady states of each compartment, or of each tree of joined compartments
+// (`saltpan rest`): the potentials where, with every gate at its steady value, the membrane
+// currents balance, and whether each is stable. Analysis only; RestCommand.cpp prints the result.
 //
-// Compartments are not coupled, so each is analysed on its own: its V and its gates form
+// Compartments joined to nothing are analysed on their own (Rest.cpp): V and the gates form
 // the ODE system dV/dt = -I/C, dx/dt = (inf - x)/tau. Roots of I(V) are bracketed on a
 // fine grid and refined by Brent's method; stability comes from the eigenvalues of the
-// system's Jacobian (central differences) at each root. Dynamic concentrations (ir::Pool)
-// and other compartments' states are held at their initial values.
+// system's Jacobian (central differences) at each root. Trees (RestTree.cpp) are described
+// below. Dynamic concentrations (ir::Pool) and other compartments' states are held at their
+// initial values.
 #pragma once
 #include "IR.h"
 
@@ -58,12 +59,77 @@ struct CompartmentRest {
 /// so with no injected current) in [options.from, options.to]. `analysis` (may be null)
 /// supplies the GHK resting potentials. Throws std::runtime_error when the eigenvalue
 /// iteration does not converge.
-/// Why findSteadyStates refuses a model with junctions (cables): it analyses each compartment alone.
+/// Why findSteadyStates refuses a model with junctions (cables): it analyses each compartment
+/// alone; findTreeSteadyStates solves joined ones together (only `saltpan rest` calls it).
 inline constexpr const char *notForJoinedCompartments =
-    "the steady state of joined compartments (cables) is not solved yet: saltpan rest analyses each compartment alone";
+    "no steady state: joined compartments (cables) are solved only by saltpan rest (each tree as one system)";
 
 std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                               const Options &options = {});
+
+// --- joined compartments (cables): each tree solved as one system (RestTree.cpp) ---
+//
+// A tree's steady states are where, with every gate at its steady value at its own piece's V,
+// each piece's membrane current balances the axial currents to its neighbours. The search: the
+// tree's total membrane current at one uniform V is scanned as for one compartment (the steady
+// states of the tree made isopotential), and each root is continued to the tree itself by
+// Newton's method while the membrane currents are scaled up from 1e-3 of their value to all of
+// it (an axial resistance 1000 times smaller than the real one, then the real one). Each Newton
+// step is one O(N) tree solve (Tree::solve). A steady state not connected so to one of the
+// isopotential tree's is not found.
+
+/// The states a dense eigenvalue analysis takes at most: above it, stability is not assessed.
+inline constexpr size_t maxStatesForEigenvalues = 1000;
+
+/// One compartment or cable piece at a tree's steady state.
+struct PieceRest {
+  std::string name;                      // "soma", "dend[3]"
+  double v = 0;                          // V
+  std::vector<Named> gates;              // steady values
+  std::vector<Named> currents;           // per membrane entry, uA/cm2, outward positive
+  double membraneCurrent = 0;            // uA/cm2: its whole membrane's, balanced by the axial current
+  double slopeConductance = 0;           // S/m2: dI/dV of its own membrane's steady-state I-V curve
+  std::optional<double> inputResistance; // ohm: the tree's, for a small steady current injected here
+};
+
+struct TreeSteadyState {
+  std::vector<PieceRest> pieces;                 // the tree's compartments, in model order
+  double isopotentialV = 0;                      // V: the isopotential tree's steady state it continues
+  double maxResidual = 0;                        // A/m2: the largest current density a piece leaves unbalanced
+  bool stabilityAssessed = false;                // false above maxStatesForEigenvalues
+  bool stable = false;                           // every eigenvalue has a negative real part
+  double maxRealEigenvalue = 0;                  // 1/s
+  std::vector<std::complex<double>> eigenvalues; // 1/s, sorted by decreasing real part
+};
+
+/// A cable of a tree: its pieces are compartments first .. first + pieces - 1 of the model.
+struct CableSpan {
+  std::string name;
+  std::string growsFrom; // empty for a free cable
+  size_t first = 0, pieces = 0;
+  double length = 0; // m
+};
+
+/// An isopotential steady state whose continuation did not reach the tree (a fold on the way).
+struct LostState {
+  double isopotentialV = 0; // V
+  std::string why;
+};
+
+struct TreeRest {
+  std::vector<size_t> compartments;          // model indices, increasing
+  std::vector<CableSpan> cables;             // empty without an analysis
+  size_t states = 0;                         // V and gates of every piece (pools are held)
+  std::vector<TreeSteadyState> steadyStates; // by increasing V of its first compartment
+  std::vector<LostState> lost;
+};
+
+/// Every steady state of each tree of joined compartments in `model` (and of each compartment
+/// joined to nothing, as a tree of one), found as the comment above says, in [options.from,
+/// options.to]. `analysis` (may be null) names the cables. Throws std::invalid_argument when the
+/// junctions do not form trees, std::runtime_error when the eigenvalue iteration does not converge.
+std::vector<TreeRest> findTreeSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
+                                           const Options &options = {});
 
 /// The eigenvalues of the n x n real matrix `a` (row-major): balancing, reduction to upper
 /// Hessenberg form, then the shifted (Francis double-shift) QR iteration. Throws

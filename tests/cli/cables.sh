@@ -1,28 +1,18 @@
 #!/usr/bin/env bash
 # cables.sh - a branched cell (a soma, a cable grown from it, a branch grown from the cable's
 # middle) through the commands: check, show (text and JSON), methods, run (interpreter pinned, the JIT
-# within rounding of it), build (the executable equals run), and rest, which refuses joined
-# compartments rather than analysing each piece alone. Goldens in tests/golden/cables/,
-# refreshed with SALTPAN_UPDATE_GOLDEN=1.
+# within rounding of it), build (the executable equals run), and rest, which solves the tree as
+# one system (rest_tree.sh pins its output). Goldens in tests/golden/cables/, refreshed with
+# SALTPAN_UPDATE_GOLDEN=1.
 source "$(dirname "$0")/lib/common.bash"
 
 GOLDEN=$SRC/tests/golden/cables
 SPEC=$GOLDEN/branched_cell.saltpan
-update=${SALTPAN_UPDATE_GOLDEN:-0}
-
-# same NAME FILE: FILE equals the golden NAME (or becomes it when updating).
-same() {
-  if [ "$update" = 1 ]; then
-    cp "$2" "$GOLDEN/$1"
-  elif ! cmp -s "$2" "$GOLDEN/$1"; then
-    fail "$1 differs from its golden: $(diff "$GOLDEN/$1" "$2" | head -5)"
-  fi
-}
 
 expect_rc check 0 check "$SPEC"
 cd "$GOLDEN"
 run show show branched_cell.saltpan
-same show.txt "$TMP/show.out"
+same_as_golden "$GOLDEN" show.txt "$TMP/show.out"
 run json show --format json branched_cell.saltpan
 "$PY" - "$TMP/json.out" <<'PY' || fail "show --format json: the cables are not described"
 import json, sys
@@ -36,12 +26,12 @@ assert abs(dend["length_constant_um"] - 1000) < 1e-9, dend["length_constant_um"]
 assert abs(dend["electrotonic_length"] - 0.5) < 1e-12
 PY
 run methods methods branched_cell.saltpan
-same methods.md "$TMP/methods.out"
+same_as_golden "$GOLDEN" methods.md "$TMP/methods.out"
 grep -q 'Morphology and discretisation' "$TMP/methods.out" || fail "methods does not describe the morphology"
 cd - >/dev/null
 
 expect_rc interp 0 run "$SPEC" --engine interpreter -o "$TMP/interp.csv"
-same kick.interpreter.csv "$TMP/interp.csv"
+same_as_golden "$GOLDEN" kick.interpreter.csv "$TMP/interp.csv"
 head -1 "$TMP/interp.csv" | grep -q '^time (ms),soma.V (mV),dend\[44\].V (mV),dend\[25\].V (mV),branch\[9\].V (mV)$' ||
   fail "the recorded places are not the pieces they fall in: $(head -1 "$TMP/interp.csv")"
 expect_rc jit 0 run "$SPEC" -o "$TMP/jit.csv"
@@ -88,6 +78,15 @@ for x, y in zip(a[1:], b[1:]):
             assert abs(float(u) - float(v)) <= 1e-9 * max(1.0, abs(float(u))), (u, v)
 PY
 
-expect_rc rest 65 rest "$SPEC"
-expect_grep rest err 'the steady state of joined compartments \(cables\) is not solved yet'
+# Rest solves the joined pieces together: one tree, every piece at the leak reversal.
+expect_rc rest 0 rest --format json "$SPEC"
+"$PY" - "$TMP/rest.out" <<'PY' || fail "rest: the branched cell is not one tree resting at -65 mV"
+import json, sys
+d = json.load(open(sys.argv[1]))
+(tree,) = d["trees"]
+(state,) = tree["steady_states"]
+assert tree["compartments"] == 61 and len(state["V_mV"]) == 61
+assert all(abs(v + 65) < 1e-9 for v in state["V_mV"]), state["V_mV"]
+assert state["stable"] is True
+PY
 finish

@@ -30,30 +30,16 @@ double gate(const rest::SteadyState &s, const std::string &name) {
   return NAN;
 }
 
-// True when every expected eigenvalue is matched by one found, to `tol` (absolute).
-bool sameSpectrum(std::vector<std::complex<double>> found, std::vector<std::complex<double>> want, double tol) {
-  if (found.size() != want.size())
-    return false;
-  for (auto w : want) {
-    auto best = std::min_element(found.begin(), found.end(),
-                                 [&](auto a, auto b) { return std::abs(a - w) < std::abs(b - w); });
-    if (std::abs(*best - w) > tol)
-      return false;
-    found.erase(best);
-  }
-  return true;
-}
-
 } // namespace
 
 TEST_CASE("eigenvalues of small real matrices", "[rest]") {
   using C = std::complex<double>;
   SECTION("1 x 1 and diagonal") {
-    CHECK(sameSpectrum(rest::eigenvalues({-3}, 1), {C(-3)}, 1e-14));
-    CHECK(sameSpectrum(rest::eigenvalues({2, 0, 0, 0, -5, 0, 0, 0, 7}, 3), {C(2), C(-5), C(7)}, 1e-12));
+    CHECK(testing::sameSpectrum(rest::eigenvalues({-3}, 1), {C(-3)}, 1e-14));
+    CHECK(testing::sameSpectrum(rest::eigenvalues({2, 0, 0, 0, -5, 0, 0, 0, 7}, 3), {C(2), C(-5), C(7)}, 1e-12));
   }
   SECTION("a rotation: a complex pair") {
-    CHECK(sameSpectrum(rest::eigenvalues({0, -1, 1, 0}, 2), {C(0, 1), C(0, -1)}, 1e-14));
+    CHECK(testing::sameSpectrum(rest::eigenvalues({0, -1, 1, 0}, 2), {C(0, 1), C(0, -1)}, 1e-14));
   }
   SECTION("a companion matrix with known roots, real and complex") {
     // (x - 1)(x - 2)(x - 3)(x + 4)(x^2 + 2x + 5): roots 1, 2, 3, -4, -1 +- 2i.
@@ -67,13 +53,13 @@ TEST_CASE("eigenvalues of small real matrices", "[rest]") {
       a[i * n + (i - 1)] = 1; // subdiagonal
     for (int i = 0; i < n; ++i)
       a[i * n + (n - 1)] = -c[i]; // last column
-    CHECK(sameSpectrum(rest::eigenvalues(a, n), {C(1), C(2), C(3), C(-4), C(-1, 2), C(-1, -2)}, 1e-9));
+    CHECK(testing::sameSpectrum(rest::eigenvalues(a, n), {C(1), C(2), C(3), C(-4), C(-1, 2), C(-1, -2)}, 1e-9));
   }
   SECTION("badly scaled entries, as in a Jacobian in SI units") {
     // diag(1e-3, 1e3) similarity of [[-1, 2], [-3, -4]]: eigenvalues -2.5 +- i sqrt(15)/2.
     std::vector<double> a = {-1, 2e-6, -3e6, -4};
     double im = std::sqrt(15.0) / 2;
-    CHECK(sameSpectrum(rest::eigenvalues(a, 2), {C(-2.5, im), C(-2.5, -im)}, 1e-9));
+    CHECK(testing::sameSpectrum(rest::eigenvalues(a, 2), {C(-2.5, im), C(-2.5, -im)}, 1e-9));
   }
 }
 
@@ -191,7 +177,7 @@ channel InventedPersistentInward {
   CHECK(states[2].v * 1e3 == Approx(29.0 / 1.3).margin(1e-4));
   // At the top state p ~ 1, so the eigenvalues are -1/tau = -1 /ms and -G/C = -1.3 /ms.
   REQUIRE(states[2].eigenvalues.size() == 2);
-  CHECK(sameSpectrum(states[2].eigenvalues, {std::complex<double>(-1000), std::complex<double>(-1300)}, 1.0));
+  CHECK(testing::sameSpectrum(states[2].eigenvalues, {std::complex<double>(-1000), std::complex<double>(-1300)}, 1.0));
   for (const auto &s : states)
     CHECK(std::fabs(s.totalCurrent) < 1e-8);
 }

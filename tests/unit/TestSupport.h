@@ -4,11 +4,14 @@
 
 #include <catch2/catch.hpp>
 
+#include <algorithm>
+#include <complex>
 #include <cstdlib>
 #include <fstream>
 #include <memory>
 #include <sstream>
 #include <string>
+#include <vector>
 
 namespace saltpan::testing {
 
@@ -58,6 +61,20 @@ inline bool hasError(const Compilation &c, const std::string &text) {
 inline bool updateGoldenFiles() {
   const char *update = std::getenv("SALTPAN_UPDATE_GOLDEN");
   return update && std::string(update) == "1";
+}
+
+/// True when every expected eigenvalue is matched by one found, to `tol` (absolute).
+inline bool sameSpectrum(std::vector<std::complex<double>> found, std::vector<std::complex<double>> want, double tol) {
+  if (found.size() != want.size())
+    return false;
+  for (auto w : want) {
+    auto best =
+        std::min_element(found.begin(), found.end(), [&](auto a, auto b) { return std::abs(a - w) < std::abs(b - w); });
+    if (std::abs(*best - w) > tol)
+      return false;
+    found.erase(best);
+  }
+  return true;
 }
 
 /// The whole file at `path`, or "" when it cannot be read.

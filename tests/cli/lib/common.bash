@@ -43,6 +43,16 @@ expect_grep() {
   fi
 }
 
+# same_as_golden DIR NAME FILE: FILE equals the golden DIR/NAME (or becomes it when
+# SALTPAN_UPDATE_GOLDEN=1).
+same_as_golden() {
+  if [ "${SALTPAN_UPDATE_GOLDEN:-0}" = 1 ]; then
+    cp "$3" "$1/$2"
+  elif ! cmp -s "$3" "$1/$2"; then
+    fail "$2 differs from its golden: $(diff "$1/$2" "$3" | head -5)"
+  fi
+}
+
 # no_crash NAME: the last run neither crashed (status >= 128) nor timed out (124).
 no_crash() {
   local name=$1
