@@ -41,16 +41,8 @@ import numpy as np
 from scipy.integrate import solve_ivp
 from scipy.sparse import lil_matrix
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 # Units: ms, mV, cm, uF/cm2, mS/cm2, uA; resistivity in kOhm cm, so conductances are in mS.
