@@ -699,8 +699,8 @@ private:
       if (NodeId e = nernstNode(ion, env); e >= 0)
         probe(pool.name + ".reversal", dims::voltage(), e);
     }
-    // A piece's ions move along the cable too: its own charge does not balance.
-    comp.allCurrentCarried = !pools.empty() && allCarried_ && model_.junctions.empty();
+    // Whether its membrane's charge can balance its ions'; a joined one balances with its tree.
+    comp.allCurrentCarried = !pools.empty() && allCarried_;
     std::vector<const IonDecl *> carried;
     for (auto &[ion, current] : ionCurrent_)
       carried.push_back(ion);

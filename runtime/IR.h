@@ -90,7 +90,7 @@ struct Compartment {
   int clampedOutput = -1; // -1: never clamped
   int commandOutput = -1;
   int injectedOutput = -1; // A/m^2 into the cell, for the charge balance
-  bool allCurrentCarried = false; // every membrane current is carried by a dynamic ion
+  bool allCurrentCarried = false; // every membrane current is carried by a dynamic ion (own membrane)
 };
 
 /// Two compartments joined by an axial conductance: the pieces of a cable, or a cable and the

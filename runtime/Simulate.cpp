@@ -4,6 +4,7 @@
 #include "FixedStep.h"
 #include "Interpret.h"
 #include "PieceSplit.h"
+#include "Tree.h"
 
 #include <algorithm>
 #include <cmath>
@@ -65,15 +66,36 @@ public:
       injected_[i] += 0.5 * (a[k] + b[k]) * dt;
     }
   }
+  // Axial currents move charge between joined compartments, so only a whole tree balances: the
+  // sum over it of area * (change of membrane charge - change of ion charge - injected charge),
+  // relative to the charge that moved. A tree is balanced only when all its members' currents are
+  // carried by dynamic ions; a compartment that joins no other is weighed alone, per area.
   void chargeBalance(const Charge &start) {
+    const std::vector<ir::Compartment> &cs = m_.compartments;
+    if (std::none_of(cs.begin(), cs.end(), [](const ir::Compartment &c) { return c.allCurrentCarried; }))
+      return;
     Charge end = charges(y_);
-    double worst = NAN;
-    for (size_t i = 0; i < m_.compartments.size(); ++i) {
-      if (!m_.compartments[i].allCurrentCarried)
-        continue;
+    std::vector<int> root = Tree(m_).roots();
+    std::vector<size_t> members(cs.size(), 0);
+    std::vector<bool> carried(cs.size(), true);
+    for (size_t i = 0; i < cs.size(); ++i) {
+      size_t r = static_cast<size_t>(root[i]);
+      ++members[r];
+      carried[r] = carried[r] && cs[i].allCurrentCarried;
+    }
+    std::vector<double> residual(cs.size(), 0), moved(cs.size(), 0);
+    for (size_t i = 0; i < cs.size(); ++i) {
+      size_t r = static_cast<size_t>(root[i]);
+      double weight = members[r] > 1 ? cs[i].area : 1;
       double dMembrane = end.membrane[i] - start.membrane[i], dIons = end.ions[i] - start.ions[i];
-      double moved = std::fabs(dMembrane) + std::fabs(dIons) + std::fabs(injected_[i]) + 1e-300;
-      double error = std::fabs(dMembrane - dIons - injected_[i]) / moved;
+      residual[r] += weight * (dMembrane - dIons - injected_[i]);
+      moved[r] += weight * (std::fabs(dMembrane) + std::fabs(dIons) + std::fabs(injected_[i]));
+    }
+    double worst = NAN;
+    for (size_t r = 0; r < cs.size(); ++r) {
+      if (root[r] != static_cast<int>(r) || !carried[r])
+        continue;
+      double error = std::fabs(residual[r]) / (moved[r] + 1e-300);
       worst = std::isnan(worst) ? error : std::max(worst, error);
     }
     stats_.chargeBalanceError = worst;

@@ -33,6 +33,15 @@ Tree::Tree(const ir::Model &model)
     throw std::invalid_argument("the junctions of the model close a loop");
 }
 
+std::vector<int> Tree::roots() const {
+  std::vector<int> root(parent_.size());
+  for (int c : order_) { // a parent comes before its children, so its root is known
+    size_t i = static_cast<size_t>(c);
+    root[i] = parent_[i] < 0 ? c : root[static_cast<size_t>(parent_[i])];
+  }
+  return root;
+}
+
 void Tree::solve(double *diag, const double *up, const double *low, double *rhs) const {
   // Leaves to roots: row i (one parent p) is subtracted from row p, clearing A[p][i].
   for (size_t k = order_.size(); k-- > 0;) {

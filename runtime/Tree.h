@@ -18,6 +18,8 @@ public:
   int parent(size_t compartment) const { return parent_[compartment]; }
   /// The axial conductance (S) to the parent; 0 for a root.
   double conductance(size_t compartment) const { return conductance_[compartment]; }
+  /// The root of each compartment's tree, in O(N): an isolated compartment is its own root.
+  std::vector<int> roots() const;
 
   /// Solves A x = rhs in place (rhs becomes x; diag is spent). Row i of A holds diag[i] on the
   /// diagonal, up[i] at column parent(i), and low[c] at column c for each child c of i.

@@ -1,9 +1,9 @@
 #!/usr/bin/env bash
 # cables.sh - a branched cell (a soma, a cable grown from it, a branch grown from the cable's
 # middle) through the commands: check, show (text and JSON), methods, run (interpreter pinned, the JIT
-# within rounding of it), build (the executable equals run), and rest, which solves the tree as
-# one system (rest_tree.sh pins its output). Goldens in tests/golden/cables/, refreshed with
-# SALTPAN_UPDATE_GOLDEN=1.
+# within rounding of it), build (the executable equals run), the charge balance of a tree with
+# dynamic ions, and rest, which solves the tree as one system (rest_tree.sh pins its output).
+# Goldens in tests/golden/cables/, refreshed with SALTPAN_UPDATE_GOLDEN=1.
 source "$(dirname "$0")/lib/common.bash"
 
 GOLDEN=$SRC/tests/golden/cables
@@ -89,4 +89,34 @@ assert tree["compartments"] == 61 and len(state["V_mV"]) == 61
 assert all(abs(v + 65) < 1e-9 for v in state["V_mV"]), state["V_mV"]
 assert state["stable"] is True
 PY
+
+# Every current of the soma and its cable carried by dynamic Na and K: run reports one charge
+# balance for the whole tree, which RK4 keeps to rounding (piece by piece, the axial currents
+# would put it off by tens of percent).
+cat >"$TMP/ions.saltpan" <<'SPEC'
+use std.ions
+use std.math
+temperature 37 degC
+outside bath { [Na] = 145 mM  [K] = 5 mM  impermeant 150 mM valence -1 }
+compartment soma {
+  sphere diameter 10 um
+  capacitance 1 uF/cm2
+  initial V = -60 mV
+  inside { [Na] = 20 mM dynamic  [K] = 130 mM dynamic  impermeant 150 mM valence -1 }
+  membrane { NaLeak 2e-7 cm/s  KLeak 5e-6 cm/s  Pump 20 uA/cm2 }
+}
+cable dend { grows from soma; length 100 um; diameter 1 um; axial resistivity 100 ohm*cm; pieces 5 }
+channel NaLeak { carries Na }
+channel KLeak { carries K }
+pump Pump { cycle 3 Na out, 2 K in  activity = hill([Na]in, 10 mM, 1.5) }
+protocol feed {
+  method rk4 step 10 us
+  duration 20 ms
+  inject dend at 0.9 0.02 nA from 1 ms to 15 ms
+  record soma.V, dend.V at 0.9 every 1 ms
+}
+SPEC
+expect_rc ions 0 run "$TMP/ions.saltpan" -o "$TMP/ions.csv"
+expect_grep ions err 'charge balance: membrane charge and dynamic ion charge agree to [0-9.]+e-(1[0-9]|[2-9][0-9]) \(relative\)'
+
 finish

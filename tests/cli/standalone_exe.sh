@@ -6,6 +6,7 @@ source "$(dirname "$0")/lib/common.bash"
 
 SQUID=$SRC/specs/reference/squid_axon_1952.saltpan
 TIDE=$SRC/specs/demo/tidewater_cell.saltpan
+EULER=$SRC/specs/reference/squid_axon_1952_sweeps.saltpan
 
 # exe NAME EXE ARGS...: runs a built executable; sets rc, leaves $TMP/NAME.out and .err.
 exe() {
@@ -37,13 +38,16 @@ same() {
 expect_rc build_squid 0 build "$SQUID" -o "$TMP/squid"
 expect_grep build_squid err "built .*squid: executable of 'SquidAxon1952', 1 protocol"
 expect_rc build_tide 0 build "$TIDE" -o "$TMP/tide"
+expect_rc build_euler 0 build "$EULER" -o "$TMP/euler"
 
-# RK4 (the plain kernel) and exponential Euler (the fused and state-only kernels).
+# RK4 (the plain kernel), Crank-Nicolson on a tree, and exponential Euler (the fused and
+# state-only kernels).
 same squid_default "$SQUID" "$TMP/squid" --duration 20ms
 same squid_set "$SQUID" "$TMP/squid" --set 'axon.SquidSodium1952.density=100 mS/cm2' --duration 30ms --every 0.05ms
-same tide_default "$TIDE" "$TMP/tide" --duration 60ms
+same tide_default "$TIDE" "$TMP/tide" --protocol stimulation --duration 60ms
 same tide_set "$TIDE" "$TMP/tide" --protocol stimulation --set soma.TidewaterDelayedK.density=20mS/cm2 \
   --duration 150ms --every 1ms
+same euler_default "$EULER" "$TMP/euler" --protocol euler10 --duration 60ms
 # The JSON carries the model hash `saltpan hash` prints and the version of the saltpan that built it.
 hash=$("$SALTPAN" hash "$SQUID" | cut -d' ' -f1)
 grep -q "\"model_hash\": \"$hash\"" "$TMP/squid_default.exe.json" || fail "the JSON does not carry hash $hash"

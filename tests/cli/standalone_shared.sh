@@ -6,11 +6,13 @@ source "$(dirname "$0")/lib/common.bash"
 
 SQUID=$SRC/specs/reference/squid_axon_1952.saltpan
 TIDE=$SRC/specs/demo/tidewater_cell.saltpan
+EULER=$SRC/specs/reference/squid_axon_1952_sweeps.saltpan
 command -v cc >/dev/null || { echo "FAIL: no C compiler 'cc'" >&2; exit 1; }
 
 mkdir "$TMP/lib"
 expect_rc build_squid 0 build "$SQUID" --shared -o "$TMP/lib/libsquid.so"
 expect_rc build_tide 0 build "$TIDE" --shared -o "$TMP/lib/libtide.so"
+expect_rc build_euler 0 build "$EULER" --shared -o "$TMP/lib/libeuler.so"
 cmp -s "$TMP/lib/saltpan_model.h" "$SRC/standalone/saltpan_model.h" || fail "saltpan_model.h was not copied beside the library"
 
 # Only the C interface is exported: no runtime, libstdc++ or LLVM symbols leak out.
@@ -29,7 +31,7 @@ sanitize=()
 if grep -q libasan <<<"$needed"; then
   sanitize=(-fsanitize=address,undefined)
 fi
-for lib in squid tide; do
+for lib in squid tide euler; do
   cc -std=c11 -Wall -Wextra -Werror "${sanitize[@]}" -I"$TMP/lib" "$SRC/tests/cli/standalone_c_api.c" \
     -o "$TMP/c_$lib" "$TMP/lib/lib$lib.so" -Wl,-rpath,"$TMP/lib" -lm 2>"$TMP/cc_$lib.err" ||
     fail "the C test does not compile against lib$lib.so: $(head -5 "$TMP/cc_$lib.err")"
@@ -62,25 +64,31 @@ PY
     fail "$name: the C interface disagrees with saltpan run"
 }
 
-# Squid axon (RK4): sodium density 100 mS/cm2 = 1000 S/m^2; V every step (10 us).
-steps="1 100 1234 5000 20000"
-if [ -x "$TMP/c_squid" ]; then
-  timeout 20 "$TMP/c_squid" - axon.SquidSodium1952.density 1000 axon.V $steps >"$TMP/squid.c.out" \
-    2>"$TMP/squid.c.err" || fail "the C program failed on the squid axon: $(head -5 "$TMP/squid.c.err")"
-  run squid.set run "$SQUID" --set 'axon.SquidSodium1952.density=100 mS/cm2' --every 0.01ms
-  run squid.default run "$SQUID" --every 0.01ms
-  compare squid "axon.V (mV)" 1000
-fi
+# stepped NAME SPEC PROTOCOL PARAMETER SI SETTING STATE STEPS: the C program built for NAME
+# sets PARAMETER to SI (in SI units) and prints STATE after each of STEPS; `saltpan run` with
+# --set SETTING and without it, recording every step, must agree (PROTOCOL "-": the only one).
+stepped() {
+  local name=$1 spec=$2 protocol=$3 parameter=$4 si=$5 setting=$6 state=$7 steps=$8
+  [ -x "$TMP/c_$name" ] || return 0
+  local choose=()
+  [ "$protocol" = - ] || choose=(--protocol "$protocol")
+  # shellcheck disable=SC2086 # the steps are separate arguments
+  timeout 20 "$TMP/c_$name" "$protocol" "$parameter" "$si" "$state" $steps >"$TMP/$name.c.out" \
+    2>"$TMP/$name.c.err" || fail "the C program failed on $name: $(head -5 "$TMP/$name.c.err")"
+  run "$name.set" run "$spec" "${choose[@]}" --set "$setting" --every 0.01ms
+  run "$name.default" run "$spec" "${choose[@]}" --every 0.01ms
+  compare "$name" "$state (mV)" 1000
+}
 
-# Tidewater cell (fused exponential Euler, dynamic calcium): delayed K at 20 mS/cm2.
-steps="1 999 2500 12000 30000"
-if [ -x "$TMP/c_tide" ]; then
-  timeout 20 "$TMP/c_tide" stimulation soma.TidewaterDelayedK.density 200 soma.V $steps >"$TMP/tide.c.out" \
-    2>"$TMP/tide.c.err" || fail "the C program failed on the tidewater cell: $(head -5 "$TMP/tide.c.err")"
-  run tide.set run "$TIDE" --set 'soma.TidewaterDelayedK.density=20 mS/cm2' --every 0.01ms
-  run tide.default run "$TIDE" --every 0.01ms
-  compare tide "soma.V (mV)" 1000
-fi
+# Squid axon (RK4): sodium density 100 mS/cm2 = 1000 S/m^2; V every step (10 us).
+stepped squid "$SQUID" - axon.SquidSodium1952.density 1000 'axon.SquidSodium1952.density=100 mS/cm2' axon.V \
+  "1 100 1234 5000 20000"
+# Tidewater cell (a soma and cables, Crank-Nicolson): delayed K at 20 mS/cm2.
+stepped tide "$TIDE" stimulation soma.TidewaterDelayedK.density 200 'soma.TidewaterDelayedK.density=20 mS/cm2' \
+  soma.V "1 999 2500 12000 30000"
+# Squid axon (fused exponential Euler): sodium density 100 mS/cm2.
+stepped euler "$EULER" euler10 axon.SquidSodium1952.density 1000 'axon.SquidSodium1952.density=100 mS/cm2' \
+  axon.V "1 100 1234 5000 19999"
 
 # A protocol with an adaptive method cannot be stepped from C: a clear refusal.
 EXPERIMENTS=$SRC/specs/reference/squid_axon_1952_experiments.saltpan

@@ -48,16 +48,8 @@ CASES = [
 # The reference must be far more accurate than the smallest error it measures.
 REFERENCE_CHECK_METHOD = "dormand_prince step 1 us tolerance 1e-11"
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def main():

@@ -38,16 +38,8 @@ VARIANT = """protocol {name} {{
 VARIANT_METHODS = {"variant_ee": "exponential_euler step 10 us", "variant_rk4": "rk4 step 10 us",
                    "variant_dp": "dormand_prince step 10 us tolerance 1e-10"}
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def protocols(path):

@@ -39,16 +39,8 @@ TEXTBOOK_REST_MV, TEXTBOOK_TOLERANCE_MV = -60.0, 3.0
 # For context only, not tested: the 1949 paper reports a measured resting potential of "about
 # 50 mV" (Hodgkin & Katz 1949, seen), i.e. about -50 mV inside minus outside.
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def show(saltpan, path):

@@ -44,16 +44,8 @@ HOLD, STEP_LEVEL, STEP_AT, CLAMP_RUN = -80.0, -65.0, 10.0, 50.0  # mV, mV, ms, m
 SAMPLE = 0.01  # ms
 RTOL, ATOL = 1e-11, 1e-13
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def pieces(edges, y0, rhs_of):

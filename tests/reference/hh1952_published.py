@@ -39,16 +39,8 @@ SUSTAINED_MIN_SPIKES = 5  # a train near 50 Hz gives about 10 there
 # "The f-I curve starts discontinuously near 50 Hz" (docs/references.md): the rate just above onset.
 ONSET_RATE_RANGE_HZ = (45.0, 60.0)
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def spike_times(t, v, threshold=0.0):

@@ -88,16 +88,8 @@ def steady(alpha, beta, v):
 
 Y0 = [V0, steady(alpha_m, beta_m, V0), steady(alpha_h, beta_h, V0), steady(alpha_n, beta_n, V0)]
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def spike_times(t, v, threshold=0.0):

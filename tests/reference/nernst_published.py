@@ -61,16 +61,8 @@ KANDEL_5_CELSIUS = 20.0  # the table is for room temperature, ~20 degC (docs/ref
 # RT/F in mV (computed with the exact constants; docs/references.md).
 RT_OVER_F_COMPUTED_MV = {6.3: 24.081138, 20.0: 25.261712, 37.0: 26.726659}
 
-failures = []
-
-
-def fail(message):
-    failures.append(message)
-    print("FAIL: " + message)
-
-
-def ok(message):
-    print("ok: " + message)
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "lib"))
+from report import fail, failures, ok  # noqa: E402  (the shared pass and failure lines)
 
 
 def show(saltpan, path):

@@ -223,6 +223,64 @@ TEST_CASE("dynamic concentrations conserve charge with the membrane", "[simulate
   CHECK(std::isnan(partial.stats.chargeBalanceError));
 }
 
+TEST_CASE("a tree conserves charge as a whole, not piece by piece", "[simulate][cable]") {
+  // A soma and a cable of five pieces, every current carried by dynamic Na and K, a current
+  // injected into the last piece. Axial currents carry charge along the cable, so one piece's
+  // membrane and ions do not balance; summed over the tree (weighed by area) the injected charge
+  // is the capacitive charge plus the ionic charge that left. RK4 keeps this linear invariant.
+  std::string record = "soma.V, soma.Na, soma.K";
+  for (const char *place : {"0.1", "0.3", "0.5", "0.7", "0.9"})
+    for (const char *q : {"V", "Na", "K"})
+      record += std::string(", dend.") + q + " at " + place;
+  std::string spec = "use std.ions\nuse std.math\ntemperature 37 degC\n"
+                     "outside bath { [Na] = 145 mM  [K] = 5 mM  impermeant 150 mM valence -1 }\n"
+                     "compartment soma {\n  sphere diameter 10 um\n  capacitance 1 uF/cm2\n  initial V = -60 mV\n"
+                     "  inside { [Na] = 20 mM dynamic  [K] = 130 mM dynamic  impermeant 150 mM valence -1 }\n"
+                     "  membrane { NaLeak 2e-7 cm/s  KLeak 5e-6 cm/s  Pump 20 uA/cm2 }\n}\n"
+                     "cable dend {\n  grows from soma\n  length 100 um\n  diameter 1 um\n"
+                     "  axial resistivity 100 ohm*cm\n  pieces 5\n}\n"
+                     "channel NaLeak { carries Na }\nchannel KLeak { carries K }\n"
+                     "pump Pump { cycle 3 Na out, 2 K in  activity = hill([Na]in, 10 mM, 1.5) }\n"
+                     "protocol feed {\n  method rk4 step 10 us\n  duration 20 ms\n"
+                     "  inject dend at 0.9 0.02 nA from 1 ms to 15 ms\n"
+                     "  record " +
+                     record + " every 20 ms\n}\n";
+  Run r = simulateSpec(spec);
+  REQUIRE_FALSE(r.failure.failed);
+  REQUIRE(r.trace.time.size() == 2);
+  REQUIRE_FALSE(std::isnan(r.stats.chargeBalanceError));
+  CHECK(r.stats.chargeBalanceError < 1e-9);
+
+  // The same balance from the test side, from the spec's geometry: charges in coulombs.
+  const double faraday = 96485.33212, pi = 3.14159265358979323846, capacitance = 0.01; // F/m2
+  const double somaD = 10e-6, pieceD = 1e-6, pieceL = 20e-6;
+  double injected = 0.02e-9 * 14e-3, capacitive = 0, ionicOut = 0, lastPiece[3] = {0, 0, 0};
+  for (size_t k = 0; k < 6; ++k) {
+    double area = k == 0 ? pi * somaD * somaD : pi * pieceD * pieceL;
+    double volume = k == 0 ? pi * somaD * somaD * somaD / 6 : pi * pieceD * pieceD / 4 * pieceL;
+    auto change = [&](size_t q) { return r.trace.at(1, 3 * k + q) - r.trace.at(0, 3 * k + q); };
+    double membrane = area * capacitance * change(0) * 1e-3;  // mV to V
+    double ions = faraday * (change(1) + change(2)) * volume; // mM = mol/m3; Na and K are +1
+    capacitive += membrane;
+    ionicOut -= ions;
+    if (k == 5)
+      lastPiece[0] = membrane, lastPiece[1] = ions, lastPiece[2] = injected;
+  }
+  CHECK_THAT(capacitive + ionicOut, WithinRel(injected, 1e-9));
+  // Piece by piece the balance is far off where the current enters: the axial current took it.
+  double pieceError = std::fabs(lastPiece[0] - lastPiece[1] - lastPiece[2]) /
+                      (std::fabs(lastPiece[0]) + std::fabs(lastPiece[1]) + std::fabs(lastPiece[2]));
+  CHECK(pieceError > 0.1);
+
+  // A membrane current carried by no dynamic ion anywhere in the tree: no balance to report.
+  std::string fixedLeak = spec;
+  fixedLeak.replace(fixedLeak.find("Pump 20 uA/cm2 }"), 16, "Pump 20 uA/cm2  Fixed 0.01 mS/cm2 }");
+  fixedLeak += "channel Fixed { reversal -70 mV }\n";
+  Run partial = simulateSpec(fixedLeak);
+  REQUIRE_FALSE(partial.failure.failed);
+  CHECK(std::isnan(partial.stats.chargeBalanceError));
+}
+
 TEST_CASE("a run that goes numerically wrong stops with the time and the variable", "[simulate]") {
   // A channel with an absurd density makes V explode with forward-stepping RK4.
   Run r = simulateSpec("temperature 20 degC\n"

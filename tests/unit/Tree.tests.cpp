@@ -144,6 +144,15 @@ TEST_CASE("a loop, two parents and a joined compartment without area are refused
   isolated.junctions.clear();
   Tree alone(isolated);
   CHECK(alone.parent(3) == -1);
+  CHECK(alone.roots() == std::vector<int>{0, 1, 2, 3});
+}
+
+TEST_CASE("each compartment's root is the root its parents lead to", "[tree]") {
+  std::mt19937_64 random(2);
+  ir::Model m = randomTree(5, random);
+  // Two trees: 0 <- 1 <- 3 and 2 <- 4, with the child 3 listed before its parent 1's junction.
+  m.junctions = {{1, 3, 1e-9}, {0, 1, 1e-9}, {2, 4, 1e-9}};
+  CHECK(Tree(m).roots() == std::vector<int>{0, 0, 2, 0, 2});
 }
 
 TEST_CASE("a passive sealed cable settles to the closed forms of cable theory", "[tree][cable]") {
