@@ -248,8 +248,8 @@ struct MembraneEntry {
 
 struct CompartmentDecl;
 
-/// A place along a cable: `at 350 um` (a distance from its start) or `at 0.5` (a fraction of
-/// its length). Unset: the whole of a compartment, or a cable's first piece.
+/// A place along a cable: `at 350 um` (a distance from its start) or `at 50 %` (of its length,
+/// held as the fraction 0.5, unitText "%"). Unset: the whole of a compartment, or a cable's first piece.
 struct Position {
   ExprPtr at;
   SourceRange range;

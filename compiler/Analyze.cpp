@@ -276,8 +276,7 @@ private:
           auto &d = diags_.error(shape.at.range, "cable '" + p->decl->name + "' is " +
                                                      shortestDecimal(tidyDecimal(p->length * 1e6)) + " um long; '" +
                                                      c.name + "' cannot grow from outside it");
-          DiagnosticEngine::note(d, {},
-                                 "a place along a cable is a distance from 0 to its length, or a fraction from 0 to 1");
+          DiagnosticEngine::note(d, {}, placeRangeNote);
           return;
         }
         at = std::min(p->pieces - 1, static_cast<size_t>(along / p->pieceLength()));

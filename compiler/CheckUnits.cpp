@@ -142,13 +142,16 @@ private:
       expect(i.amount.get(), dims::concentration(), "an impermeant concentration");
   }
 
-  // A distance along a cable, or a plain number: a fraction of its length.
+  // A distance along a cable, or a percentage of its length (a unit such as 'um/um' is no
+  // percentage, though as dimensionless).
   void position(Position &p, const std::string &what) {
     if (!p)
       return;
     ExprType t = infer(*p.at);
-    if (t.known && t.dim != dims::length() && t.dim != Dimension::none())
-      mismatch(p.at->range, what, "a distance along the cable (um) or a fraction of its length (0 to 1)", t.dim);
+    auto *n = dyn_cast<NumberExpr>(p.at.get());
+    bool percent = n && n->unitText == "%";
+    if (t.known && t.dim != dims::length() && !percent)
+      mismatch(p.at->range, what, "a distance along the cable (um) or a percentage of its length (%)", t.dim);
   }
 
   void compartment(CompartmentDecl &c) {

@@ -425,9 +425,7 @@ private:
     if (!(along >= 0 && along <= cable->length * (1 + 1e-12))) {
       fail(at.range, "cable '" + decl.name + "' is " + shortestDecimal(tidyDecimal(cable->length * 1e6)) +
                          " um long; this place is outside it");
-      DiagnosticEngine::note(*diags_.last(), {},
-                             "a place along a cable is a distance from 0 to its length, or a "
-                             "fraction from 0 to 1");
+      DiagnosticEngine::note(*diags_.last(), {}, placeRangeNote);
       return -1;
     }
     return static_cast<int>(std::min(cable->pieces - 1, static_cast<size_t>(along / cable->pieceLength())));
@@ -796,7 +794,7 @@ private:
         if (!r.position) {
           fail(r.range, "'" + head + "' is a cable: say where along it to record");
           DiagnosticEngine::note(*diags_.last(), {},
-                                 "write e.g. '" + r.path + " at 100 um' or '" + r.path + " at 0.5'");
+                                 "write e.g. '" + r.path + " at 100 um' or '" + r.path + " at 50 %'");
           return "";
         }
         int piece = pieceAt(r.position, *cv.decl);

@@ -204,13 +204,13 @@ TEST_CASE("a cable written in the language settles to the closed form of cable t
   // cable (it grows from nothing), a current into its first piece, V recorded at both ends.
   // V(x) = I0 r_a lambda cosh((L - x) / lambda) / sinh(L / lambda) (Rall 1969; Jack, Noble &
   // Tsien 1975, ch. 3), lambda = 1 mm, L = 0.5 mm.
-  auto c =
-      testing::compile("temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
-                       "cable c {\n  length 500 um\n  diameter 2 um\n  axial resistivity 100 ohm*cm\n"
-                       "  pieces 100\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n"
-                       "  membrane { Leak 0.05 mS/cm2 }\n}\n"
-                       "protocol hold {\n  method backward_euler step 0.1 ms\n  duration 400 ms\n"
-                       "  inject c at 0 1 uA/cm2 from 0 ms to 1000 ms\n  record c.V at 0, c.V at 1 every 400 ms\n}\n");
+  auto c = testing::compile(
+      "temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
+      "cable c {\n  length 500 um\n  diameter 2 um\n  axial resistivity 100 ohm*cm\n"
+      "  pieces 100\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n"
+      "  membrane { Leak 0.05 mS/cm2 }\n}\n"
+      "protocol hold {\n  method backward_euler step 0.1 ms\n  duration 400 ms\n"
+      "  inject c at 0 % 1 uA/cm2 from 0 ms to 1000 ms\n  record c.V at 0 %, c.V at 100 % every 400 ms\n}\n");
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);
   const ir::Model &m = c->lowered.begin()->second;
