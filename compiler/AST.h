@@ -429,6 +429,7 @@ enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual, Mea
 /// An argument of a measure: a dotted name (soma.V, K, soma) or a value (0 mV).
 struct ExpectArg {
   std::string path; // empty when the argument is a value or a string
+  Position position; // a recorded quantity along a cable: `dend.V at 450 um`
   ExprPtr value;
   std::string text; // a string argument (a snapshot file)
   bool isString = false;

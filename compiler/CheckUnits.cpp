@@ -76,17 +76,21 @@ private:
           infer(*v);
       }
       for (auto &m : sw.measures)
-        for (ExpectArg &a : m->args)
+        for (ExpectArg &a : m->args) {
           if (a.value)
             infer(*a.value);
+          position(a.position, "a measured place");
+        }
       return;
     }
     case DeclKind::Expect: {
       // Arguments and values are only inferred here; Expect.cpp knows what each measure wants.
       auto &e = static_cast<ExpectDecl &>(d);
-      for (ExpectArg &a : e.args)
+      for (ExpectArg &a : e.args) {
         if (a.value)
           infer(*a.value);
+        position(a.position, "a measured place");
+      }
       for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
         if (x)
           infer(*x);

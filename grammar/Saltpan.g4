@@ -105,7 +105,7 @@ stoichTerm : NUMBER IDENT dir=(IN | OUT) ;
 
 // expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]
 expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
-expectArg : STRING | recordTarget | expr ;
+expectArg : STRING | recordTarget position? | expr ;
 expectCheck
   : '==' expr (WITHIN expr RELATIVE?)?            # equalCheck
   | IN expr TO expr                               # rangeCheck

@@ -718,15 +718,17 @@ private:
     d.name = "";
     d.nameRange = d.measureRange;
     for (P::ExpectArgContext *a : args) {
-      // expectArg : STRING | recordTarget | expr ;
+      // expectArg : STRING | recordTarget position? | expr ;
       ExpectArg arg;
       arg.range = range(a);
       if (a->STRING()) {
         arg.isString = true;
         arg.text = unquote(a->STRING()->getText());
-      } else if (a->recordTarget())
+      } else if (a->recordTarget()) {
         arg.path = a->recordTarget()->getText();
-      else
+        if (a->position())
+          arg.position = position(a->position());
+      } else
         arg.value = build(a->expr());
       d.args.push_back(std::move(arg));
     }
