@@ -248,8 +248,8 @@ struct MembraneEntry {
 
 struct CompartmentDecl;
 
-/// A place along a cable: `at 350 um` (a distance from its start) or `at 0.5` (a fraction of
-/// its length). Unset: the whole of a compartment, or a cable's first piece.
+/// A place along a cable: `at 350 um` (a distance from its start) or `at 50 %` (of its length,
+/// held as the fraction 0.5, unitText "%"). Unset: the whole of a compartment, or a cable's first piece.
 struct Position {
   ExprPtr at;
   SourceRange range;
@@ -429,6 +429,7 @@ enum class CheckKind { Equal, Range, Less, LessEqual, Greater, GreaterEqual, Mea
 /// An argument of a measure: a dotted name (soma.V, K, soma) or a value (0 mV).
 struct ExpectArg {
   std::string path; // empty when the argument is a value or a string
+  Position position; // a recorded quantity along a cable: `dend.V at 450 um`
   ExprPtr value;
   std::string text; // a string argument (a snapshot file)
   bool isString = false;

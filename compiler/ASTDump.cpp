@@ -277,6 +277,7 @@ public:
         for (auto &a : m->args) {
           if (!a.path.empty())
             line(2, "arg " + a.path);
+          expr(3, "at", a.position.at.get());
           expr(2, "arg", a.value.get());
         }
       }
@@ -289,6 +290,7 @@ public:
       for (auto &a : e.args) {
         if (!a.path.empty())
           line(2, "arg " + a.path);
+        expr(3, "at", a.position.at.get());
         expr(2, "arg", a.value.get());
       }
       static const char *checks[] = {"==", "in", "<", "<=", ">", ">=", "measured"};

@@ -5,6 +5,7 @@
 #include "Diagnostics.h"
 #include "Evaluate.h"
 #include "Physics.h"
+#include "Places.h"
 
 #include <algorithm>
 #include <cmath>
@@ -164,12 +165,7 @@ private:
     return nullptr;
   }
 
-  const CableValues *cableOf(const CompartmentDecl *decl) const {
-    for (const CableValues &cv : model_.cables)
-      if (cv.decl == decl)
-        return &cv;
-    return nullptr;
-  }
+  const CableValues *cableOf(const CompartmentDecl *decl) const { return saltpan::cableOf(model_, decl); }
 
   // What a cable leaves out it takes from what it grows from: the first of the cable and its
   // ancestors that gives the item.
@@ -268,19 +264,15 @@ private:
     if (const CableValues *p = cableOf(shape.parentDecl)) {
       size_t at = p->pieces - 1;
       if (shape.at) {
-        auto x = value(*shape.at.at, "where '" + c.name + "' grows from");
-        if (!x)
-          return;
-        double along = shape.at.at->type.dim == Dimension::none() ? *x * p->length : *x;
-        if (along < 0 || along > p->length) {
+        auto joined = pieceAtDistance(*p, placeDistance(shape.at, *p));
+        if (!joined) {
           auto &d = diags_.error(shape.at.range, "cable '" + p->decl->name + "' is " +
                                                      shortestDecimal(tidyDecimal(p->length * 1e6)) + " um long; '" +
                                                      c.name + "' cannot grow from outside it");
-          DiagnosticEngine::note(d, {},
-                                 "a place along a cable is a distance from 0 to its length, or a fraction from 0 to 1");
+          DiagnosticEngine::note(d, {}, placeRangeNote);
           return;
         }
-        at = std::min(p->pieces - 1, static_cast<size_t>(along / p->pieceLength()));
+        at = *joined;
       }
       parent = p->first + at;
       const CompartmentValues &pp = model_.compartments[parent];

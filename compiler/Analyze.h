@@ -72,6 +72,10 @@ struct PumpValues {
   int netOutwardCharge = 0; // elementary charges moved outward per cycle
 };
 
+/// The note to a place outside its cable.
+inline constexpr const char *placeRangeNote =
+    "a place along a cable is a distance from 0 to its length, or a percentage from 0 % to 100 %";
+
 /// A cable's shape as computed, and where its pieces are in AnalyzedModel::compartments.
 struct CableValues {
   const ast::CompartmentDecl *decl = nullptr;

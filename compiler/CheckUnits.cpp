@@ -76,17 +76,21 @@ private:
           infer(*v);
       }
       for (auto &m : sw.measures)
-        for (ExpectArg &a : m->args)
+        for (ExpectArg &a : m->args) {
           if (a.value)
             infer(*a.value);
+          position(a.position, "a measured place");
+        }
       return;
     }
     case DeclKind::Expect: {
       // Arguments and values are only inferred here; Expect.cpp knows what each measure wants.
       auto &e = static_cast<ExpectDecl &>(d);
-      for (ExpectArg &a : e.args)
+      for (ExpectArg &a : e.args) {
         if (a.value)
           infer(*a.value);
+        position(a.position, "a measured place");
+      }
       for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
         if (x)
           infer(*x);
@@ -142,13 +146,16 @@ private:
       expect(i.amount.get(), dims::concentration(), "an impermeant concentration");
   }
 
-  // A distance along a cable, or a plain number: a fraction of its length.
+  // A distance along a cable, or a percentage of its length (a unit such as 'um/um' is no
+  // percentage, though as dimensionless).
   void position(Position &p, const std::string &what) {
     if (!p)
       return;
     ExprType t = infer(*p.at);
-    if (t.known && t.dim != dims::length() && t.dim != Dimension::none())
-      mismatch(p.at->range, what, "a distance along the cable (um) or a fraction of its length (0 to 1)", t.dim);
+    auto *n = dyn_cast<NumberExpr>(p.at.get());
+    bool percent = n && n->unitText == "%";
+    if (t.known && t.dim != dims::length() && !percent)
+      mismatch(p.at->range, what, "a distance along the cable (um) or a percentage of its length (%)", t.dim);
   }
 
   void compartment(CompartmentDecl &c) {

@@ -42,10 +42,16 @@ std::optional<Dimension> measuredDimension(const Compilation &c, const ast::Expe
 /// Whether the measure is taken on a protocol's run (spike_count, peak, ...).
 bool measuredOnRun(const ast::ExpectDecl &e);
 
-/// A measure's value arguments, evaluated once (SI): the threshold or the time.
+/// A measure's arguments, evaluated once: the threshold or the time (SI), the probes of its
+/// traces (a path, or at a place along a cable its piece's: "dend[44].V") and, for
+/// conduction_velocity, the path distance between its two places (m, piece centre to centre).
 struct MeasureArgs {
   double value = NAN;
+  std::vector<std::string> traces;
+  double distance = NAN;
 };
+/// The arguments of a measure that checkMeasure accepted.
+MeasureArgs measureArgs(Compilation &c, const ast::ExpectDecl &e);
 /// A run measure (not a snapshot comparison) of trace `t` recorded from `model`. Pure: safe
 /// to call from several threads.
 std::optional<double> traceMeasure(const ast::ExpectDecl &e, const MeasureArgs &args, const ir::Model &model,

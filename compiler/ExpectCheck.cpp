@@ -4,6 +4,7 @@
 
 #include "Diagnostics.h"
 #include "Pipeline.h"
+#include "Places.h"
 
 #include <string>
 
@@ -33,6 +34,8 @@ Dimension namedDimension(const std::string &name) {
     return dims::time();
   if (name == "resistance")
     return dims::voltage() / dims::current();
+  if (name == "velocity")
+    return dims::length() / dims::time();
   return Dimension::none();
 }
 
@@ -57,6 +60,12 @@ const std::vector<MeasureSpec> &measureSpecs() {
       {"firing_rate", true, {Arg::Trace, Arg::Threshold}, 1, "rate", "spikes per second, first to last spike"},
       {"first_spike", true, {Arg::Trace, Arg::Threshold}, 1, "time", "the time of the first spike"},
       {"last_interval", true, {Arg::Trace, Arg::Threshold}, 1, "time", "the last interspike interval"},
+      {"conduction_velocity",
+       true,
+       {Arg::Trace, Arg::Trace, Arg::Threshold},
+       2,
+       "velocity",
+       "path distance between two places over the difference of their first spikes"},
       {"peak", true, {Arg::Trace}, 1, "trace", "the largest recorded value"},
       {"minimum", true, {Arg::Trace}, 1, "trace", "the smallest recorded value"},
       {"mean", true, {Arg::Trace}, 1, "trace", "the time-weighted mean"},
@@ -106,7 +115,7 @@ std::optional<Dimension> measureDimension(const Compilation &c, const ExpectDecl
   const ir::Model *m = e.target ? loweredFor(c, e.target) : nullptr;
   if (!m || e.args.empty())
     return std::nullopt;
-  int r = m->findProbe(e.args[0].path);
+  int r = m->findProbe(probeAtPlace(c.model, e.args[0].path, e.args[0].position));
   if (r < 0)
     return std::nullopt;
   return unitDimension(m->probes[r].unit);
@@ -155,6 +164,8 @@ public:
     bool ok = true;
     for (size_t i = 0; i < e.args.size(); ++i)
       ok = argument(e, spec->args[i], e.args[i]) && ok;
+    if (ok && e.measure == std::string("conduction_velocity"))
+      ok = twoPlaces(e);
     if (!ok)
       return;
     auto dim = measureDimension(c_, e, *spec);
@@ -206,10 +217,10 @@ private:
       return true;
     }
     case Arg::Trace: {
-      if (!needPath("a recorded quantity such as soma.V"))
+      if (!needPath("a recorded quantity such as soma.V") || !place(a))
         return false;
       const ir::Model *m = loweredFor(c_, e.target);
-      if (m && m->findProbe(a.path) < 0) {
+      if (m && m->findProbe(probeAtPlace(c_.model, a.path, a.position)) < 0) {
         auto &d = diags_.error(a.range, "protocol '" + e.protocol + "' has nothing called '" + a.path + "' to measure");
         DiagnosticEngine::note(d, {}, "`saltpan check --emit ir FILE` lists the probes (recorded quantities)");
         return false;
@@ -224,6 +235,40 @@ private:
       return true;
     case Arg::Threshold: return valueArgument(a, dims::voltage(), "a threshold");
     case Arg::Time: return valueArgument(a, dims::time(), "a time");
+    }
+    return true;
+  }
+
+  // A quantity of a cable is measured at a place along it, as it is recorded.
+  bool place(const ExpectArg &a) {
+    const CableValues *cable = cableOfPath(c_.model, a.path);
+    if (!cable || a.position)
+      return !cable || !probeAtPlace(c_.model, a.path, a.position).empty() || placeOutside(a.position, *cable);
+    auto &d = diags_.error(a.range, "'" + cable->decl->name + "' is a cable: say where along it to measure");
+    DiagnosticEngine::note(d, {}, placeExample(a.path));
+    return false;
+  }
+  bool placeOutside(const Position &at, const CableValues &cable) {
+    auto &d = diags_.error(at.range, placeOutsideMessage(cable));
+    DiagnosticEngine::note(d, {}, placeRangeNote);
+    return false;
+  }
+
+  // conduction_velocity: two places joined along the tree, in different pieces.
+  bool twoPlaces(const ExpectDecl &e) {
+    auto a = compartmentIndex(c_.model, probeAtPlace(c_.model, e.args[0].path, e.args[0].position));
+    auto b = compartmentIndex(c_.model, probeAtPlace(c_.model, e.args[1].path, e.args[1].position));
+    if (!a || !b)
+      return true; // a probe of no compartment: nothing to say here beyond the probe checks
+    if (*a == *b) {
+      diags_.error(e.args[1].range, "both places fall in the same piece '" + c_.model.compartments[*a].name +
+                                        "': no distance between them to travel");
+      return false;
+    }
+    if (!pathDistance(c_.model, *a, *b)) {
+      diags_.error(e.args[1].range, "'" + c_.model.compartments[*a].name + "' and '" + c_.model.compartments[*b].name +
+                                        "' are not joined: no path between them");
+      return false;
     }
     return true;
   }
@@ -260,6 +305,22 @@ std::optional<Dimension> measuredDimension(const Compilation &c, const ExpectDec
 bool measuredOnRun(const ExpectDecl &e) {
   const MeasureSpec *spec = findMeasure(e.measure);
   return spec && spec->protocol;
+}
+
+MeasureArgs measureArgs(Compilation &c, const ExpectDecl &e) {
+  MeasureArgs args;
+  for (const ExpectArg &a : e.args) {
+    if (a.value && std::isnan(args.value))
+      args.value = c.evaluator.evaluate(*a.value, {}).value_or(NAN);
+    else if (!a.path.empty() && !a.isString)
+      args.traces.push_back(probeAtPlace(c.model, a.path, a.position));
+  }
+  if (e.measure == "conduction_velocity" && args.traces.size() == 2) {
+    auto a = compartmentIndex(c.model, args.traces[0]), b = compartmentIndex(c.model, args.traces[1]);
+    if (a && b)
+      args.distance = pathDistance(c.model, *a, *b).value_or(NAN);
+  }
+  return args;
 }
 
 bool checkMeasure(Compilation &c, const ExpectDecl &e, DiagnosticEngine &diags) {

@@ -187,12 +187,13 @@ private:
     }
     ir::Model model = *lowered;
     for (const ExpectDecl *e : expectations(c_.program))
-      if (e->target == p && !e->args.empty() && !e->args[0].path.empty()) {
-        int index = model.findProbe(e->args[0].path);
-        if (index >= 0 &&
-            std::find(model.protocol.record.begin(), model.protocol.record.end(), index) == model.protocol.record.end())
-          model.protocol.record.push_back(index);
-      }
+      if (e->target == p)
+        for (const std::string &trace : measureArgs(c_, *e).traces) {
+          int index = model.findProbe(trace);
+          if (index >= 0 && std::find(model.protocol.record.begin(), model.protocol.record.end(), index) ==
+                                model.protocol.record.end())
+            model.protocol.record.push_back(index);
+        }
     RunOutcome outcome = runModel(model, model.params, compile_);
     const SimulationFailure &failure = outcome.failure;
     r.trace = std::move(outcome.trace);
@@ -288,19 +289,17 @@ private:
       why = r.error;
       return std::nullopt;
     }
-    MeasureArgs args;
-    if (e.args.size() > 1 && e.args[1].value)
-      args.value = eval(*e.args[1].value);
+    MeasureArgs args = measureArgs(c_, e);
     if (name == "snapshot_max_error" || name == "snapshot_rms_error") {
       size_t column = 0;
-      while (column < r.trace.columns() && r.trace.names[column] != e.args[0].path)
+      while (column < r.trace.columns() && r.trace.names[column] != args.traces[0])
         ++column;
       if (column == r.trace.columns()) {
         why = "'" + e.args[0].path + "' was not recorded";
         return std::nullopt;
       }
       const ir::Model *m = loweredFor(c_, e.target);
-      double scale = m->probes[m->findProbe(e.args[0].path)].scale;
+      double scale = m->probes[m->findProbe(args.traces[0])].scale;
       return snapshotError(e, e.args[1].text, r.trace, column, scale, name == "snapshot_rms_error", why);
     }
     return traceMeasure(e, args, *loweredFor(c_, e.target), r.trace, why);
@@ -334,7 +333,20 @@ std::optional<double> restMeasure(const std::vector<rest::CompartmentRest> &anal
 
 std::optional<double> traceMeasure(const ExpectDecl &e, const MeasureArgs &args, const ir::Model &model, const Trace &t,
                                    std::string &why) {
-  return measures::ofTrace(e.measure, e.args[0].path, args.value, model, t, why);
+  if (e.measure == "conduction_velocity") {
+    if (args.traces.size() != 2)
+      return std::nullopt;
+    std::string whyFirst, whySecond;
+    auto first = measures::ofTrace("first_spike", args.traces[0], args.value, model, t, whyFirst);
+    auto second = measures::ofTrace("first_spike", args.traces[1], args.value, model, t, whySecond);
+    if (!first || !second) {
+      why = !first ? "no spike at '" + args.traces[0] + "' (" + whyFirst + ")"
+                   : "no spike arrives at '" + args.traces[1] + "' (" + whySecond + ")";
+      return std::nullopt;
+    }
+    return measures::conductionVelocity(args.distance, *first, *second, why);
+  }
+  return measures::ofTrace(e.measure, args.traces.empty() ? "" : args.traces[0], args.value, model, t, why);
 }
 
 std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &compile) {

@@ -9,6 +9,7 @@
 #include "Interpret.h"
 #include "Nearest.h"
 #include "Physics.h"
+#include "Places.h"
 
 #include <algorithm>
 #include <cmath>
@@ -414,23 +415,16 @@ private:
     return pieces_[&at] = findPiece(at, decl);
   }
   int findPiece(const Position &at, const CompartmentDecl &decl) {
-    const CableValues *cable = nullptr;
-    for (const CableValues &cv : model_.cables)
-      if (cv.decl == &decl)
-        cable = &cv;
-    auto x = time(at.at.get());
-    if (!cable || !x)
+    const CableValues *cable = cableOf(model_, &decl);
+    if (!cable)
       return -1;
-    double along = at.at->type.dim == Dimension::none() ? *x * cable->length : *x;
-    if (!(along >= 0 && along <= cable->length * (1 + 1e-12))) {
-      fail(at.range, "cable '" + decl.name + "' is " + shortestDecimal(tidyDecimal(cable->length * 1e6)) +
-                         " um long; this place is outside it");
-      DiagnosticEngine::note(*diags_.last(), {},
-                             "a place along a cable is a distance from 0 to its length, or a "
-                             "fraction from 0 to 1");
+    auto piece = pieceAtDistance(*cable, placeDistance(at, *cable));
+    if (!piece) {
+      fail(at.range, placeOutsideMessage(*cable));
+      DiagnosticEngine::note(*diags_.last(), {}, placeRangeNote);
       return -1;
     }
-    return static_cast<int>(std::min(cable->pieces - 1, static_cast<size_t>(along / cable->pieceLength())));
+    return static_cast<int>(*piece);
   }
   // Whether a stimulus at `at` acts on `c`: a compartment as a whole, or the piece at the place.
   bool placed(const Position &at, const CompartmentValues &c) {
@@ -795,8 +789,7 @@ private:
       if (r.compartment && cv.decl == r.compartment) {
         if (!r.position) {
           fail(r.range, "'" + head + "' is a cable: say where along it to record");
-          DiagnosticEngine::note(*diags_.last(), {},
-                                 "write e.g. '" + r.path + " at 100 um' or '" + r.path + " at 0.5'");
+          DiagnosticEngine::note(*diags_.last(), {}, placeExample(r.path));
           return "";
         }
         int piece = pieceAt(r.position, *cv.decl);

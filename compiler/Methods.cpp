@@ -1112,6 +1112,8 @@ std::string latexExpr(const Expr &e) { return render(e).text; }
 std::string latexUnit(const std::string &unitText) {
   if (unitText == "degC" || unitText == "\u00B0C")
     return "{}^{\\circ}\\mathrm{C}";
+  if (unitText == "%") // a place along a cable; a bare % would start a TeX comment
+    return "\\%";
   std::vector<std::pair<std::string, std::string>> factors; // word, exponent
   int sign = 1;
   size_t i = 0;

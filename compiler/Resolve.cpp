@@ -278,6 +278,7 @@ private:
         // checkExpectations knows, and it reports a name of the wrong kind or none.
         if (!a.path.empty())
           a.target = lookup(a.path);
+        position(a.position, dyn_cast<CompartmentDecl>(lookup(a.path.substr(0, a.path.find('.')))), plain);
       }
       for (Expr *x : {e.value.get(), e.tolerance.get(), e.high.get()})
         expr(x, plain);

@@ -224,8 +224,7 @@ SweepPlan planSweep(Compilation &c, const SweepDecl &s) {
     SweepMeasure sm;
     sm.decl = m.get();
     sm.unit = displayUnit(measuredDimension(c, *m).value_or(Dimension::none()));
-    if (m->args.size() > 1 && m->args[1].value)
-      sm.args.value = c.evaluator.evaluate(*m->args[1].value, {}).value_or(NAN);
+    sm.args = measureArgs(c, *m);
     if (m->target) {
       auto it = std::find(plan.protocols.begin(), plan.protocols.end(), m->target);
       sm.protocol = static_cast<int>(it - plan.protocols.begin());
@@ -242,7 +241,7 @@ std::vector<std::string> recordedBy(const SweepPlan &plan, const ProtocolDecl *p
   std::vector<std::string> paths;
   for (const SweepMeasure &m : plan.measures)
     if (m.decl->target == protocol)
-      paths.push_back(m.decl->args[0].path);
+      paths.insert(paths.end(), m.args.traces.begin(), m.args.traces.end());
   return paths;
 }
 

@@ -105,7 +105,7 @@ stoichTerm : NUMBER IDENT dir=(IN | OUT) ;
 
 // expect [PROTOCOL:] MEASURE(ARGS) CHECK [source "..."]
 expectDecl : EXPECT (IDENT ':')? word '(' (expectArg (',' expectArg)*)? ')' expectCheck (SOURCE STRING)? ;
-expectArg : STRING | recordTarget | expr ;
+expectArg : STRING | recordTarget position? | expr ;
 expectCheck
   : '==' expr (WITHIN expr RELATIVE?)?            # equalCheck
   | IN expr TO expr                               # rangeCheck
@@ -139,9 +139,10 @@ injection
   | expr FROM expr TO expr                                # stepInjection
   ;
 recordTarget : word ('.' word)* ;
-// Along a cable: a distance from its start, or a plain number, a fraction of its length. A
-// quantity, not an expression: what follows it (an amplitude) may start with a sign.
-position : AT quantity ;
+// Along a cable: a distance from its start (`at 450 um`) or a percentage of its length
+// (`at 90 %`). A number and a unit it must have, never an expression: what follows a place (an
+// amplitude) is an expression, and an optional unit would let its first name be read as one.
+position : AT NUMBER (unit | PERCENT) ;
 recorded : recordTarget position? ;
 synapseShape
   : RISE expr DECAY expr                          # doubleExponential
@@ -269,6 +270,7 @@ UNIT_MUL : [*\u00B7] UNIT_WORD ;
 UNIT_POW : '^' '-'? [0-9]+ ('.' [0-9]+)? ;
 fragment UNIT_WORD : LETTER (LETTER | [0-9])* ('^' '-'? [0-9]+ ('.' [0-9]+)?)? ;
 SLASH : '/' ;
+PERCENT : '%' ;
 DOT : [\u00B7] ;
 NUMBER : DIGITS ('.' DIGITS?)? EXPONENT? | '.' DIGITS EXPONENT? ;
 fragment DIGITS : [0-9]+ ;

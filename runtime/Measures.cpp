@@ -42,6 +42,18 @@ double mean(const std::vector<double> &time, const std::vector<double> &values) 
   return area / (time.back() - time.front());
 }
 
+std::optional<double> conductionVelocity(double distance, double first, double second, std::string &why) {
+  if (!std::isfinite(distance)) {
+    why = "no path distance between the two places";
+    return std::nullopt;
+  }
+  if (second == first) {
+    why = "the spike reaches both places at the same time";
+    return std::nullopt;
+  }
+  return distance / (second - first);
+}
+
 std::optional<double> ofTrace(const std::string &name, const std::string &recorded, double argument,
                               const ir::Model &model, const Trace &t, std::string &why) {
   size_t column = 0;

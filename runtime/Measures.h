@@ -19,6 +19,11 @@ double minimum(const std::vector<double> &values);
 /// Time-weighted mean (trapezoidal) over the whole trace.
 double mean(const std::vector<double> &time, const std::vector<double> &values);
 
+/// Conduction velocity (m/s) over `distance` (m) from a spike at `first` to one at `second` (s):
+/// positive when the spike reaches the second place later. nullopt with `why` when both
+/// arrive at once or the distance is unknown.
+std::optional<double> conductionVelocity(double distance, double first, double second, std::string &why);
+
 /// The run measure `measure` (spike_count, firing_rate, first_spike, last_interval, peak,
 /// minimum, mean, final or value) of the quantity `recorded` in trace `t` of `model`, in SI;
 /// `argument` is the threshold or the time (SI; NaN when not given). nullopt with `why` when

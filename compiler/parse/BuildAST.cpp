@@ -718,15 +718,17 @@ private:
     d.name = "";
     d.nameRange = d.measureRange;
     for (P::ExpectArgContext *a : args) {
-      // expectArg : STRING | recordTarget | expr ;
+      // expectArg : STRING | recordTarget position? | expr ;
       ExpectArg arg;
       arg.range = range(a);
       if (a->STRING()) {
         arg.isString = true;
         arg.text = unquote(a->STRING()->getText());
-      } else if (a->recordTarget())
+      } else if (a->recordTarget()) {
         arg.path = a->recordTarget()->getText();
-      else
+        if (a->position())
+          arg.position = position(a->position());
+      } else
         arg.value = build(a->expr());
       d.args.push_back(std::move(arg));
     }
@@ -956,8 +958,18 @@ private:
     return d;
   }
 
-  // position : AT quantity ;
-  Position position(P::PositionContext *ctx) { return {build(ctx->quantity()), range(ctx->quantity())}; }
+  // position : AT NUMBER (unit | PERCENT) ;
+  Position position(P::PositionContext *ctx) {
+    SourceRange r{range(ctx->NUMBER()).begin, range(ctx->getStop()).end};
+    if (!ctx->PERCENT())
+      return {quantity(ctx->NUMBER(), ctx->unit(), r), r};
+    // A percentage of the cable's length: a plain fraction from here on.
+    auto e = quantity(ctx->NUMBER(), nullptr, r);
+    e->value = e->written / 100;
+    e->unitText = "%";
+    e->unitRange = range(ctx->PERCENT());
+    return {std::move(e), r};
+  }
 
   // ---- expressions ----
 
@@ -1183,17 +1195,18 @@ private:
   }
 
   // quantity : NUMBER unit? ;
+  ExprPtr build(P::QuantityContext *ctx) { return quantity(ctx->NUMBER(), ctx->unit(), range(ctx)); }
+
   // unit : (IDENT UNIT_POW? | UNIT_DIV) (UNIT_MUL | UNIT_DIV)* ;
-  ExprPtr build(P::QuantityContext *ctx) {
-    auto e = std::make_unique<NumberExpr>(range(ctx));
+  std::unique_ptr<NumberExpr> quantity(antlr4::tree::TerminalNode *number, P::UnitContext *u, SourceRange r) {
+    auto e = std::make_unique<NumberExpr>(r);
     size_t errors = diags_.errorCount();
-    e->written = parseNumber(ctx->NUMBER());
+    e->written = parseNumber(number);
     e->value = e->written;
     if (diags_.errorCount() == errors) // a number too large to represent has no spelling of its value
-      e->spelling = ctx->NUMBER()->getText();
-    if (!ctx->unit())
+      e->spelling = number->getText();
+    if (!u)
       return e;
-    P::UnitContext *u = ctx->unit();
     e->unitText = u->getText();
     e->unitRange = range(u);
     Unit unit;

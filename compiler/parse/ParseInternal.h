@@ -31,7 +31,7 @@ private:
   DiagnosticEngine &diags_;
   size_t count_ = 0;
   uint32_t lastOffset_ = UINT32_MAX; // where the previous syntax error was reported
-  uint32_t keywordNameLine_ = 0;      // the line of a keyword used as a name, if any
+  uint32_t noiseLine_ = 0;           // a line whose rest is noise after its first error (a keyword used as a name)
 };
 
 /// Readable name of a token type: "'model'", "a name", "a number".

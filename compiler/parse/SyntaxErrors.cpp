@@ -137,12 +137,19 @@ void SyntaxErrorListener::syntaxError(antlr4::Recognizer *recognizer, antlr4::To
     else
       message = "unexpected " + quoted(offending) + (expected.empty() ? "" : "; expected " + expected);
     bool keyword = offending && isKeyword(vocabulary, offending->getType());
-    if (keyword && expected.find("a name") != std::string::npos) {
+    bool inPlace =
+        parser && parser->getContext() && parser->getContext()->getRuleIndex() == grammar::SaltpanParser::RulePosition;
+    if (inPlace && !failedPredicate) {
+      message = "a place along a cable needs its unit: a length ('450 um') or a percentage of the cable's length "
+                "('50 %')";
+      noiseLine_ = range.begin.line;
+    } else if (keyword && expected.find("a name") != std::string::npos) {
       message += " ('" + offending->getText() + "' is a keyword and cannot be used as a name)";
-      keywordNameLine_ = range.begin.line;
-    } else if (keywordNameLine_ == range.begin.line && range.begin.offset > lastOffset_) {
-      // Recovery may read the keyword as the start of its own construct ('sweep' as a sweep):
-      // what follows on that line is noise after the one real mistake.
+      noiseLine_ = range.begin.line;
+    } else if (noiseLine_ == range.begin.line && range.begin.offset > lastOffset_) {
+      // Recovery may read the keyword as the start of its own construct ('sweep' as a sweep), or
+      // the amplitude after a place as its unit: what follows on that line is noise after the
+      // one real mistake.
       --count_;
       return;
     }

@@ -2,8 +2,8 @@
 # cables.sh - a branched cell (a soma, a cable grown from it, a branch grown from the cable's
 # middle) through the commands: check, show (text and JSON), methods, run (interpreter pinned, the JIT
 # within rounding of it), build (the executable equals run), the charge balance of a tree with
-# dynamic ions, and rest, which solves the tree as one system (rest_tree.sh pins its output).
-# Goldens in tests/golden/cables/, refreshed with SALTPAN_UPDATE_GOLDEN=1.
+# dynamic ions, rest, which solves the tree as one system (rest_tree.sh pins its output), and
+# conduction_velocity on an axon. Goldens in tests/golden/cables/, refreshed with SALTPAN_UPDATE_GOLDEN=1.
 source "$(dirname "$0")/lib/common.bash"
 
 GOLDEN=$SRC/tests/golden/cables
@@ -112,11 +112,46 @@ pump Pump { cycle 3 Na out, 2 K in  activity = hill([Na]in, 10 mM, 1.5) }
 protocol feed {
   method rk4 step 10 us
   duration 20 ms
-  inject dend at 0.9 0.02 nA from 1 ms to 15 ms
-  record soma.V, dend.V at 0.9 every 1 ms
+  inject dend at 90 % 0.02 nA from 1 ms to 15 ms
+  record soma.V, dend.V at 90 % every 1 ms
 }
 SPEC
 expect_rc ions 0 run "$TMP/ions.saltpan" -o "$TMP/ions.csv"
 expect_grep ions err 'charge balance: membrane charge and dynamic ion charge agree to [0-9.]+e-(1[0-9]|[2-9][0-9]) \(relative\)'
+
+
+# conduction_velocity: the path distance between the two places' piece centres (2.05 mm and
+# 8.05 mm: pieces of 100 um) over the difference of the first upward crossings of 0 mV, which
+# are computed here again from the recorded trace.
+AXON=$GOLDEN/axon_velocity.saltpan
+expect_rc velocity 0 test --json "$TMP/velocity.json" "$AXON"
+expect_rc velocity-run 0 run "$AXON" -o "$TMP/axon.csv"
+"$PY" - "$TMP/velocity.json" "$TMP/axon.csv" <<'PY' || fail "conduction_velocity is not the distance over the delay"
+import csv, json, sys
+measured = json.load(open(sys.argv[1]))["expectations"][0]["measured_si"]
+rows = [list(map(float, r)) for r in list(csv.reader(open(sys.argv[2])))[1:]]
+def first_crossing(col):
+    for a, b in zip(rows, rows[1:]):
+        if a[col] < 0 <= b[col]:
+            return (a[0] + (b[0] - a[0]) * (0 - a[col]) / (b[col] - a[col])) * 1e-3
+expected = 6e-3 / (first_crossing(2) - first_crossing(1))
+assert 1.0 < expected < 2.0, expected
+assert abs(measured - expected) <= 1e-6 * expected, (measured, expected)
+PY
+# Without a stimulus no spike arrives: the expectation fails and says where none came.
+sed 's/20 nA from 1 ms/0 nA from 1 ms/' "$AXON" >"$TMP/quiet.saltpan"
+expect_rc quiet 1 test "$TMP/quiet.saltpan"
+expect_grep quiet out "measured no spike at 'axon\[20\]\.V' \(no spike\)"
+
+# A sweep measures a cable at a place too, in the unit of the probe there.
+sed 's/  measure kick: peak(soma.V)/  measure kick: peak(soma.V)\n  measure kick: peak(dend.V at 450 um)/' "$SWEEP" >"$TMP/placed.saltpan"
+expect_rc placed 0 sweep --sweep g --progress none -o "$TMP/placed.csv" "$TMP/placed.saltpan"
+head -1 "$TMP/placed.csv" | grep -q ',kick: peak(dend.V at 450 um) (mV),' ||
+  fail "a sweep's measure at a place has no unit: $(head -1 "$TMP/placed.csv")"
+"$PY" - "$TMP/placed.csv" <<'PY' || fail "a sweep's measure at a place is not the potential of the far dendrite in mV"
+import csv, sys
+rows = list(csv.DictReader(open(sys.argv[1])))
+assert all(-65 < float(r["kick: peak(dend.V at 450 um) (mV)"]) < -20 for r in rows), rows
+PY
 
 finish

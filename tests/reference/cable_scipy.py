@@ -168,7 +168,7 @@ protocol kick {
   duration 50 ms
   method crank_nicolson step STEP
   inject dend at 455 um 0.1 nA from 10 ms to 40 ms
-  record soma.V, dend.V at 455 um, dend.V at 0.51, branch.V at 0.95 every 1 ms
+  record soma.V, dend.V at 455 um, dend.V at 51 %, branch.V at 95 % every 1 ms
 }
 """
 
@@ -222,8 +222,8 @@ cable axon {
 protocol kick {
   method crank_nicolson step STEP
   duration 6 ms
-  inject axon at 0.01 20000 nA from 0.5 ms to 0.7 ms
-  record axon.V at 0.25, axon.V at 0.75 every 0.01 ms
+  inject axon at 1 % 20000 nA from 0.5 ms to 0.7 ms
+  record axon.V at 25 %, axon.V at 75 % every 0.01 ms
 }
 """
 PHI = 3.0 ** ((18.5 - 6.3) / 10.0)  # HH 1952 p. 523: Q10 3 about 6.3 degC

@@ -126,6 +126,9 @@ TEST_CASE("canonical layout: small pinned cases", "[format]") {
         "pump P { activity = hill([Na]in, 10 mM, 1) }\n");
   CHECK(fmt("protocol p { record soma . V , soma.m every 1 ms duration 1 ms }\n") ==
         "protocol p {\n  record soma.V, soma.m every 1 ms\n  duration 1 ms\n}\n");
+  // Places along a cable: a number and its unit or '%', each a word of its own.
+  CHECK(fmt("protocol p { record d.V at 450um, d.V at 50%\n inject d at 90 %0.1 nA from 0 ms to 1 ms }\n") ==
+        "protocol p {\n  record d.V at 450 um, d.V at 50 %\n  inject d at 90 % 0.1 nA from 0 ms to 1 ms\n}\n");
   // A division written without spaces stays a division by that name, glued.
   CHECK(fmt("fn f(x: 1, t: ms) -> 1/ms = x /t\n") == "fn f(x: 1, t: ms) -> 1/ms = x/t\n");
   // Empty blocks; several one-line declarations of one kind stay together.

@@ -135,6 +135,7 @@ TEST_CASE("methods: units as LaTeX", "[methods]") {
   CHECK(latexUnit("mV") == "\\mathrm{mV}");
   CHECK(latexUnit("/ms") == "\\mathrm{ms^{-1}}");
   CHECK(latexUnit("uA/cm2") == "\\mathrm{\\mu A\\,cm^{-2}}");
+  CHECK(latexUnit("%") == "\\%"); // a place as a percentage of its cable's length
   CHECK(latexUnit("\u00B5m") == "\\mathrm{\\mu m}");
   CHECK(latexUnit("mol/cm2/s") == "\\mathrm{mol\\,cm^{-2}\\,s^{-1}}");
   CHECK(latexUnit("J/mol/K") == "\\mathrm{J\\,mol^{-1}\\,K^{-1}}");

@@ -29,8 +29,8 @@ ir::Model lowerTree(const std::string &method) {
                      "  axial resistivity 100 ohm*cm\n  pieces 12\n}\n"
                      "protocol p {\n  method ";
   text += method; // (one + chain of literals and a string trips GCC 12's -Wrestrict)
-  text += "\n  duration 2 ms\n  inject dend at 0.5 0.05 nA from 0.5 ms to 1 ms\n"
-          "  record soma.V, dend.V at 1 every 0.1 ms\n}\n";
+  text += "\n  duration 2 ms\n  inject dend at 50 % 0.05 nA from 0.5 ms to 1 ms\n"
+          "  record soma.V, dend.V at 100 % every 0.1 ms\n}\n";
   auto c = testing::compile(text);
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);

@@ -80,7 +80,7 @@ TEST_CASE("resolve binds a record target to the compartment or cable its path st
                      "cable d {\n  grows from c\n  length 100 um\n  diameter 1 um\n"
                      "  axial resistivity 100 ohm*cm\n  pieces 4\n}\n"
                      "channel L { reversal -60 mV }\n"
-                     "protocol p {\n  duration 1 ms\n  record c.V, d.V at 0.5, L.x\n}\n";
+                     "protocol p {\n  duration 1 ms\n  record c.V, d.V at 50 %, L.x\n}\n";
   auto c = compile(text);
   auto all = protocols(c->program);
   REQUIRE(all.size() == 1);

@@ -229,7 +229,7 @@ TEST_CASE("a tree conserves charge as a whole, not piece by piece", "[simulate][
   // membrane and ions do not balance; summed over the tree (weighed by area) the injected charge
   // is the capacitive charge plus the ionic charge that left. RK4 keeps this linear invariant.
   std::string record = "soma.V, soma.Na, soma.K";
-  for (const char *place : {"0.1", "0.3", "0.5", "0.7", "0.9"})
+  for (const char *place : {"10 %", "30 %", "50 %", "70 %", "90 %"})
     for (const char *q : {"V", "Na", "K"})
       record += std::string(", dend.") + q + " at " + place;
   std::string spec = "use std.ions\nuse std.math\ntemperature 37 degC\n"
@@ -242,7 +242,7 @@ TEST_CASE("a tree conserves charge as a whole, not piece by piece", "[simulate][
                      "channel NaLeak { carries Na }\nchannel KLeak { carries K }\n"
                      "pump Pump { cycle 3 Na out, 2 K in  activity = hill([Na]in, 10 mM, 1.5) }\n"
                      "protocol feed {\n  method rk4 step 10 us\n  duration 20 ms\n"
-                     "  inject dend at 0.9 0.02 nA from 1 ms to 15 ms\n"
+                     "  inject dend at 90 % 0.02 nA from 1 ms to 15 ms\n"
                      "  record " +
                      record + " every 20 ms\n}\n";
   Run r = simulateSpec(spec);

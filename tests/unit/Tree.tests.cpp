@@ -3,6 +3,7 @@
 // cable theory (steady state), stepped by backward Euler, Crank-Nicolson and RK4.
 #include "Tree.h"
 #include "KernelPlan.h"
+#include "Places.h"
 #include "Run.h"
 #include "TestSupport.h"
 
@@ -213,13 +214,13 @@ TEST_CASE("a cable written in the language settles to the closed form of cable t
   // cable (it grows from nothing), a current into its first piece, V recorded at both ends.
   // V(x) = I0 r_a lambda cosh((L - x) / lambda) / sinh(L / lambda) (Rall 1969; Jack, Noble &
   // Tsien 1975, ch. 3), lambda = 1 mm, L = 0.5 mm.
-  auto c =
-      testing::compile("temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
-                       "cable c {\n  length 500 um\n  diameter 2 um\n  axial resistivity 100 ohm*cm\n"
-                       "  pieces 100\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n"
-                       "  membrane { Leak 0.05 mS/cm2 }\n}\n"
-                       "protocol hold {\n  method backward_euler step 0.1 ms\n  duration 400 ms\n"
-                       "  inject c at 0 1 uA/cm2 from 0 ms to 1000 ms\n  record c.V at 0, c.V at 1 every 400 ms\n}\n");
+  auto c = testing::compile(
+      "temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
+      "cable c {\n  length 500 um\n  diameter 2 um\n  axial resistivity 100 ohm*cm\n"
+      "  pieces 100\n  capacitance 1 uF/cm2\n  initial V = -65 mV\n"
+      "  membrane { Leak 0.05 mS/cm2 }\n}\n"
+      "protocol hold {\n  method backward_euler step 0.1 ms\n  duration 400 ms\n"
+      "  inject c at 0 % 1 uA/cm2 from 0 ms to 1000 ms\n  record c.V at 0 %, c.V at 100 % every 400 ms\n}\n");
   INFO(testing::allDiagnostics(*c));
   REQUIRE(c->checked);
   const ir::Model &m = c->lowered.begin()->second;
@@ -236,4 +237,23 @@ TEST_CASE("a cable written in the language settles to the closed form of cable t
   double v0 = (t.values[t.values.size() - 2] + 65) * 1e-3, vEnd = (t.values.back() + 65) * 1e-3;
   CHECK_THAT(v0 / injected, Catch::Matchers::WithinRel(closedForm(0.5 * piece), 5e-6));
   CHECK_THAT(vEnd / injected, Catch::Matchers::WithinRel(closedForm(length - 0.5 * piece), 5e-6));
+}
+
+TEST_CASE("path distance along a tree: piece centre to centre, through the piece a branch grows from", "[tree]") {
+  auto c = testing::compile("temperature 20 degC\nchannel Leak { reversal -65 mV }\n"
+                            "compartment soma {\n  sphere diameter 20 um\n  capacitance 1 uF/cm2\n"
+                            "  initial V = -65 mV\n  membrane { Leak 0.05 mS/cm2 }\n}\n"
+                            "cable dend { grows from soma length 500 um diameter 2 um axial resistivity 100 ohm*cm "
+                            "pieces 50 }\n"
+                            "cable branch { grows from dend at 250 um length 100 um diameter 1 um axial resistivity "
+                            "100 ohm*cm pieces 10 }\n");
+  INFO(testing::allDiagnostics(*c));
+  REQUIRE(c->checked);
+  auto index = [&](const char *probe) { return compartmentIndex(c->model, probe).value(); };
+  auto um = [&](const char *a, const char *b) { return pathDistance(c->model, index(a), index(b)).value() * 1e6; };
+  // dend[44] down to dend[25] (19 junctions of 10 um), across to branch[0] (5 + 5 um), out to branch[9].
+  CHECK_THAT(um("dend[44].V", "branch[9].V"), Catch::Matchers::WithinAbs(190 + 10 + 90, 1e-9));
+  CHECK_THAT(um("branch[9].V", "dend[44].V"), Catch::Matchers::WithinAbs(290, 1e-9));
+  CHECK_THAT(um("soma.V", "dend[0].V"), Catch::Matchers::WithinAbs(5, 1e-9)); // a compartment counts nothing
+  CHECK(um("dend[3].V", "dend[3].V") == 0);
 }
