@@ -11,6 +11,8 @@ using namespace ast;
 
 namespace {
 
+constexpr size_t largestRosenbrockTree = 400;
+
 class ProtocolChecker {
 public:
   ProtocolChecker(const ir::Model &lowered, Evaluator &evaluator, DiagnosticEngine &diags)
@@ -27,6 +29,16 @@ public:
     if (exponentialEuler && !lowered_.junctions.empty()) {
       auto &d = diags_.error(p.methodRange,
                              "exponential_euler steps each compartment alone; this cell's compartments are joined");
+      DiagnosticEngine::note(d, {}, "use crank_nicolson (the default for joined compartments) or backward_euler");
+    }
+    // Rosenbrock factors the dense Jacobian of every state at each step: O(n^3), minutes a step
+    // for a large tree, where the implicit tree methods take O(n).
+    if (p.method == IntegrationMethod::Rosenbrock && !lowered_.junctions.empty() &&
+        lowered_.stateNames.size() > largestRosenbrockTree) {
+      auto &d = diags_.error(p.methodRange, "rosenbrock solves a dense system of all " +
+                                                std::to_string(lowered_.stateNames.size()) +
+                                                " states at every step; a tree may have at most " +
+                                                std::to_string(largestRosenbrockTree) + " for it");
       DiagnosticEngine::note(d, {}, "use crank_nicolson (the default for joined compartments) or backward_euler");
     }
     if (p.step)
