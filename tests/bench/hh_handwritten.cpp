@@ -4,6 +4,8 @@
 //
 // Equations and parameters: Hodgkin & Huxley 1952 in the modern convention, 6.3 degC
 // (see docs/references.md); units mV, ms, uA/cm2, mS/cm2, uF/cm2.
+#include "HH1952Rates.h"
+
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -11,7 +13,7 @@
 
 namespace {
 
-double exprel(double x) { return x == 0 ? 1.0 : std::expm1(x) / x; }
+using namespace hh1952;
 
 struct State {
   double v, m, h, n;
@@ -23,12 +25,6 @@ int main(int argc, char **argv) {
   double durationMs = argc > 1 ? std::atof(argv[1]) : 1000;
   double dt = argc > 2 ? std::atof(argv[2]) : 0.01; // ms
   const double gNa = 120, gK = 36, gL = 0.3, eNa = 50, eK = -77, eL = -54.387, c = 1, stim = 10;
-  auto alphaM = [](double v) { return 1.0 / exprel(-(v + 40) / 10); };
-  auto betaM = [](double v) { return 4 * std::exp(-(v + 65) / 18); };
-  auto alphaH = [](double v) { return 0.07 * std::exp(-(v + 65) / 20); };
-  auto betaH = [](double v) { return 1 / (1 + std::exp(-(v + 35) / 10)); };
-  auto alphaN = [](double v) { return 0.1 / exprel(-(v + 55) / 10); };
-  auto betaN = [](double v) { return 0.125 * std::exp(-(v + 65) / 80); };
   State s{-65, 0, 0, 0};
   s.m = alphaM(s.v) / (alphaM(s.v) + betaM(s.v));
   s.h = alphaH(s.v) / (alphaH(s.v) + betaH(s.v));

@@ -5,6 +5,8 @@
 // 0.1 ms and spikes counted as upward crossings of 0 mV between samples. One thread. Not a test.
 //
 // Equations and parameters: Hodgkin & Huxley 1952 in the modern convention, 6.3 degC.
+#include "HH1952Rates.h"
+
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -12,16 +14,10 @@
 
 namespace {
 
-double exprel(double x) { return x == 0 ? 1.0 : std::expm1(x) / x; }
+using namespace hh1952;
 
 int spikeCount(double gNa, double gK) {
   const double gL = 0.3, eNa = 50, eK = -77, eL = -54.387, c = 1, stim = 10, dt = 0.01;
-  auto alphaM = [](double v) { return 1.0 / exprel(-(v + 40) / 10); };
-  auto betaM = [](double v) { return 4 * std::exp(-(v + 65) / 18); };
-  auto alphaH = [](double v) { return 0.07 * std::exp(-(v + 65) / 20); };
-  auto betaH = [](double v) { return 1 / (1 + std::exp(-(v + 35) / 10)); };
-  auto alphaN = [](double v) { return 0.1 / exprel(-(v + 55) / 10); };
-  auto betaN = [](double v) { return 0.125 * std::exp(-(v + 65) / 80); };
   double v = -65;
   double m = alphaM(v) / (alphaM(v) + betaM(v)), h = alphaH(v) / (alphaH(v) + betaH(v)),
          n = alphaN(v) / (alphaN(v) + betaN(v));

@@ -7,6 +7,8 @@
 // Equations: Hodgkin & Huxley 1952 in the modern convention with Q10 = 3 from 6.3 degC; cable
 // geometry of Part III (diameter 476 um, 35.4 ohm*cm, 18.5 degC; from memory). Units mV, ms,
 // uA/cm2, mS/cm2, uF/cm2, cm.
+#include "HH1952Rates.h"
+
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -15,7 +17,7 @@
 
 namespace {
 
-double exprel(double x) { return x == 0 ? 1.0 : std::expm1(x) / x; }
+using namespace hh1952;
 
 } // namespace
 
@@ -25,12 +27,6 @@ int main(int argc, char **argv) {
   double dt = argc > 3 ? std::atof(argv[3]) : 0.025; // ms
   const double gNa = 120, gK = 36, gL = 0.3, eNa = 50, eK = -77, eL = -54.387, cm = 1;
   const double q10 = std::pow(3.0, (18.5 - 6.3) / 10), diameter = 476e-4, length = 6, ri = 35.4;
-  auto alphaM = [](double v) { return 1.0 / exprel(-(v + 40) / 10); };
-  auto betaM = [](double v) { return 4 * std::exp(-(v + 65) / 18); };
-  auto alphaH = [](double v) { return 0.07 * std::exp(-(v + 65) / 20); };
-  auto betaH = [](double v) { return 1 / (1 + std::exp(-(v + 35) / 10)); };
-  auto alphaN = [](double v) { return 0.1 / exprel(-(v + 55) / 10); };
-  auto betaN = [](double v) { return 0.125 * std::exp(-(v + 65) / 80); };
 
   // Compartment 0 is the lumped start (a sphere as wide as the axon), 1..N the pieces.
   size_t n = static_cast<size_t>(pieces) + 1;
