@@ -4,6 +4,7 @@
 
 #include "Measures.h"
 #include "Pipeline.h"
+#include "Places.h"
 #include "Rest.h"
 
 #include <cmath>
@@ -148,7 +149,7 @@ private:
       return static_cast<double>(it->second.netOutwardCharge);
     }
     if (name == "rest" || name == "input_resistance")
-      return restValue(e.args[0].path, name == "input_resistance", why);
+      return restValue(probeAtPlace(c_.model, e.args[0].path, e.args[0].position), name == "input_resistance", why);
     return protocolValue(e, name, why);
   }
 
@@ -160,7 +161,7 @@ private:
         rest_.emplace();
       } else {
         try {
-          rest_ = rest::findSteadyStates(*model, &c_.model);
+          rest_ = rest::steadyStatesOfEach(*model, &c_.model);
         } catch (std::exception &ex) {
           restError_ = ex.what();
           rest_.emplace();

@@ -131,6 +131,12 @@ struct TreeRest {
 std::vector<TreeRest> findTreeSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                            const Options &options = {});
 
+/// Each compartment's steady states for the `rest(...)` and `input_resistance(...)` measures:
+/// findSteadyStates for lone compartments, each piece's share of its tree's steady states
+/// (findTreeSteadyStates) when compartments are joined.
+std::vector<CompartmentRest> steadyStatesOfEach(const ir::Model &model, const AnalyzedModel *analysis,
+                                                const Options &options = {});
+
 /// The eigenvalues of the n x n real matrix `a` (row-major): balancing, reduction to upper
 /// Hessenberg form, then the shifted (Francis double-shift) QR iteration. Throws
 /// std::runtime_error when the iteration does not converge.

@@ -423,3 +423,36 @@ std::vector<TreeRest> findTreeSteadyStates(const ir::Model &model, const Analyze
 }
 
 } // namespace saltpan::rest
+
+namespace saltpan::rest {
+
+std::vector<CompartmentRest> steadyStatesOfEach(const ir::Model &model, const AnalyzedModel *analysis,
+                                                const Options &o) {
+  if (model.junctions.empty())
+    return findSteadyStates(model, analysis, o);
+  std::vector<CompartmentRest> result;
+  for (const TreeRest &tree : findTreeSteadyStates(model, analysis, o))
+    for (size_t k = 0; k < tree.compartments.size(); ++k) {
+      CompartmentRest cr;
+      cr.name = model.compartments[tree.compartments[k]].name;
+      for (const TreeSteadyState &s : tree.steadyStates) {
+        const PieceRest &piece = s.pieces[k];
+        SteadyState one;
+        one.v = piece.v;
+        // Above the eigenvalue limit a tree's only steady state is taken as its rest; with
+        // several and no stability, none is (the measure then says so).
+        one.stable = s.stabilityAssessed ? s.stable : tree.steadyStates.size() == 1;
+        one.maxRealEigenvalue = s.maxRealEigenvalue;
+        one.gates = piece.gates;
+        one.currents = piece.currents;
+        one.totalCurrent = piece.membraneCurrent;
+        one.slopeConductance = piece.slopeConductance;
+        one.inputResistance = piece.inputResistance;
+        cr.steadyStates.push_back(std::move(one));
+      }
+      result.push_back(std::move(cr));
+    }
+  return result;
+}
+
+} // namespace saltpan::rest

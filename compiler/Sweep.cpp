@@ -64,7 +64,7 @@ struct SweepEvaluator::Impl {
     m.params = paramsFor(restModel, restParam, point);
     std::vector<rest::CompartmentRest> analysis;
     try {
-      analysis = rest::findSteadyStates(m, &c.model);
+      analysis = rest::steadyStatesOfEach(m, &c.model);
     } catch (const std::exception &e) {
       sweep::addFailure(r, std::string("steady states: ") + e.what());
       return;

@@ -112,8 +112,34 @@ assert len(tree["steady_states"]) == 1 and len(tree["not_followed"]) == 2
 assert all("fold" in l["why"] and l["isopotential_V_mV"] < -60 for l in tree["not_followed"])
 PY
 
-# The rest(...) measure does not analyse trees yet: it says so rather than give a lone piece's V.
-(cat "$GOLDEN/branched_cell.saltpan"; echo 'expect rest(soma) == -65 mV within 1e-6 mV') >"$TMP/expect.saltpan"
-expect_rc expect 1 test "$TMP/expect.saltpan"
-expect_grep expect out 'FAIL .*rest\(soma\).*joined compartments \(cables\) are solved only by saltpan rest'
+# The rest(...) measures read the tree's steady state: a soma whose leak reverses at -70 mV joined
+# to a dendrite whose leak reverses at -60 mV rests between the two (alone it would rest at -70
+# mV), and each measure equals what `saltpan rest` reports for that piece.
+cat >"$TMP/mixed.saltpan" <<'SPEC'
+model Mixed "invented cell for the rest tests: every number here is invented"
+temperature 20 degC
+channel SomaLeak { reversal -70 mV }
+channel DendLeak { reversal -60 mV }
+compartment soma {
+  sphere diameter 20 um
+  capacitance 1 uF/cm2
+  initial V = -65 mV
+  membrane { SomaLeak 0.1 mS/cm2 }
+}
+cable dend { grows from soma length 500 um diameter 2 um axial resistivity 100 ohm*cm pieces 50 membrane { DendLeak 0.1 mS/cm2 } }
+expect rest(soma) in -64 mV to -62 mV
+expect rest(dend at 100 %) in -63 mV to -61 mV
+expect input_resistance(soma) > 0 Mohm
+SPEC
+expect_rc mixed 0 test --json "$TMP/mixed.json" "$TMP/mixed.saltpan"
+expect_rc mixedrest 0 rest --format json "$TMP/mixed.saltpan"
+"$PY" - "$TMP/mixed.json" "$TMP/mixedrest.out" <<'PY' || fail "the rest(...) measures are not the tree's steady state"
+import json, sys
+measured = [e["measured_si"] for e in json.load(open(sys.argv[1]))["expectations"]]
+(tree,) = json.load(open(sys.argv[2]))["trees"]
+(state,) = tree["steady_states"]
+volts = state["V_mV"]
+assert abs(measured[0] * 1e3 - volts[0]) < 1e-6, (measured, volts[0])
+assert abs(measured[1] * 1e3 - volts[-1]) < 1e-6, (measured, volts[-1])
+PY
 finish
