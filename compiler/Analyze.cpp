@@ -220,6 +220,19 @@ private:
       DiagnosticEngine::note(d, {}, "give a longer 'piece length'");
       count = 0;
     }
+    size_t earlier = 0; // pieces of the cables cut before this one
+    for (const CableValues &other : model_.cables)
+      earlier += other.pieces;
+    if (count >= 1 && static_cast<double>(earlier) + count > static_cast<double>(maxPiecesInAll)) {
+      auto &d = diags_.error(shape.piecesRange.begin.line ? shape.piecesRange : c.nameRange,
+                             "with cable '" + c.name + "' the cables would have " +
+                                 std::to_string(earlier + static_cast<size_t>(count)) +
+                                 " pieces in all; saltpan takes at most " + std::to_string(maxPiecesInAll));
+      DiagnosticEngine::note(d, {},
+                             "each piece is a compartment of its own: memory and compile time grow with the "
+                             "pieces; give longer pieces");
+      count = 0;
+    }
     if (!length || !diameter || !diameterEnd || !resistivity || count < 1)
       return;
     cv.length = *length;

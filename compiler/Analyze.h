@@ -72,6 +72,10 @@ struct PumpValues {
   int netOutwardCharge = 0; // elementary charges moved outward per cycle
 };
 
+/// Pieces of all cables together. `saltpan check` holds about 5 kB per piece (measured: 93 MB at
+/// 20,000) and a run compiles code for each, so a million would need gigabytes and minutes.
+inline constexpr size_t maxPiecesInAll = 100000;
+
 /// The note to a place outside its cable.
 inline constexpr const char *placeRangeNote =
     "a place along a cable is a distance from 0 to its length, or a percentage from 0 % to 100 %";
