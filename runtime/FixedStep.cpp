@@ -121,8 +121,20 @@ FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelR
   startPart_ = implicit ? KernelPart::Rates : KernelPart::Dynamics;
   if (implicit) {
     tree_ = std::make_shared<const Tree>(model);
-    for (auto *v : {&diag_, &rhs_, &up_, &low_})
+    for (auto *v : {&diag_, &rhs_, &up_, &low_, &axialDiag_, &axialUp_, &axialLow_})
       v->assign(model.compartments.size(), 0);
+    const std::vector<ir::Compartment> &cs = model.compartments;
+    for (size_t i = 0; i < cs.size(); ++i) {
+      clamps_ |= cs[i].clampedOutput >= 0;
+      int p = tree_->parent(i);
+      if (p < 0)
+        continue;
+      double g = tree_->conductance(i), parentArea = cs[static_cast<size_t>(p)].area;
+      axialDiag_[i] += g / cs[i].area;
+      axialUp_[i] = -g / cs[i].area;
+      axialDiag_[static_cast<size_t>(p)] += g / parentArea;
+      axialLow_[i] = -g / parentArea;
+    }
   }
 }
 
@@ -193,34 +205,30 @@ void FixedStepper::implicitStep(double *y, const double *out, double t, double h
   bool crank = m_.protocol.method == ir::Method::CrankNicolson;
   double span = crank ? 0.5 * h : h;
   const std::vector<ir::Compartment> &cs = m_.compartments;
-  for (size_t i = 0; i < cs.size(); ++i) {
+  for (size_t i = 0; i < cs.size(); ++i) { // the axial terms are the run's constants
     const ir::Compartment &c = cs[i];
     double capacitance = p_[c.capacitanceParam] / span;
-    diag_[i] = capacitance + scratch_[c.gOutput];
+    diag_[i] = capacitance + scratch_[c.gOutput] + axialDiag_[i];
     rhs_[i] = capacitance * y[c.voltageState] + scratch_[c.geOutput] - scratch_[c.iOtherOutput];
-    up_[i] = low_[i] = 0;
   }
-  for (size_t i = 0; i < cs.size(); ++i) {
-    int p = tree_->parent(i);
-    if (p < 0)
-      continue;
-    double g = tree_->conductance(i);
-    diag_[i] += g / cs[i].area;
-    up_[i] = -g / cs[i].area;
-    diag_[static_cast<size_t>(p)] += g / cs[static_cast<size_t>(p)].area;
-    low_[i] = -g / cs[static_cast<size_t>(p)].area;
-  }
-  auto clamped = [&](size_t i) { return cs[i].clampedOutput >= 0 && out[cs[i].clampedOutput] != 0; };
-  for (size_t i = 0; i < cs.size(); ++i) {
-    if (clamped(i)) { // a clamped row is V = its held value
-      diag_[i] = 1;
-      rhs_[i] = y[cs[i].voltageState];
-      up_[i] = 0;
+  const double *up = axialUp_.data(), *low = axialLow_.data();
+  if (clamps_) {
+    auto clamped = [&](size_t i) { return cs[i].clampedOutput >= 0 && out[cs[i].clampedOutput] != 0; };
+    up_ = axialUp_;
+    low_ = axialLow_;
+    for (size_t i = 0; i < cs.size(); ++i) {
+      if (clamped(i)) { // a clamped row is V = its held value
+        diag_[i] = 1;
+        rhs_[i] = y[cs[i].voltageState];
+        up_[i] = 0;
+      }
+      if (int p = tree_->parent(i); p >= 0 && clamped(static_cast<size_t>(p)))
+        low_[i] = 0; // the clamped parent's row holds no child
     }
-    if (int p = tree_->parent(i); p >= 0 && clamped(static_cast<size_t>(p)))
-      low_[i] = 0; // the clamped parent's row holds no child
+    up = up_.data();
+    low = low_.data();
   }
-  tree_->solve(diag_.data(), up_.data(), low_.data(), rhs_.data());
+  tree_->solve(diag_.data(), up, low, rhs_.data());
   for (size_t i = 0; i < cs.size(); ++i) {
     double &v = y[cs[i].voltageState];
     v = crank ? 2 * rhs_[i] - v : rhs_[i];

@@ -91,6 +91,8 @@ private:
   std::vector<double> k1_, k2_, k3_, k4_, tmp_, scratch_;
   std::shared_ptr<const Tree> tree_; // implicit methods: the junctions' elimination order
   std::vector<double> diag_, rhs_, up_, low_;
+  std::vector<double> axialDiag_, axialUp_, axialLow_; // the junctions' terms of the system
+  bool clamps_ = false;                                 // a clamp may clear rows
   KernelPart startPart_; // what a step reads at its start
 };
 
