@@ -582,11 +582,7 @@ private:
     std::string prefix = c.name + ".synapse" + std::to_string(number);
     // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
     if (perArea == 1)
-      // The conductance is recorded in the kind of unit it was given in: nS for an absolute one.
-    if (perArea == 1)
       probe(prefix + ".conductance", dims::conductanceDensity(), g);
-    else
-      probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
     else
       probe(prefix + ".conductance", "nS", *c.area * 1e9, g);
     probe(prefix + ".current", dims::currentDensity(), mul(g, sub(env.voltage, num(*reversal))));

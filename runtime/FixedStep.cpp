@@ -2,6 +2,7 @@
 #include "FixedStep.h"
 
 #include "Derivative.h"
+#include "PieceSplit.h"
 
 #include <algorithm>
 #include <cassert>
@@ -135,6 +136,14 @@ FixedStepper::FixedStepper(const ir::Model &model, const double *params, KernelR
       axialDiag_[static_cast<size_t>(p)] += g / parentArea;
       axialLow_[i] = -g / parentArea;
     }
+    wholeSteps_ = kernel.pieces && kernel.pieces->prepared(KernelPart::Step);
+    if (wholeSteps_) {
+      next_.assign(n + model.kernel.outputs.size(), 0);
+      for (const ir::Gate &g : model.gates)
+        moved_.push_back(g.state);
+      for (const ir::Pool &pool : model.pools)
+        moved_.push_back(pool.state);
+    }
   }
 }
 
@@ -200,16 +209,30 @@ void FixedStepper::exponentialEulerStep(double *y, const double *out, double t, 
 // half the step and extrapolation to its end (second order in V; the gates are staggered half a
 // step, as in exponential Euler). The tree's elimination solves it in O(N).
 void FixedStepper::implicitStep(double *y, const double *out, double t, double h) {
-  if (!gatesAndPools(y, out, t, h))
-    return;
+  if (gatesAndPools(y, out, t, h))
+    solveVoltages(y, out, scratch_.data(), h);
+}
+
+void FixedStepper::wholeImplicitStep(double *y, double t, double h, double *injected) {
+  evaluate(y, t, next_.data(), KernelPart::Step);
+  for (int s : moved_)
+    y[s] = next_[static_cast<size_t>(s)];
+  const double *currents = next_.data() + m_.stateNames.size();
+  if (injected)
+    for (size_t c = 0; c < m_.compartments.size(); ++c)
+      injected[c] += currents[m_.compartments[c].injectedOutput] * h;
+  solveVoltages(y, nullptr, currents, h);
+}
+
+void FixedStepper::solveVoltages(double *y, const double *out, const double *currents, double h) {
   bool crank = m_.protocol.method == ir::Method::CrankNicolson;
   double span = crank ? 0.5 * h : h;
   const std::vector<ir::Compartment> &cs = m_.compartments;
   for (size_t i = 0; i < cs.size(); ++i) { // the axial terms are the run's constants
     const ir::Compartment &c = cs[i];
     double capacitance = p_[c.capacitanceParam] / span;
-    diag_[i] = capacitance + scratch_[c.gOutput] + axialDiag_[i];
-    rhs_[i] = capacitance * y[c.voltageState] + scratch_[c.geOutput] - scratch_[c.iOtherOutput];
+    diag_[i] = capacitance + currents[c.gOutput] + axialDiag_[i];
+    rhs_[i] = capacitance * y[c.voltageState] + currents[c.geOutput] - currents[c.iOtherOutput];
   }
   const double *up = axialUp_.data(), *low = axialLow_.data();
   if (clamps_) {
@@ -252,7 +275,10 @@ void FixedStepper::piece(double *y, const double *out, double t, double h, doubl
 void FixedStepper::step(const StepGrid &grid, long i, double *y, double *out, double *injected) {
   double start = grid.time(i);
   if (grid.smooth(i)) { // as a fused kernel takes it: a whole dt from the start
-    piece(y, out, start, grid.step(), start + grid.step(), injected);
+    if (wholeSteps_)
+      wholeImplicitStep(y, start, grid.step(), injected);
+    else
+      piece(y, out, start, grid.step(), start + grid.step(), injected);
     return;
   }
   std::span<const double> cuts = grid.cuts(i);
@@ -281,7 +307,7 @@ void FixedRun::begin(long i, double *y, bool outputs) {
   fusedStep_ = fused_.available && grid_.smooth(i);
   if (fusedStep_)
     callFused(y, outputs);
-  else
+  else if (outputs || !stepper_.stepsWhole(grid_, i))
     stepper_.settle(y, out_.data(), grid_.time(i), outputs);
 }
 

@@ -72,6 +72,9 @@ public:
   /// it. On entry `out` holds settle()'s outputs at (y, grid.time(i)); on return it is spent.
   /// `injected` (one per compartment, or null) gains the injected charge of the step.
   void step(const StepGrid &grid, long i, double *y, double *out, double *injected);
+  /// Whether step i is one fused pass over a tree's pieces, which reads nothing from settle():
+  /// then only a recording step needs it.
+  bool stepsWhole(const StepGrid &grid, long i) const { return wholeSteps_ && grid.smooth(i); }
 
 private:
   void evaluate(const double *y, double t, double *out, KernelPart part = KernelPart::All);
@@ -79,6 +82,11 @@ private:
   void rk4Step(double *y, const double *out, double t, double h, double end);
   void exponentialEulerStep(double *y, const double *out, double t, double h);
   void implicitStep(double *y, const double *out, double t, double h);
+  // A smooth implicit step with the pieces' Step kernels: gates, pools and currents in one pass.
+  void wholeImplicitStep(double *y, double t, double h, double *injected);
+  // V from the linear system of the membranes (G, GE, Iother in `currents`) and the junctions;
+  // `out` holds the clamps at the step's start (read only when a clamp exists).
+  void solveVoltages(double *y, const double *out, const double *currents, double h);
   // Exponential Euler's gates and forward Euler's pools; then the outputs at the step's middle
   // with the new gates into scratch_ (false when every potential is clamped: nothing to do).
   bool gatesAndPools(double *y, const double *out, double t, double h);
@@ -93,6 +101,9 @@ private:
   std::vector<double> diag_, rhs_, up_, low_;
   std::vector<double> axialDiag_, axialUp_, axialLow_; // the junctions' terms of the system
   bool clamps_ = false;                                 // a clamp may clear rows
+  bool wholeSteps_ = false;                             // the kernel has KernelPart::Step
+  std::vector<double> next_;                            // its [next states | outputs]
+  std::vector<int> moved_;                              // the states it moves: gates, pools
   KernelPart startPart_; // what a step reads at its start
 };
 

@@ -152,4 +152,34 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &m, double dt, bo
   return k;
 }
 
+ir::Kernel fuseStaggeredPiece(const ir::Kernel &local, int stateCount, const StaggeredRoles &roles, double dt) {
+  ir::Kernel k;
+  std::vector<NodeId> states(static_cast<size_t>(stateCount));
+  for (int s = 0; s < stateCount; ++s)
+    states[static_cast<size_t>(s)] = k.state(s);
+  std::vector<NodeId> start = inlineKernel(k, local, states, k.time());
+  auto output = [&](const std::vector<NodeId> &map, size_t slot) { return map[local.outputs[slot]]; };
+  size_t slot = 0;
+  std::vector<NodeId> moved = states, next;
+  for (int g : roles.gateStates) { // as FixedStepper::gatesAndPools: inf + (x - inf) e^(-h/tau)
+    NodeId inf = output(start, slot++), tau = output(start, slot++), x = k.state(g);
+    NodeId decay = k.unary(Op::Exp, k.unary(Op::Neg, k.binary(Op::Div, k.constant(dt), tau)));
+    moved[static_cast<size_t>(g)] = k.binary(Op::Add, inf, k.binary(Op::Mul, k.binary(Op::Sub, x, inf), decay));
+    next.push_back(moved[static_cast<size_t>(g)]);
+  }
+  for (int pool : roles.poolStates) {
+    NodeId derivative = output(start, slot++);
+    moved[static_cast<size_t>(pool)] = k.binary(Op::Add, k.state(pool), k.binary(Op::Mul, k.constant(dt), derivative));
+    next.push_back(moved[static_cast<size_t>(pool)]);
+  }
+  std::vector<NodeId> middle = inlineKernel(k, local, moved, k.binary(Op::Add, k.time(), k.constant(0.5 * dt)));
+  for (int j = 0; j < 3; ++j)
+    next.push_back(output(middle, slot++));
+  if (roles.injected)
+    next.push_back(output(start, slot++));
+  for (NodeId n : next)
+    k.addOutput(n);
+  return k;
+}
+
 } // namespace saltpan

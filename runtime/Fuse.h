@@ -23,4 +23,18 @@ std::optional<ir::Kernel> fuseExponentialEuler(const ir::Model &model, double dt
 /// t + dt/2 twice and t + dt), in the same output layout; sweeps step lanes with it.
 std::optional<ir::Kernel> fuseRungeKutta4(const ir::Model &model, double dt, bool withOutputs = true);
 
+/// Where one compartment's part of a whole implicit step sits in its local kernel (PieceSplit):
+/// the kernel's outputs are, in this order, each gate's steady value and time constant, each
+/// pool's derivative, then G, GE and Iother, then (if `injected`) the injected current.
+struct StaggeredRoles {
+  std::vector<int> gateStates, poolStates; // the local state of each gate and pool
+  bool injected = false;
+};
+
+/// The membrane's part of one implicit step of `dt` (FixedStep.cpp's, in its arithmetic): from
+/// `local`'s outputs at (y, t) the gates moved by exponential Euler and the pools by forward
+/// Euler, then G, GE and Iother with the new gates at t + dt/2. Outputs: each gate's and
+/// pool's new value, G, GE, Iother, then the injected current at t (if `roles.injected`).
+ir::Kernel fuseStaggeredPiece(const ir::Kernel &local, int stateCount, const StaggeredRoles &roles, double dt);
+
 } // namespace saltpan

@@ -25,10 +25,13 @@ bool implicitMethod(ir::Method m) { return m == ir::Method::BackwardEuler || m =
 void splitTree(const ir::Model &model, KernelPlan &plan) {
   if (!plan.plain || model.junctions.empty())
     return;
-  std::vector<KernelPart> parts = implicitMethod(model.protocol.method)
-                                      ? std::vector<KernelPart>{KernelPart::Rates, KernelPart::Currents}
-                                      : std::vector<KernelPart>{KernelPart::Dynamics};
-  if (std::optional<PieceSplit> split = splitByPiece(model, parts)) {
+  // A smooth implicit step is one pass over the pieces (Step); steps split at an edge read
+  // the rates, move the gates, then read the currents.
+  std::vector<KernelPart> parts =
+      implicitMethod(model.protocol.method)
+          ? std::vector<KernelPart>{KernelPart::Rates, KernelPart::Currents, KernelPart::Step}
+          : std::vector<KernelPart>{KernelPart::Dynamics};
+  if (std::optional<PieceSplit> split = splitByPiece(model, parts, model.protocol.step)) {
     plan.pieces = std::make_shared<const PieceSplit>(std::move(*split));
     plan.pieceLanes = hostVectorLanes();
   }

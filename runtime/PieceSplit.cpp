@@ -1,14 +1,17 @@
 // PieceSplit.cpp - splitting a tree's kernel into one small kernel per kind of piece.
 #include "PieceSplit.h"
 
+#include "Fuse.h"
+
 #include <algorithm>
+#include <cassert>
 #include <cstring>
 #include <unordered_map>
 
 namespace saltpan {
 
 const KernelPart allParts[kernelPartCount] = {KernelPart::All, KernelPart::Dynamics, KernelPart::Rates,
-                                              KernelPart::Currents};
+                                              KernelPart::Currents, KernelPart::Step};
 
 const char *kernelPartName(KernelPart part) {
   switch (part) {
@@ -16,6 +19,7 @@ const char *kernelPartName(KernelPart part) {
   case KernelPart::Dynamics: return "dynamics";
   case KernelPart::Rates: return "rates";
   case KernelPart::Currents: return "membrane currents";
+  case KernelPart::Step: return "an implicit step's gates, then membrane currents";
   }
   return "?";
 }
@@ -91,6 +95,7 @@ bool inPart(const Ownership &own, int output, KernelPart part) {
   case KernelPart::Dynamics: return own.rate[output] || own.current[output];
   case KernelPart::Rates: return own.rate[output];
   case KernelPart::Currents: return own.current[output];
+  case KernelPart::Step: return false; // laid out by stepPrograms
   }
   return false;
 }
@@ -236,50 +241,131 @@ ir::Kernel toKernel(const LocalProgram &prog) {
   return k;
 }
 
+// What one compartment computes for a part: the kernel outputs its local program reads, in
+// order, and where each of its class kernel's outputs is written (for Step, in the
+// [next states | outputs] array; otherwise the outputs themselves).
+struct PartLayout {
+  std::vector<int> outputs, targets;
+  std::vector<int> gateStates, poolStates; // Step: the global states it moves
+  bool injected = false;
+};
+
+// `owned`: each compartment's outputs in the part (not for Step).
+PartLayout layoutOf(const ir::Model &m, size_t c, KernelPart part, const std::vector<std::vector<int>> &owned,
+                    const std::vector<std::vector<int>> &gatesOf, const std::vector<std::vector<int>> &poolsOf) {
+  PartLayout layout;
+  if (part != KernelPart::Step) {
+    layout.outputs = owned[c];
+    layout.targets = layout.outputs;
+    return layout;
+  }
+  int states = static_cast<int>(m.stateNames.size());
+  for (int g : gatesOf[c]) {
+    const ir::Gate &gate = m.gates[static_cast<size_t>(g)];
+    layout.outputs.insert(layout.outputs.end(), {gate.infOutput, gate.tauOutput});
+    layout.gateStates.push_back(gate.state);
+  }
+  for (int p : poolsOf[c]) {
+    layout.outputs.push_back(m.pools[static_cast<size_t>(p)].derivativeOutput);
+    layout.poolStates.push_back(m.pools[static_cast<size_t>(p)].state);
+  }
+  layout.targets.insert(layout.targets.end(), layout.gateStates.begin(), layout.gateStates.end());
+  layout.targets.insert(layout.targets.end(), layout.poolStates.begin(), layout.poolStates.end());
+  const ir::Compartment &comp = m.compartments[c];
+  for (int o : {comp.gOutput, comp.geOutput, comp.iOtherOutput}) {
+    layout.outputs.push_back(o);
+    layout.targets.push_back(states + o);
+  }
+  layout.injected = comp.injectedOutput >= 0;
+  if (layout.injected) {
+    layout.outputs.push_back(comp.injectedOutput);
+    layout.targets.push_back(states + comp.injectedOutput);
+  }
+  return layout;
+}
+
+// The local slot of global state `global` in `prog`, added when its outputs never read it.
+int localState(LocalProgram &prog, int global) {
+  auto it = std::find(prog.states.begin(), prog.states.end(), global);
+  if (it != prog.states.end())
+    return static_cast<int>(it - prog.states.begin());
+  prog.states.push_back(global);
+  return static_cast<int>(prog.states.size()) - 1;
+}
+
+bool sameRoles(const StaggeredRoles &x, const StaggeredRoles &y) {
+  return x.gateStates == y.gateStates && x.poolStates == y.poolStates && x.injected == y.injected;
+}
+
+// A whole implicit step fuses exponential Euler into the pieces' kernels; a clamp, whose
+// command replaces V, needs the general stepper.
+bool stepFusable(const ir::Model &m) {
+  return std::none_of(m.compartments.begin(), m.compartments.end(),
+                      [](const ir::Compartment &c) { return c.clampedOutput >= 0; });
+}
+
 } // namespace
 
-std::optional<PieceSplit> splitByPiece(const ir::Model &model, const std::vector<KernelPart> &parts) {
+std::optional<PieceSplit> splitByPiece(const ir::Model &model, const std::vector<KernelPart> &parts, double step) {
   Ownership own = owners(model);
   Localiser localiser(model, own);
+  std::vector<std::vector<int>> gatesOf(model.compartments.size()), poolsOf(model.compartments.size());
+  for (size_t g = 0; g < model.gates.size(); ++g)
+    if (int c = own.state[model.gates[g].state]; c >= 0)
+      gatesOf[static_cast<size_t>(c)].push_back(static_cast<int>(g));
+  for (size_t p = 0; p < model.pools.size(); ++p)
+    poolsOf[static_cast<size_t>(model.pools[p].compartment)].push_back(static_cast<int>(p));
   PieceSplit split;
   for (KernelPart part : allParts) {
     if (part != KernelPart::All && std::find(parts.begin(), parts.end(), part) == parts.end())
       continue;
+    if (part == KernelPart::Step && (!(step > 0) || !stepFusable(model)))
+      continue;
     split.prepared[static_cast<int>(part)] = true;
-    std::vector<std::vector<int>> outputs(model.compartments.size());
+    std::vector<PieceClass> &classes = split.parts[static_cast<int>(part)];
+    std::vector<std::pair<LocalProgram, StaggeredRoles>> representatives;
+    std::unordered_multimap<uint64_t, size_t> byFingerprint;
+    std::vector<std::vector<int>> owned(model.compartments.size());
     for (size_t o = 0; o < own.output.size(); ++o)
       if (own.output[o] >= 0 && inPart(own, static_cast<int>(o), part))
-        outputs[static_cast<size_t>(own.output[o])].push_back(static_cast<int>(o));
-    std::vector<PieceClass> &classes = split.parts[static_cast<int>(part)];
-    std::vector<LocalProgram> representatives;
-    std::unordered_multimap<uint64_t, size_t> byFingerprint;
+        owned[static_cast<size_t>(own.output[o])].push_back(static_cast<int>(o));
     for (size_t c = 0; c < model.compartments.size(); ++c) {
-      if (outputs[c].empty())
+      PartLayout layout = layoutOf(model, c, part, owned, gatesOf, poolsOf);
+      if (layout.outputs.empty())
         continue;
-      LocalProgram prog = localiser.build(outputs[c], static_cast<int>(c));
+      LocalProgram prog = localiser.build(layout.outputs, static_cast<int>(c));
       if (prog.foreign)
         return std::nullopt;
-      uint64_t key = fingerprint(prog);
+      StaggeredRoles roles;
+      for (int g : layout.gateStates)
+        roles.gateStates.push_back(localState(prog, g));
+      for (int p : layout.poolStates)
+        roles.poolStates.push_back(localState(prog, p));
+      roles.injected = layout.injected;
+      uint64_t key = fingerprint(prog) ^ (roles.gateStates.size() * 0x9e3779b97f4a7c15ull + prog.states.size());
       size_t chosen = classes.size();
       for (auto [it, end] = byFingerprint.equal_range(key); it != end; ++it)
-        if (sameProgram(representatives[it->second], prog))
+        if (sameProgram(representatives[it->second].first, prog) &&
+            sameRoles(representatives[it->second].second, roles))
           chosen = it->second;
       if (chosen == classes.size()) {
         byFingerprint.emplace(key, chosen);
         PieceClass cls;
-        cls.kernel = toKernel(prog);
+        int stateCount = static_cast<int>(prog.states.size());
+        cls.kernel =
+            part == KernelPart::Step ? fuseStaggeredPiece(toKernel(prog), stateCount, roles, step) : toKernel(prog);
         cls.firstName = model.compartments[c].name;
-        cls.stateCount = static_cast<int>(prog.states.size());
+        cls.stateCount = stateCount;
         cls.paramCount = static_cast<int>(prog.params.size());
         classes.push_back(std::move(cls));
-        representatives.push_back(std::move(prog));
-        prog = representatives.back(); // the member tables below read the copy
+        representatives.emplace_back(std::move(prog), roles);
+        prog = representatives.back().first; // the member tables below read the copy
       }
       PieceClass &cls = classes[chosen];
       cls.members.push_back(static_cast<int>(c));
       cls.states.insert(cls.states.end(), prog.states.begin(), prog.states.end());
       cls.params.insert(cls.params.end(), prog.params.begin(), prog.params.end());
-      cls.outputs.insert(cls.outputs.end(), prog.outputs.begin(), prog.outputs.end());
+      cls.outputs.insert(cls.outputs.end(), layout.targets.begin(), layout.targets.end());
     }
   }
   std::vector<int> unowned;
@@ -309,6 +395,7 @@ PieceRunner::PieceRunner(std::shared_ptr<const PieceSplit> split, std::vector<st
 }
 
 void PieceRunner::run(const double *y, const double *p, double t, double *out, KernelPart part) {
+  assert(part != KernelPart::Step || prepared(part)); // its layout is not the outputs'
   if (!split_->prepared[static_cast<int>(part)])
     part = KernelPart::All;
   // Scratch per thread: threads running points of a sweep share one runner.

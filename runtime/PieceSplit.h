@@ -38,7 +38,9 @@ struct PieceSplit {
 
 /// The split of `model`'s kernel for `parts` (All is always prepared), or nothing when a
 /// compartment's outputs read another's states (then only the whole kernel is correct).
-std::optional<PieceSplit> splitByPiece(const ir::Model &model, const std::vector<KernelPart> &parts);
+/// KernelPart::Step, the fused membrane part of an implicit step of `step` seconds, is
+/// prepared only for a positive step and a model without clamps.
+std::optional<PieceSplit> splitByPiece(const ir::Model &model, const std::vector<KernelPart> &parts, double step = 0);
 
 /// A split's kernels made callable (threads may share it: its scratch is per thread): computes the outputs of a
 /// part as the model's kernel would, each class in groups of its lanes (the last group padded
@@ -51,7 +53,9 @@ public:
   };
   /// `kernels[part][k]` runs class k of that part; `rest` the outputs no compartment owns.
   PieceRunner(std::shared_ptr<const PieceSplit> split, std::vector<std::vector<ClassKernel>> kernels, KernelRef rest);
+  /// `out` is the model's outputs, or for KernelPart::Step the array [next states | outputs].
   void run(const double *y, const double *p, double t, double *out, KernelPart part);
+  bool prepared(KernelPart part) const { return split_->prepared[static_cast<int>(part)]; }
 
 private:
   std::shared_ptr<const PieceSplit> split_;

@@ -22,8 +22,10 @@ enum class KernelPart : uint8_t {
   Dynamics, // what dy/dt needs: gates' rates, pools, membrane currents, clamps, stimulus
   Rates,    // an implicit step's start: gates' rates, pools, clamps, stimulus
   Currents, // an implicit step's middle: the linearised membrane currents alone
+  Step,     // a whole smooth implicit step's membrane part (Fuse.h fuseStaggeredPiece): into
+            // [next states | outputs], the moved gates and pools, G, GE, Iother and injection
 };
-inline constexpr int kernelPartCount = 4;
+inline constexpr int kernelPartCount = 5;
 
 /// A compiled kernel, the interpreter, or a tree's kernels by kind of piece (PieceSplit.h); the
 /// branch between them is predictable. Only a split kernel computes less than every output.

@@ -137,6 +137,47 @@ TEST_CASE("interpreted piece kernels compute what the model's kernel computes, b
   }
 }
 
+TEST_CASE("an implicit step's fused piece part moves gates and reads currents as the stepper does, bit for bit",
+          "[pieces]") {
+  ir::Model m = lowerTree("crank_nicolson step 25 us");
+  double dt = 25e-6;
+  CHECK_FALSE(splitByPiece(m, {KernelPart::Step})->prepared[static_cast<int>(KernelPart::Step)]); // no step given
+  auto split = splitByPiece(m, {KernelPart::Step}, dt);
+  REQUIRE(split);
+  REQUIRE(split->prepared[static_cast<int>(KernelPart::Step)]);
+  CHECK(memberCount(split->classes(KernelPart::Step)) == m.compartments.size());
+  auto shared = std::make_shared<const PieceSplit>(std::move(*split));
+  std::vector<std::unique_ptr<Interpreter>> interpreters;
+  std::vector<std::vector<PieceRunner::ClassKernel>> kernels(kernelPartCount);
+  for (int part = 0; part < kernelPartCount; ++part)
+    for (const PieceClass &cls : shared->parts[part]) {
+      interpreters.push_back(std::make_unique<Interpreter>(cls.kernel));
+      kernels[part].push_back({KernelRef{nullptr, interpreters.back().get(), nullptr}, 1});
+    }
+  PieceRunner runner(shared, kernels, KernelRef{});
+  Interpreter whole(m.kernel);
+  size_t n = m.kernel.outputs.size(), states = m.stateNames.size();
+  for (unsigned seed = 1; seed <= 3; ++seed)
+    for (double t : {0.0, 0.49e-3}) { // the second starts before the injection, its middle is inside
+      INFO("seed " << seed << ", t = " << t);
+      std::vector<double> y = randomState(m, seed), start(n), middle(n), got(states + n, NAN);
+      whole.run(y.data(), m.params.data(), t, start.data());
+      std::vector<double> moved = y; // FixedStepper::gatesAndPools, written out
+      for (const ir::Gate &g : m.gates)
+        moved[g.state] = start[g.infOutput] + (y[g.state] - start[g.infOutput]) * std::exp(-dt / start[g.tauOutput]);
+      whole.run(moved.data(), m.params.data(), t + 0.5 * dt, middle.data());
+      runner.run(y.data(), m.params.data(), t, got.data(), KernelPart::Step);
+      for (const ir::Gate &g : m.gates)
+        CHECK(std::memcmp(&got[g.state], &moved[g.state], sizeof(double)) == 0);
+      for (const ir::Compartment &c : m.compartments) {
+        for (int o : {c.gOutput, c.geOutput, c.iOtherOutput})
+          CHECK(std::memcmp(&got[states + o], &middle[o], sizeof(double)) == 0);
+        CHECK(got[states + c.injectedOutput] == start[c.injectedOutput]);
+        CHECK(std::isnan(got[c.voltageState])); // V is the tree solve's, not the pieces'
+      }
+    }
+}
+
 TEST_CASE("native piece kernels in SIMD lanes agree with the model's kernel to rounding", "[pieces][jit]") {
   std::string error;
   std::unique_ptr<JIT> jit = JIT::create(error);
