@@ -3,6 +3,7 @@
 
 #include "Decimal.h"
 
+#include <algorithm>
 #include <cstdio>
 #include <cstring>
 #include <sstream>
@@ -41,25 +42,65 @@ const char *methodName(Method m) {
   return "?";
 }
 
-size_t Kernel::KeyHash::operator()(const Key &k) const {
-  auto mix = [](uint64_t x) { // splitmix64's finaliser
-    x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9ull;
-    x = (x ^ (x >> 27)) * 0x94D049BB133111EBull;
-    return x ^ (x >> 31);
-  };
-  uint64_t h = mix(k.constantBits);
-  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(k.op)) << 32 | static_cast<uint32_t>(k.index)));
-  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(k.a)) << 32 | static_cast<uint32_t>(k.b)));
-  return static_cast<size_t>(mix(h ^ static_cast<uint32_t>(k.c)));
+namespace {
+
+uint64_t mix(uint64_t x) { // splitmix64's finaliser
+  x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9ull;
+  x = (x ^ (x >> 27)) * 0x94D049BB133111EBull;
+  return x ^ (x >> 31);
+}
+
+uint64_t constantBits(const Node &n) {
+  uint64_t bits;
+  std::memcpy(&bits, &n.constant, sizeof bits);
+  return bits;
+}
+
+uint64_t keyHash(const Node &n) {
+  uint64_t h = mix(constantBits(n));
+  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(n.op)) << 32 | static_cast<uint32_t>(n.index)));
+  h = mix(h ^ (static_cast<uint64_t>(static_cast<uint32_t>(n.a)) << 32 | static_cast<uint32_t>(n.b)));
+  return mix(h ^ static_cast<uint32_t>(n.c));
+}
+
+bool sameKey(const Node &x, const Node &y) {
+  return x.op == y.op && constantBits(x) == constantBits(y) && x.index == y.index && x.a == y.a && x.b == y.b &&
+         x.c == y.c;
+}
+
+} // namespace
+
+// A slot holds the node's id in its low half and its hash's high half above it (0: empty),
+// so a probe reads a node only when the hashes agree.
+void Kernel::grow() {
+  std::vector<uint64_t> table(std::max<size_t>(64, table_.size() * 2), 0);
+  size_t mask = table.size() - 1;
+  for (uint64_t entry : table_)
+    if (entry != 0) {
+      size_t slot = keyHash(nodes_[static_cast<uint32_t>(entry) - 1]) & mask;
+      while (table[slot] != 0)
+        slot = (slot + 1) & mask;
+      table[slot] = entry;
+    }
+  table_ = std::move(table);
 }
 
 NodeId Kernel::add(Node n) {
-  Key key{0, static_cast<int32_t>(n.op), n.index, n.a, n.b, n.c};
-  std::memcpy(&key.constantBits, &n.constant, sizeof key.constantBits);
-  auto [it, inserted] = seen_.emplace(key, static_cast<NodeId>(nodes_.size()));
-  if (inserted)
-    nodes_.push_back(n);
-  return it->second;
+  if (2 * (nodes_.size() + 1) > table_.size()) // at most half full: probes stay short
+    grow();
+  size_t mask = table_.size() - 1;
+  uint64_t hash = keyHash(n), tag = hash & 0xFFFFFFFF00000000ull;
+  for (size_t slot = hash & mask;; slot = (slot + 1) & mask) {
+    uint64_t entry = table_[slot];
+    if (entry == 0) {
+      nodes_.push_back(n);
+      table_[slot] = tag | static_cast<uint32_t>(nodes_.size()); // id + 1: never 0
+      return static_cast<NodeId>(nodes_.size() - 1);
+    }
+    NodeId id = static_cast<NodeId>(static_cast<uint32_t>(entry) - 1);
+    if ((entry & 0xFFFFFFFF00000000ull) == tag && sameKey(nodes_[static_cast<size_t>(id)], n))
+      return id;
+  }
 }
 
 NodeId Kernel::constant(double v) { return add(Node{Op::Const, v, -1, -1, -1, -1, {}}); }
