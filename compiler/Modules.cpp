@@ -4,6 +4,8 @@
 #include "Diagnostics.h"
 #include "parse/Parse.h"
 
+#include <algorithm>
+#include <cstdlib>
 #include <filesystem>
 #include <map>
 
@@ -77,7 +79,9 @@ private:
     std::string key, name;
     const SourceFile *file = nullptr;
     if (use.isPath) {
-      fs::path target = fs::path(from.path()).parent_path() / use.target;
+      fs::path target = modulePath(use, from);
+      if (target.empty())
+        return;
       name = target.lexically_normal().string();
       key = keyOf(name);
       if (auto it = state_.find(key); it != state_.end()) {
@@ -147,6 +151,73 @@ private:
     stack_.push_back({fromName, &use});
     load(*file, key, name);
     stack_.pop_back();
+  }
+
+  // Where `use "PATH"` in `from` points: PATH in the folder of `from`, else in a folder of the
+  // module search path (SALTPAN_MODULE_PATH). A module outside those folders (an absolute path,
+  // `..` or a symbolic link that leads out), or one that is not a spec file, is refused: a spec
+  // from elsewhere must not make saltpan read (and quote in a diagnostic) any file it likes.
+  // Empty when refused (reported).
+  fs::path modulePath(const ast::UseDecl &use, const SourceFile &from) {
+    // A text saltpan wrote itself ("<command line>": `sweep --vary` uses the spec the user
+    // named) reads the file it names.
+    if (from.path().rfind('<', 0) == 0)
+      return fs::path(use.target);
+    std::vector<fs::path> folders = {fs::path(from.path()).parent_path()};
+    for (const std::string &extra : moduleSearchPath())
+      folders.emplace_back(extra);
+    fs::path written(use.target);
+    fs::path target = folders.front() / written;
+    std::error_code ec;
+    if (written.is_relative() && !fs::exists(target, ec))
+      for (size_t i = 1; i < folders.size(); ++i)
+        if (fs::exists(folders[i] / written, ec)) {
+          target = folders[i] / written;
+          break;
+        }
+    auto inside = [&](const fs::path &folder) {
+      fs::path base = fs::weakly_canonical(folder.empty() ? fs::path(".") : folder, ec);
+      fs::path real = fs::weakly_canonical(target.empty() ? fs::path(".") : target, ec);
+      auto b = base.begin(), r = real.begin();
+      for (; b != base.end() && r != real.end(); ++b, ++r)
+        if (*b != *r)
+          return false;
+      return b == base.end() && r != real.end();
+    };
+    if (std::none_of(folders.begin(), folders.end(), inside)) {
+      auto &d =
+          diags_.error(use.targetRange, "'" + use.target + "' lies outside the folder of '" + from.path() +
+                                            "'; saltpan reads modules only from there and the module search path");
+      DiagnosticEngine::note(d, {},
+                             "to use modules from another folder, list it in SALTPAN_MODULE_PATH "
+                             "(folders separated by ':')");
+      ok_ = false;
+      return {};
+    }
+    if (target.extension() != ".saltpan" || fs::weakly_canonical(target, ec).extension() != ".saltpan") {
+      auto &d =
+          diags_.error(use.targetRange, "'" + use.target + "' is not a spec file: a module's name ends in .saltpan");
+      DiagnosticEngine::note(d, {}, "saltpan reads only spec files as modules, and quotes no other file");
+      ok_ = false;
+      return {};
+    }
+    return target;
+  }
+
+  static std::vector<std::string> moduleSearchPath() {
+    std::vector<std::string> folders;
+    const char *value = std::getenv("SALTPAN_MODULE_PATH");
+    std::string list = value ? value : "";
+    for (size_t start = 0; start <= list.size();) {
+      size_t colon = list.find(':', start);
+      std::string folder = list.substr(start, colon == std::string::npos ? std::string::npos : colon - start);
+      if (!folder.empty())
+        folders.push_back(folder);
+      if (colon == std::string::npos)
+        break;
+      start = colon + 1;
+    }
+    return folders;
   }
 
   void reportCycle(const ast::UseDecl &use, const std::string &fromName, const std::string &target) {

@@ -1,7 +1,8 @@
 // Modules.h - Stage 2: loads the root spec and every module it uses, each file once.
 //
 // `use std.x` names an embedded stdlib module; `use "file.saltpan"` a path relative to the
-// using file. A cycle of uses is an error that lists the chain.
+// using file, read only inside its folder or the module search path (SALTPAN_MODULE_PATH).
+// A cycle of uses is an error that lists the chain.
 #pragma once
 #include "AST.h"
 

@@ -5,6 +5,9 @@ set -euo pipefail
 SALTPAN=${1:?usage: script.sh <path-to-saltpan> <source-dir>}
 SRC=${2:?usage: script.sh <path-to-saltpan> <source-dir>}
 PY=/usr/bin/python3
+# Specs the tests write in $TMP use the shipped reference specs by absolute path: saltpan reads
+# modules outside a spec's folder only from the module search path.
+export SALTPAN_MODULE_PATH="$SRC/specs/reference"
 TMP=$(mktemp -d)
 trap 'rm -rf "$TMP"' EXIT
 failures=0
