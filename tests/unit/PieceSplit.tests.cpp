@@ -56,6 +56,30 @@ size_t memberCount(const std::vector<PieceClass> &classes) {
   return n;
 }
 
+// A split's kernels (and its rest) interpreted, behind one runner.
+struct InterpretedSplit {
+  std::vector<std::unique_ptr<Interpreter>> interpreters;
+  PieceRunner runner;
+  explicit InterpretedSplit(PieceSplit split) : runner(make(std::move(split))) {}
+
+private:
+  PieceRunner make(PieceSplit split) {
+    auto shared = std::make_shared<const PieceSplit>(std::move(split));
+    std::vector<std::vector<PieceRunner::ClassKernel>> kernels(kernelPartCount);
+    for (int part = 0; part < kernelPartCount; ++part)
+      for (const PieceClass &cls : shared->parts[part]) {
+        interpreters.push_back(std::make_unique<Interpreter>(cls.kernel));
+        kernels[part].push_back({KernelRef{nullptr, interpreters.back().get(), nullptr}, 1});
+      }
+    KernelRef rest;
+    if (shared->rest) {
+      interpreters.push_back(std::make_unique<Interpreter>(*shared->rest));
+      rest.interpreter = interpreters.back().get();
+    }
+    return PieceRunner(shared, kernels, rest);
+  }
+};
+
 } // namespace
 
 TEST_CASE("alike pieces share one kernel; the stimulated piece has its own", "[pieces]") {
@@ -86,20 +110,8 @@ TEST_CASE("interpreted piece kernels compute what the model's kernel computes, b
     ir::Model m = lowerTree(method);
     auto split = splitByPiece(m, {KernelPart::Dynamics, KernelPart::Rates, KernelPart::Currents});
     REQUIRE(split);
-    auto shared = std::make_shared<const PieceSplit>(std::move(*split));
-    std::vector<std::unique_ptr<Interpreter>> interpreters;
-    std::vector<std::vector<PieceRunner::ClassKernel>> kernels(kernelPartCount);
-    for (int part = 0; part < kernelPartCount; ++part)
-      for (const PieceClass &cls : shared->parts[part]) {
-        interpreters.push_back(std::make_unique<Interpreter>(cls.kernel));
-        kernels[part].push_back({KernelRef{nullptr, interpreters.back().get(), nullptr}, 1});
-      }
-    KernelRef rest;
-    if (shared->rest) {
-      interpreters.push_back(std::make_unique<Interpreter>(*shared->rest));
-      rest.interpreter = interpreters.back().get();
-    }
-    PieceRunner runner(shared, kernels, rest);
+    InterpretedSplit interpreted(std::move(*split));
+    PieceRunner &runner = interpreted.runner;
     Interpreter whole(m.kernel);
     size_t n = m.kernel.outputs.size();
     for (unsigned seed = 1; seed <= 5; ++seed) {
@@ -146,15 +158,8 @@ TEST_CASE("an implicit step's fused piece part moves gates and reads currents as
   REQUIRE(split);
   REQUIRE(split->prepared[static_cast<int>(KernelPart::Step)]);
   CHECK(memberCount(split->classes(KernelPart::Step)) == m.compartments.size());
-  auto shared = std::make_shared<const PieceSplit>(std::move(*split));
-  std::vector<std::unique_ptr<Interpreter>> interpreters;
-  std::vector<std::vector<PieceRunner::ClassKernel>> kernels(kernelPartCount);
-  for (int part = 0; part < kernelPartCount; ++part)
-    for (const PieceClass &cls : shared->parts[part]) {
-      interpreters.push_back(std::make_unique<Interpreter>(cls.kernel));
-      kernels[part].push_back({KernelRef{nullptr, interpreters.back().get(), nullptr}, 1});
-    }
-  PieceRunner runner(shared, kernels, KernelRef{});
+  InterpretedSplit interpreted(std::move(*split));
+  PieceRunner &runner = interpreted.runner;
   Interpreter whole(m.kernel);
   size_t n = m.kernel.outputs.size(), states = m.stateNames.size();
   for (unsigned seed = 1; seed <= 3; ++seed)
