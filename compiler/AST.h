@@ -365,11 +365,12 @@ struct RecordTarget {
   const CompartmentDecl *compartment = nullptr; // set by Resolve: what the path starts with, if declared
 };
 
-/// clamp COMPARTMENT at LEVEL [from T1 to T2]: a voltage clamp; without a window it holds
-/// for the whole run, with one it sets the level inside the window.
+/// clamp COMPARTMENT at LEVEL [from T1 to T2] (or clamp CABLE at PLACE to LEVEL ...): a voltage
+/// clamp; without a window it holds for the whole run, with one it sets the level inside the window.
 struct Clamp {
   std::string compartment;
   SourceRange compartmentRange;
+  Position position; // along a cable; its first piece without one
   SourceRange range;
   ExprPtr level, from, to;
   const CompartmentDecl *target = nullptr; // set by Resolve

@@ -320,6 +320,29 @@ public:
         expr(2, "from", i.from.get());
         expr(2, "to", i.to.get());
       }
+      for (auto &c : p.clamps) {
+        line(1, "clamp " + c.compartment + bound(c.target));
+        expr(2, "at", c.position.at.get());
+        expr(2, "level", c.level.get());
+        expr(2, "from", c.from.get());
+        expr(2, "to", c.to.get());
+      }
+      static const char *synapseShapes[] = {"decay", "rise-decay", "alpha"};
+      for (auto &y : p.synapses) {
+        line(1, std::string("synapse ") + y.compartment + " " + synapseShapes[static_cast<int>(y.shape)] +
+                    bound(y.target));
+        expr(2, "at", y.position.at.get());
+        expr(2, "conductance", y.conductance.get());
+        expr(2, "reversal", y.reversal.get());
+        expr(2, "rise", y.rise.get());
+        expr(2, "decay", y.decay.get());
+        expr(2, "peak", y.peak.get());
+        for (auto &t : y.times)
+          expr(2, "event", t.get());
+        expr(2, "every", y.every.get());
+        expr(2, "from", y.from.get());
+        expr(2, "to", y.to.get());
+      }
       for (auto &r : p.records) {
         line(1, "record " + r.path);
         expr(2, "at", r.position.at.get());

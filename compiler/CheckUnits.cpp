@@ -222,6 +222,7 @@ private:
       expect(i.to.get(), dims::time(), "the end of an injection");
     }
     for (Clamp &c : p.clamps) {
+      position(c.position, "the place of a clamp");
       expect(c.level.get(), dims::voltage(), "a clamp level");
       expect(c.from.get(), dims::time(), "the start of a clamp step");
       expect(c.to.get(), dims::time(), "the end of a clamp step");

@@ -67,6 +67,8 @@ public:
     }
     for (const JunctionValues &j : model_.junctions)
       out_.junctions.push_back({static_cast<int>(j.parent), static_cast<int>(j.child), j.conductance});
+    if (ok_)
+      clampCurrentsThroughJunctions();
     if (protocol)
       lowerProtocol(*protocol);
     else
@@ -592,11 +594,12 @@ private:
     const Clamp *holding = nullptr;
     std::vector<const Clamp *> steps;
     for (const Clamp &cl : p.clamps) {
-      if (cl.target != c.decl || c.piece > 0) // a clamp holds a cable's first piece
+      if (cl.target != c.decl || !placed(cl.position, c)) // on a cable, the piece at its place
         continue;
       if (!cl.from) {
         if (holding) {
-          fail(cl.range, "compartment '" + c.decl->name + "' already has a holding potential");
+          fail(cl.range, (c.piece < 0 ? "compartment '" : "piece '") + c.name + "' already has a holding potential");
+          DiagnosticEngine::note(*diags_.last(), holding->range, "the first holding clamp");
           continue;
         }
         holding = &cl;
@@ -621,6 +624,22 @@ private:
     }
     comp.clampedOutput = k_.addOutput(clamped);
     comp.commandOutput = k_.addOutput(command);
+  }
+
+  // A clamped compartment of a tree holds its neighbours too: its clamp current gains what
+  // leaves through each junction, g (V - V_neighbour), per its membrane area.
+  void clampCurrentsThroughJunctions() {
+    for (const ir::Junction &j : out_.junctions)
+      for (auto [self, other] : {std::pair{j.parent, j.child}, std::pair{j.child, j.parent}}) {
+        const ir::Compartment &c = out_.compartments[static_cast<size_t>(self)];
+        int held = c.clampedOutput < 0 ? -1 : out_.findProbe(c.name + ".clamp_current");
+        if (held < 0 || !(c.area > 0))
+          continue;
+        int voltage = out_.compartments[static_cast<size_t>(other)].voltageState;
+        NodeId outward = mul(num(j.conductance / c.area), sub(k_.state(c.voltageState), k_.state(voltage)));
+        NodeId &probed = k_.outputs[static_cast<size_t>(out_.probes[static_cast<size_t>(held)].output)];
+        probed = add(probed, mul(k_.outputs[static_cast<size_t>(c.clampedOutput)], outward));
+      }
   }
 
   void compartment(const CompartmentValues &c, const ProtocolDecl *protocol) {
@@ -705,8 +724,15 @@ private:
     DisplayUnit mV = displayUnit(dims::voltage());
     out_.probes.push_back({c.name + ".V", mV.name, mV.scale, comp.voltageState, -1});
     probe(c.name + ".membrane_current", dims::currentDensity(), ionic);
-    if (comp.clampedOutput >= 0) // while clamped, the amplifier supplies the ionic current
-      probe(c.name + ".clamp_current", dims::currentDensity(), mul(k_.outputs[comp.clampedOutput], ionic));
+    // While clamped, the amplifier supplies the ionic current (and, in a tree, what flows out
+    // through the junctions: clampCurrentsThroughJunctions). A piece's is absolute: per piece
+    // area it would change with the cut.
+    if (NodeId held = comp.clampedOutput >= 0 ? mul(k_.outputs[comp.clampedOutput], ionic) : -1; held >= 0) {
+      if (c.piece >= 0)
+        probe(c.name + ".clamp_current", "nA", comp.area * 1e9, held);
+      else
+        probe(c.name + ".clamp_current", dims::currentDensity(), held);
+    }
     probe(c.name + ".injected", dims::currentDensity(), cur.stimulus);
   }
 

@@ -1035,8 +1035,9 @@ private:
         }
       }
       for (const Clamp &cl : p->clamps)
-        stimuli.push_back("A voltage clamp of " + Code(cl.compartment) + " at " + M(mathOf(cl.level)) +
-                          window(cl.from, cl.to) + ".");
+        stimuli.push_back("A voltage clamp of " + Code(cl.compartment) +
+                          (cl.position ? ", " + M(mathOf(cl.position.at)) + " along it," : std::string()) + " at " +
+                          M(mathOf(cl.level)) + window(cl.from, cl.to) + ".");
       for (const Synapse &sy : p->synapses) {
         std::string shape;
         switch (sy.shape) {
@@ -1070,10 +1071,16 @@ private:
         d_.para("Stimuli (injected currents are positive into the cell; each adds to the others):");
         d_.items(stimuli);
       }
-      if (!p->clamps.empty())
+      if (!p->clamps.empty()) {
+        std::string joined = m_.junctions.empty()
+                                 ? std::string()
+                                 : " plus the axial current that leaves it for its neighbours (in nA on a piece of "
+                                   "a cable)";
         d_.para("Where clamp windows overlap, the earlier line wins. While clamped, " + M("V") +
                 " follows the command and the clamp current is the membrane's ionic current at the command "
-                "potential (outward positive); the capacitive transient at a command step is not included.");
+                "potential" +
+                joined + " (outward positive); the capacitive transient at a command step is not included.");
+      }
       std::vector<std::string> records;
       for (const RecordTarget &r : p->records)
         records.push_back(Code(r.path) + (r.position ? " at " + M(mathOf(r.position.at)) : std::string()));

@@ -311,6 +311,7 @@ private:
         for (Expr *e : {c.level.get(), c.from.get(), c.to.get()})
           expr(e, plain);
         c.target = compartmentNamed(c.compartment, c.compartmentRange);
+        position(c.position, c.target, plain);
       }
       for (Synapse &s : p.synapses) {
         for (Expr *e : {s.conductance.get(), s.reversal.get(), s.rise.get(), s.decay.get(), s.peak.get(),

@@ -123,13 +123,14 @@ sweepItem
   | ';'                                                                 # emptySweepItem
   ;
 // protocol NAME { method ... step ...; duration ...; inject ...; record ... every ... }
+// A clamp at a place along a cable gives its level after `to`: `clamp dend at 450 um to -65 mV`.
 protocolDecl : PROTOCOL IDENT '{' protocolItem* '}' ;
 protocolItem
   : METHOD IDENT (STEP expr)? (TOLERANCE expr)?   # methodItem
   | DURATION expr                                 # durationItem
   | INJECT IDENT position? injection              # injectItem
   | RECORD recorded (',' recorded)* (EVERY expr)? # recordItem
-  | CLAMP IDENT AT expr (FROM expr TO expr)?      # clampItem
+  | CLAMP IDENT (position TO | AT) expr (FROM expr TO expr)?   # clampItem
   | SYNAPSE IDENT position? expr REVERSAL expr synapseShape synapseTimes   # synapseItem
   | ';'                                           # emptyProtocolItem
   ;

@@ -309,6 +309,12 @@ bool stepFusable(const ir::Model &m) {
 std::optional<PieceSplit> splitByPiece(const ir::Model &model, const std::vector<KernelPart> &parts, double step) {
   Ownership own = owners(model);
   Localiser localiser(model, own);
+  // A probe that reads another piece's state (a clamp's current through its junctions) is
+  // computed with the outputs no piece owns.
+  for (const ir::Probe &p : model.probes)
+    if (int o = p.output;
+        o >= 0 && own.output[o] >= 0 && !own.rate[o] && !own.current[o] && localiser.build({o}, own.output[o]).foreign)
+      own.output[o] = -1;
   std::vector<std::vector<int>> gatesOf(model.compartments.size()), poolsOf(model.compartments.size());
   for (size_t g = 0; g < model.gates.size(); ++g)
     if (int c = own.state[model.gates[g].state]; c >= 0)

@@ -893,11 +893,13 @@ private:
         d->injections.push_back(std::move(inj));
       }
       if (auto *c = dynamic_cast<P::ClampItemContext *>(item)) {
-        // CLAMP IDENT AT expr (FROM expr TO expr)?
+        // CLAMP IDENT (position TO | AT) expr (FROM expr TO expr)?
         Clamp clamp;
         clamp.compartment = c->IDENT()->getText();
         clamp.compartmentRange = range(c->IDENT());
         clamp.range = range(c);
+        if (c->position())
+          clamp.position = position(c->position());
         clamp.level = build(c->expr(0));
         if (c->expr().size() == 3) {
           clamp.from = build(c->expr(1));
