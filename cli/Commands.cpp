@@ -261,13 +261,18 @@ int showCommand(const std::vector<std::string> &args) {
   if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty())
     return usageError("saltpan", clash, showHelp);
   // The true rest beside the GHK potential: steady states of the model without a protocol.
-  std::vector<rest::CompartmentRest> steady;
+  // Joined compartments rest together: each tree is solved as one system.
+  ShownRest steady;
   // A model that cannot be lowered is still shown, without its rest.
   if (const ir::Model *model = c.unstimulated()) {
     try {
-      steady = rest::findSteadyStates(*model, &c.model);
+      if (model->junctions.empty())
+        steady.each = rest::findSteadyStates(*model, &c.model);
+      else
+        steady.trees = rest::findTreeSteadyStates(*model, &c.model);
+      steady.model = model;
     } catch (const std::exception &) {
-      steady.clear();
+      steady = {};
     }
   }
   std::string text = o.format == "json" ? showJson(c, steady) : showText(c, steady);

@@ -60,9 +60,9 @@ struct CompartmentRest {
 /// supplies the GHK resting potentials. Throws std::runtime_error when the eigenvalue
 /// iteration does not converge.
 /// Why findSteadyStates refuses a model with junctions (cables): it analyses each compartment
-/// alone; findTreeSteadyStates solves joined ones together (only `saltpan rest` calls it).
+/// alone; findTreeSteadyStates solves joined ones together (`saltpan rest` and `show` call it).
 inline constexpr const char *notForJoinedCompartments =
-    "no steady state: joined compartments (cables) are solved only by saltpan rest (each tree as one system)";
+    "no steady state of one compartment alone: joined compartments (cables) rest together, each tree as one system";
 
 std::vector<CompartmentRest> findSteadyStates(const ir::Model &model, const AnalyzedModel *analysis,
                                               const Options &options = {});

@@ -49,6 +49,46 @@ const rest::CompartmentRest *steadyOf(const std::vector<rest::CompartmentRest> &
   return nullptr;
 }
 
+// Where a compartment, or a cable's pieces, sit in a tree's steady states: pieces first..last.
+struct TreeSpan {
+  const rest::TreeRest *tree = nullptr;
+  size_t first = 0, last = 0;
+};
+
+TreeSpan spanOf(const ShownRest &rest, const CompartmentValues &cv) {
+  TreeSpan span;
+  if (!rest.model)
+    return span;
+  for (const rest::TreeRest &tree : rest.trees)
+    for (size_t k = 0; k < tree.compartments.size(); ++k) {
+      const std::string &name = rest.model->compartments[tree.compartments[k]].name;
+      bool mine = cv.piece < 0 ? name == cv.decl->name : name.rfind(cv.decl->name + "[", 0) == 0;
+      if (!mine)
+        continue;
+      if (!span.tree)
+        span = {&tree, k, k};
+      span.last = k;
+    }
+  return span;
+}
+
+json stability(const rest::TreeSteadyState &s) { return s.stabilityAssessed ? json(s.stable) : json(nullptr); }
+
+// A tree's steady states as seen from one compartment (its V) or one cable (its first and last
+// piece's V).
+json treeStatesJson(const TreeSpan &span, bool cable) {
+  json states = json::array();
+  for (const rest::TreeSteadyState &s : span.tree->steadyStates) {
+    if (cable)
+      states.push_back({{"start_V_mV", tidy(s.pieces[span.first].v * 1e3)},
+                        {"end_V_mV", tidy(s.pieces[span.last].v * 1e3)},
+                        {"stable", stability(s)}});
+    else
+      states.push_back({{"V_mV", tidy(s.pieces[span.first].v * 1e3)}, {"stable", stability(s)}});
+  }
+  return states;
+}
+
 // Whether the GHK potential of the ungated permeabilities is the compartment's rest: only when
 // nothing else (gated or ohmic channels, pumps) carries current.
 bool ghkIsRest(const CompartmentValues &c) { return c.ghkRest && c.ghkChannels == c.placements.size(); }
@@ -107,7 +147,7 @@ json compartmentJson(const CompartmentValues &c, const AnalyzedModel &m, const r
 
 } // namespace
 
-std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
+std::string showJson(const Compilation &c, const ShownRest &rest) {
   const AnalyzedModel &m = c.model;
   json doc;
   doc["tool"] = "saltpan";
@@ -125,14 +165,20 @@ std::string showJson(const Compilation &c, const std::vector<rest::CompartmentRe
   json compartments = json::array(), cables = json::array();
   for (const CompartmentValues &cv : m.compartments) {
     const CableValues *cable = cableOf(m, cv);
+    TreeSpan span = spanOf(rest, cv);
     if (!cable) {
-      compartments.push_back(compartmentJson(cv, m, steadyOf(steady, cv.decl->name)));
+      json j = compartmentJson(cv, m, steadyOf(rest.each, cv.decl->name));
+      if (span.tree)
+        j["steady_states"] = treeStatesJson(span, false);
+      compartments.push_back(j);
       continue;
     }
     if (cv.piece > 0)
       continue;
     const CableShape &shape = *cv.decl->cable;
     json j = compartmentJson(cv, m, nullptr); // the first piece: membrane, solutions, capacitance
+    if (span.tree)
+      j["steady_states"] = treeStatesJson(span, true);
     j["grows_from"] = shape.parentDecl ? json(shape.parent) : json(nullptr);
     j["length_um"] = tidyDecimal(cable->length * 1e6);
     j["diameter_um"] = tidyDecimal(cable->diameter * 1e6);
@@ -175,7 +221,7 @@ std::string num(const char *format, std::optional<double> v, double scale = 1) {
 
 } // namespace
 
-std::string showText(const Compilation &c, const std::vector<rest::CompartmentRest> &steady) {
+std::string showText(const Compilation &c, const ShownRest &rest) {
   const AnalyzedModel &m = c.model;
   std::string out;
   auto line = [&](const std::string &s) { out += s + "\n"; };
@@ -233,7 +279,22 @@ std::string showText(const Compilation &c, const std::vector<rest::CompartmentRe
     else if (cv.ghkRest)
       line("  GHK potential of the " + channels + " " + num("%.3f mV", cv.ghkRest, 1e3) +
            " (not the rest: other channels or pumps carry current too)");
-    if (const rest::CompartmentRest *r = steadyOf(steady, cv.decl->name); r && !ghkIsRest(cv)) {
+    if (TreeSpan span = spanOf(rest, cv); span.tree) {
+      std::string states;
+      for (const rest::TreeSteadyState &s : span.tree->steadyStates) {
+        std::string v = num("%.3f mV", s.pieces[span.first].v, 1e3);
+        if (cable)
+          v = num("%.3f", s.pieces[span.first].v, 1e3) + " to " + num("%.3f mV", s.pieces[span.last].v, 1e3);
+        states += (states.empty() ? "" : ", ") + v +
+                  (!s.stabilityAssessed ? " (stability not assessed)"
+                   : s.stable           ? " (stable)"
+                                        : " (unstable)");
+      }
+      bool alone = span.tree->compartments.size() == 1; // joined to nothing
+      line(std::string(alone ? "  rest with every channel and pump" : "  rest of its tree") +
+           (cable ? ", first piece to last: " : ": ") +
+           (states.empty() ? std::string("none between -150 and +100 mV") : states));
+    } else if (const rest::CompartmentRest *r = steadyOf(rest.each, cv.decl->name); r && !ghkIsRest(cv)) {
       std::string states;
       for (const rest::SteadyState &st : r->steadyStates)
         states += (states.empty() ? "" : ", ") + num("%.3f mV", st.v, 1e3) + (st.stable ? " (stable)" : " (unstable)");

@@ -58,6 +58,28 @@ assert 0 < soma["input_resistance_MOhm"] < axon["end_input_resistance_MOhm"]
 assert comps[1]["steady_states"][0]["input_resistance_MOhm"] is None  # a piece inside a cable
 PY
 
+# show gives the same rest: the soma's V and each cable's first and last pieces', with the tree's stability.
+expect_rc show 0 show --format json "$GOLDEN/hh_cable.saltpan"
+expect_rc show-text 0 show "$GOLDEN/hh_cable.saltpan"
+"$PY" - "$TMP/json.out" "$TMP/show.out" "$TMP/show-text.out" <<'PY' || fail "show: the tree's rest differs from saltpan rest's"
+import json, re, sys
+rest, show = (json.load(open(p, encoding="utf-8")) for p in sys.argv[1:3])
+text = open(sys.argv[3], encoding="utf-8").read()
+(state,) = rest["trees"][0]["steady_states"]
+(soma,) = show["compartments"]
+close = lambda a, b: abs(a - b) < 1e-9  # show prints 15 significant digits
+(v,) = soma["steady_states"]
+assert close(v["V_mV"], state["V_mV"][0]) and v["stable"] is True, v
+assert len(show["cables"]) == len(state["cables"]) == 2
+for shown, rested in zip(show["cables"], state["cables"]):
+    (v,) = shown["steady_states"]
+    assert set(v) == {"start_V_mV", "end_V_mV", "stable"} and v["stable"] is True, v
+    assert close(v["start_V_mV"], rested["start_V_mV"]) and close(v["end_V_mV"], rested["end_V_mV"]), (v, rested)
+assert re.search(r"^  rest of its tree: %.3f mV \(stable\)$" % state["V_mV"][0], text, re.M), text
+dend = state["cables"][1]
+assert "  rest of its tree, first piece to last: %.3f to %.3f mV (stable)\n" % (dend["start_V_mV"], dend["end_V_mV"]) in text
+PY
+
 # More states than the dense eigenvalue analysis takes: solved, stability said not assessed.
 sed 's/  pieces 40/  pieces 300/' "$GOLDEN/hh_cable.saltpan" >"$TMP/long.saltpan"
 expect_rc long 0 rest "$TMP/long.saltpan"
