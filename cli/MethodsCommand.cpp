@@ -20,11 +20,13 @@ Writes a methods-section description of the checked model, to paste into a paper
 the temperature; the sign conventions (V inside minus outside, membrane current positive
 outward); the solutions of each compartment with the Nernst reversal potentials at the model
 temperature and the exact 2019 SI constants used; each compartment's geometry, membrane area
-and specific capacitance; each channel type with the ions it carries, its reversal (Nernst,
+and specific capacitance; each cable's shape, how it was cut into pieces and its length
+constant; each channel type with the ions it carries, its reversal (Nernst,
 GHK with permeability ratios, or as written), its density in each compartment and its gating
 equations as LaTeX math, with Q10; each pump and exchanger with its cycle, net charge and
 activity law; each protocol with its stimuli, recordings and integration method (with
-references); the tool version. The output is deterministic.
+references); each expectation with its source and how its measure is taken; the tool
+version. The output is deterministic.
 
 options:
   --format markdown|latex  Markdown with $...$ math (default), or LaTeX: a complete document

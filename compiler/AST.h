@@ -271,6 +271,9 @@ struct CableShape {
   SourceRange lengthRange, diameterRange, axialRange;
   long pieces = 0; // `pieces N`; 0 when not given, -1 when refused
   SourceRange piecesRange;
+  // `pieces N per length constant at F`: `pieces` holds N, and each piece is at most 1/N of
+  // the length constant at frequency F (AC); pieces then counts per length constant.
+  ExprPtr perLengthConstantAt;
   ExprPtr pieceLength; // or `piece length L`
 };
 

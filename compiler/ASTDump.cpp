@@ -212,7 +212,9 @@ public:
         expr(2, "to diameter", cable->diameterEnd.get());
         expr(2, "axial resistivity", cable->axialResistivity.get());
         if (cable->pieces > 0)
-          line(2, "pieces " + std::to_string(cable->pieces));
+          line(2,
+               "pieces " + std::to_string(cable->pieces) + (cable->perLengthConstantAt ? " per length constant" : ""));
+        expr(2, "at frequency", cable->perLengthConstantAt.get());
         expr(2, "piece length", cable->pieceLength.get());
       }
       line(1, std::string("geometry ") + shapes[static_cast<int>(c.geometry.shape)]);

@@ -41,8 +41,9 @@ namespace {
 
 class Analyzer {
 public:
-  Analyzer(const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags, AnalyzedModel &model)
-      : symbols_(symbols), evaluator_(evaluator), diags_(diags), model_(model) {}
+  Analyzer(const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags, AnalyzedModel &model,
+           const CableMembranes *membranes)
+      : symbols_(symbols), evaluator_(evaluator), diags_(diags), model_(model), membranes_(membranes) {}
 
   void run(const Program &program) {
     model_.header = symbols_.model;
@@ -104,6 +105,8 @@ private:
   Evaluator &evaluator_;
   DiagnosticEngine &diags_;
   AnalyzedModel &model_;
+  const CableMembranes *membranes_;
+  std::optional<double> cutFrequency_, cutLengthConstant_; // of the cable being cut
 
   std::optional<double> value(const Expr &e, const std::string &what, const EvalEnv &env = {}) {
     if (!e.type.known)
@@ -176,6 +179,36 @@ private:
     return d && has(*d) ? *d : c;
   }
 
+  // `pieces N per length constant at F`: pieces of at most 1/N of the length constant at F, of
+  // the thinnest end for a taper (the shortest length constant along it).
+  std::optional<double> countByLengthConstant(const CompartmentDecl &c, const CableShape &shape,
+                                              std::optional<double> length, std::optional<double> diameter,
+                                              std::optional<double> diameterEnd, std::optional<double> resistivity) {
+    auto frequency =
+        value(*shape.perLengthConstantAt, "the frequency of the length constant of cable '" + c.name + "'");
+    if (frequency && !(*frequency >= 0)) {
+      diags_.error(shape.perLengthConstantAt->range, "the frequency of a length constant must be 0 Hz or more");
+      return std::nullopt;
+    }
+    if (!frequency || !length || !diameter || !diameterEnd || !resistivity)
+      return std::nullopt;
+    if (!membranes_)
+      return 1; // provisional: the membrane at rest is not known yet
+    auto found = membranes_->find(&c);
+    if (found == membranes_->end() || !(found->second.conductance > 0) || !(found->second.capacitance > 0)) {
+      auto &d = diags_.error(shape.piecesRange, "cable '" + c.name +
+                                                    "' has no length constant to cut by: its membrane conducts "
+                                                    "nothing at the initial state");
+      DiagnosticEngine::note(d, {}, "give 'pieces N' or 'piece length L'");
+      return std::nullopt;
+    }
+    double lambda = physics::lengthConstantAt(*frequency, std::min(*diameter, *diameterEnd), *resistivity,
+                                              found->second.conductance, found->second.capacitance);
+    cutFrequency_ = *frequency;
+    cutLengthConstant_ = lambda;
+    return std::ceil(*length * static_cast<double>(shape.pieces) / lambda - 1e-9);
+  }
+
   // A cable: its shape, its pieces (each a compartment of its own area, with the cable's
   // membrane and solutions) and the junctions between them and to what it grows from.
   void cable(const CompartmentDecl &c, const std::vector<const SolutionDecl *> &baths) {
@@ -203,7 +236,12 @@ private:
     if (shape.diameterEnd)
       diameterEnd = need(shape.diameterEnd, "far diameter", "diameter 3 um to 1 um");
     double count = 0; // unknown
-    if (shape.pieces > 0)
+    cutFrequency_.reset();
+    cutLengthConstant_.reset();
+    if (shape.pieces > 0 && shape.perLengthConstantAt) {
+      if (auto n = countByLengthConstant(c, shape, length, diameter, diameterEnd, resistivity))
+        count = *n;
+    } else if (shape.pieces > 0)
       count = static_cast<double>(shape.pieces);
     else if (shape.pieceLength) {
       auto piece = need(shape.pieceLength, "piece length", "piece length 10 um");
@@ -240,6 +278,8 @@ private:
     cv.diameterEnd = *diameterEnd;
     cv.axialResistivity = *resistivity;
     cv.pieces = static_cast<size_t>(count);
+    cv.cutFrequency = cutFrequency_;
+    cv.cutLengthConstant = cutLengthConstant_;
     cv.first = model_.compartments.size();
     model_.cables.push_back(cv);
 
@@ -498,10 +538,17 @@ private:
 } // namespace
 
 bool analyze(const Program &program, const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags,
-             AnalyzedModel &model) {
+             AnalyzedModel &model, const CableMembranes *membranes) {
   size_t before = diags.errorCount();
-  Analyzer(symbols, evaluator, diags, model).run(program);
+  Analyzer(symbols, evaluator, diags, model, membranes).run(program);
   return diags.errorCount() == before;
+}
+
+bool cutsByLengthConstant(const SymbolTable &symbols) {
+  for (auto &[name, decl] : symbols.byName)
+    if (auto *c = dyn_cast<CompartmentDecl>(decl); c && c->cable && c->cable->perLengthConstantAt)
+      return true;
+  return false;
 }
 
 } // namespace saltpan

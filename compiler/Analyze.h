@@ -87,6 +87,9 @@ struct CableValues {
   double axialResistivity = 0;                      // ohm m
   size_t first = 0, pieces = 0;
   std::optional<double> lengthConstant; // m at rest; filled by CheckCables (it needs the kernel)
+  // Cut by `pieces N per length constant at F`: F (Hz) and the length constant at F of the
+  // thinnest end (m) that set the count.
+  std::optional<double> cutFrequency, cutLengthConstant;
   double pieceLength() const { return length / static_cast<double>(pieces); }
   double diameterAt(double x) const { return diameter + (diameterEnd - diameter) * x / length; }
 };
@@ -111,9 +114,22 @@ struct AnalyzedModel {
   std::vector<const ast::ChannelDecl *> channels;
 };
 
-/// Fills `model`. Returns false if it reported an error.
+/// A cable's membrane at its initial state: what cutting it by its length constant at a
+/// frequency needs (`pieces N per length constant at F`).
+struct CableMembraneAtRest {
+  double conductance = 0; // S/m2
+  double capacitance = 0; // F/m2
+};
+using CableMembranes = std::map<const ast::CompartmentDecl *, CableMembraneAtRest>;
+
+/// Fills `model`. Returns false if it reported an error. A cable cut by its length constant
+/// takes its membrane from `membranes`; without them (a first, provisional analysis) it is cut
+/// into one piece.
 bool analyze(const ast::Program &program, const SymbolTable &symbols, Evaluator &evaluator, DiagnosticEngine &diags,
-             AnalyzedModel &model);
+             AnalyzedModel &model, const CableMembranes *membranes = nullptr);
+
+/// Whether a cable of the program is cut by its length constant at a frequency.
+bool cutsByLengthConstant(const SymbolTable &symbols);
 
 /// How a reversal potential was found, as `show` and `--emit values` print it ("nernst", ...).
 const char *reversalSpelling(ReversalKind kind);

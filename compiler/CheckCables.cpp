@@ -9,16 +9,28 @@
 
 namespace saltpan {
 
-bool checkCables(AnalyzedModel &model, const ir::Model &lowered, DiagnosticEngine &diags) {
+CableMembranes cableMembranes(const AnalyzedModel &model, const ir::Model &lowered) {
+  CableMembranes membranes;
   if (model.cables.empty() || lowered.compartments.size() != model.compartments.size())
-    return true;
+    return membranes;
   Interpreter kernel(lowered.kernel);
   std::vector<double> out(lowered.kernel.outputs.size());
   kernel.run(lowered.initialState.data(), lowered.params.data(), 0, out.data());
+  for (const CableValues &cable : model.cables) {
+    const ir::Compartment &first = lowered.compartments[cable.first];
+    CableMembraneAtRest &m = membranes[cable.decl];
+    m.conductance = out[static_cast<size_t>(first.gOutput)]; // the conducting channels at rest
+    m.capacitance = model.compartments[cable.first].capacitance.value_or(0);
+  }
+  return membranes;
+}
+
+bool checkCables(AnalyzedModel &model, const ir::Model &lowered, DiagnosticEngine &diags) {
+  CableMembranes membranes = cableMembranes(model, lowered);
   auto um = [](double metres) { return shortestDecimal(tidyDecimal(metres * 1e6)) + " um"; };
   for (CableValues &cable : model.cables) {
-    const ir::Compartment &first = lowered.compartments[cable.first];
-    double g = out[static_cast<size_t>(first.gOutput)]; // S/m2, the conductance channels at rest
+    auto found = membranes.find(cable.decl);
+    double g = found == membranes.end() ? 0 : found->second.conductance; // S/m2
     if (!(g > 0))
       continue;
     double lambda = std::sqrt(cable.diameterAt(0.5 * cable.pieceLength()) / (4 * cable.axialResistivity * g));

@@ -13,4 +13,8 @@ class DiagnosticEngine;
 /// Fills each cable's CableValues::lengthConstant.
 bool checkCables(AnalyzedModel &model, const ir::Model &lowered, DiagnosticEngine &diags);
 
+/// Each cable's membrane at the initial state of `lowered` (any lowering of `model`): its
+/// conductance density and capacitance, which cutting by the length constant needs.
+CableMembranes cableMembranes(const AnalyzedModel &model, const ir::Model &lowered);
+
 } // namespace saltpan

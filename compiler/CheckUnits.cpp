@@ -165,6 +165,8 @@ private:
       expect(cable->diameter.get(), dims::length(), "the diameter" + of);
       expect(cable->diameterEnd.get(), dims::length(), "the far diameter" + of);
       expect(cable->pieceLength.get(), dims::length(), "the piece length" + of);
+      expect(cable->perLengthConstantAt.get(), dims::rate(), "the frequency of the length constant" + of,
+             "a frequency, e.g. 100 Hz");
       expect(cable->axialResistivity.get(), dims::voltage() / dims::current() * dims::length(),
              "the axial resistivity" + of, "the resistivity of the cytoplasm, e.g. 150 ohm*cm");
       position(cable->at, "where '" + c.name + "' grows from");

@@ -39,6 +39,9 @@ std::vector<ExpectResult> runExpectations(Compilation &c, const KernelCompiler &
 bool checkMeasure(Compilation &c, const ast::ExpectDecl &e, DiagnosticEngine &diags);
 /// The dimension of a valid measure's value.
 std::optional<Dimension> measuredDimension(const Compilation &c, const ast::ExpectDecl &e);
+/// The unit a valid measure's value is shown in: its dimension's display unit, except that a
+/// conduction velocity reads in m/s (a permeability, of the same dimension, in cm/s).
+DisplayUnit measuredUnit(const Compilation &c, const ast::ExpectDecl &e);
 /// Whether the measure is taken on a protocol's run (spike_count, peak, ...).
 bool measuredOnRun(const ast::ExpectDecl &e);
 

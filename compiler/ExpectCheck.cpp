@@ -302,6 +302,13 @@ std::optional<Dimension> measuredDimension(const Compilation &c, const ExpectDec
   return spec ? measureDimension(c, e, *spec) : std::nullopt;
 }
 
+DisplayUnit measuredUnit(const Compilation &c, const ExpectDecl &e) {
+  const MeasureSpec *spec = findMeasure(e.measure);
+  if (spec && std::string(spec->dimension) == "velocity")
+    return {"m/s", 1};
+  return displayUnit(measuredDimension(c, e).value_or(Dimension::none()));
+}
+
 bool measuredOnRun(const ExpectDecl &e) {
   const MeasureSpec *spec = findMeasure(e.measure);
   return spec && spec->protocol;

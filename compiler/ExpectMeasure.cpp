@@ -21,9 +21,8 @@ using namespace expectation;
 
 namespace {
 
-// A value in the unit modellers read for its dimension.
-std::string display(double si, const Dimension &d) {
-  DisplayUnit u = displayUnit(d);
+// A value in the unit modellers read for it (measuredUnit).
+std::string displayed(double si, const Dimension &d, const DisplayUnit &u) {
   bool wide = d == dims::voltage() || d == dims::time() || d == dims::rate();
   char buf[64];
   std::snprintf(buf, sizeof buf, wide ? "%.8g" : "%.6g", si * u.scale);
@@ -68,7 +67,7 @@ public:
       r.measuredText = why;
       return r;
     }
-    r.measuredText = display(*r.measured, *dim);
+    r.measuredText = displayed(*r.measured, *dim, measuredUnit(c_, e));
     r.passed = judge(e, *r.measured);
     return r;
   }
@@ -83,6 +82,10 @@ private:
   double eval(const Expr &e) { return c_.evaluator.evaluate(e, {}).value_or(NAN); }
 
   std::string expected(const ExpectDecl &e, const Dimension &d) {
+    DisplayUnit unit = measuredUnit(c_, e);
+    auto display = [&](double si, const Dimension &dim) {
+      return displayed(si, dim, dim == Dimension::none() ? DisplayUnit{} : unit);
+    };
     double v = e.value ? eval(*e.value) : NAN;
     switch (e.check) {
     case CheckKind::Equal:

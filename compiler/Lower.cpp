@@ -84,6 +84,7 @@ private:
   Evaluator &evaluator_;
   const CompartmentDecl *quietCable_ = nullptr; // a cable whose first piece reported errors
   std::map<const Position *, int> pieces_;      // the piece each place along a cable falls in
+  std::map<std::string, int> paramByName_;
   DiagnosticEngine &diags_;
   ir::Model &out_;
   ir::Kernel &k_;
@@ -100,6 +101,14 @@ private:
     return static_cast<int>(out_.stateNames.size()) - 1;
   }
   int addParamIndex(const std::string &name, double value, Dimension dim) {
+    // The pieces of a cable share its parameters (one density, one capacitance for the whole
+    // cable, as the spec writes them), so --set and a sweep change the cable, not one piece.
+    if (auto it = paramByName_.find(name); it != paramByName_.end()) {
+      size_t i = static_cast<size_t>(it->second);
+      if (out_.params[i] == value && out_.paramDims[i] == dim)
+        return it->second;
+    }
+    paramByName_.emplace(name, static_cast<int>(out_.params.size()));
     out_.paramNames.push_back(name);
     out_.params.push_back(value);
     out_.paramDims.push_back(dim);
@@ -308,6 +317,11 @@ private:
     return mul(mul(perm, num(zF)), mul(factor, drive));
   }
 
+  // A parameter's name: a compartment's, or for a piece its cable's (`dend.Leak.density`).
+  static std::string paramName(const CompartmentValues &c, const std::string &item) {
+    return c.decl->name + "." + item;
+  }
+
   void channel(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
     const ChannelDecl &ch = *p.channel;
     std::string prefix = c.name + "." + p.entry->name;
@@ -315,7 +329,7 @@ private:
       fail(p.entry->nameRange, "the density of '" + ch.name + "' is unknown");
       return;
     }
-    NodeId density = addParam(prefix + ".density", *p.density, p.entry->density->type.dim);
+    NodeId density = addParam(paramName(c, p.entry->name + ".density"), *p.density, p.entry->density->type.dim);
     NodeId open = gates(ch, prefix, env);
     NodeId current;
     if (p.densityKind == DensityKind::Permeability) {
@@ -349,7 +363,7 @@ private:
         fail(p.entry->nameRange, "the reversal potential of '" + ch.name + "' in '" + c.decl->name + "' is unknown");
         return;
       }
-      NodeId e = addParam(prefix + ".reversal", *p.reversal, dims::voltage());
+      NodeId e = addParam(paramName(c, p.entry->name + ".reversal"), *p.reversal, dims::voltage());
       // A Nernst reversal follows a dynamic concentration; a written one stays as written.
       const IonDecl *single = ch.carries.size() == 1 ? ch.carries[0].target : nullptr;
       if (p.reversalKind == ReversalKind::Nernst && single)
@@ -376,14 +390,14 @@ private:
 
   void pump(const Placement &p, const CompartmentValues &c, Currents &cur, const Env &env) {
     const PumpDecl &pump = *p.pump;
-    std::string prefix = c.decl->name + "." + p.entry->name;
+    std::string prefix = c.name + "." + p.entry->name;
     auto values = model_.pumps.find(&pump);
     if (!p.density || !pump.activity || values == model_.pumps.end() || !values->second.chargeKnown) {
       fail(p.entry->nameRange, "'" + pump.name + "' cannot be simulated without a density, cycle and activity");
       return;
     }
     int net = values->second.netOutwardCharge;
-    NodeId density = addParam(prefix + ".density", *p.density, p.entry->density->type.dim);
+    NodeId density = addParam(paramName(c, p.entry->name + ".density"), *p.density, p.entry->density->type.dim);
     NodeId activity = expr(*pump.activity, env);
     NodeId current, cycles; // cycles per area and time
     if (p.densityKind == DensityKind::Current) {
@@ -657,7 +671,7 @@ private:
     comp.name = c.name;
     comp.area = c.area.value_or(0);
     comp.voltageState = addState(c.name + ".V", *c.initialV);
-    comp.capacitanceParam = addParamIndex(c.name + ".capacitance", *c.capacitance, dims::specificCapacitance());
+    comp.capacitanceParam = addParamIndex(paramName(c, "capacitance"), *c.capacitance, dims::specificCapacitance());
     std::map<const IonDecl *, NodeId> pools;
     for (const CompartmentValues::Pool &pool : c.pools) {
       auto z = integerValence(*pool.ion);

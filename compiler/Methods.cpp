@@ -511,6 +511,7 @@ public:
     pumps();
     functionsAndConstants();
     protocols();
+    checks();
     software();
     if (d_.latex() && !o_.fragment)
       d_.raw("\\end{document}\n");
@@ -751,6 +752,11 @@ private:
                       ", " + diameter + ", axial resistivity " + quantity(cable.axialResistivity * 100, "ohm*cm") +
                       "; cut into " + std::to_string(cable.pieces) + " pieces of " +
                       quantity(tidyDecimal(cable.pieceLength() * 1e6), "um");
+      if (shape.perLengthConstantAt)
+        s += " (as many as make each at most 1/" + std::to_string(shape.pieces) + " of the length constant at " +
+             M(mathOf(shape.perLengthConstantAt)) + " of its thinnest end, " +
+             M("\\lambda_f = \\lambda \\sqrt{2 / (1 + \\sqrt{1 + (2 \\pi f \\tau_m)^2})}") + ", " +
+             M("\\tau_m = C_m / G") + ")";
       if (cable.lengthConstant)
         s += "; length constant at rest " + quantity(*cable.lengthConstant * 1e6, "um") + " (electrotonic length " +
              M(g6(cable.length / *cable.lengthConstant)) + ")";
@@ -1091,6 +1097,58 @@ private:
                             " (by default, the step).";
       d_.para(rec);
     }
+  }
+
+  // What the spec's expectations check, with their sources, and how the measures they use are
+  // taken, so that a reader can repeat the check by other means.
+  void checks() {
+    std::vector<const ExpectDecl *> all;
+    for (const auto &module : c_.program.modules)
+      for (const DeclPtr &decl : module->decls)
+        if (auto *e = dyn_cast<ExpectDecl>(decl.get()))
+          all.push_back(e);
+    if (all.empty())
+      return;
+    d_.heading(2, "Reference checks");
+    d_.para("The specification states what the model must reproduce; " + Code("saltpan test") +
+            " measures and judges each:");
+    std::vector<std::string> items;
+    std::set<std::string> measures;
+    for (const ExpectDecl *e : all) {
+      measures.insert(e->measure);
+      items.push_back(Code(e->text) + (e->source.empty() ? "" : " (source: " + e->source + ")") + ".");
+    }
+    d_.items(items);
+    std::vector<std::string> defined;
+    for (const auto &[measure, definition] : measureDefinitions())
+      if (measures.count(measure))
+        defined.push_back(Code(measure) + ": " + definition);
+    if (!defined.empty()) {
+      d_.para("The measures are taken as follows:");
+      d_.items(defined);
+    }
+  }
+
+  static const std::vector<std::pair<std::string, std::string>> &measureDefinitions() {
+    static const std::vector<std::pair<std::string, std::string>> table = {
+        {"spike_count", "the number of upward crossings of the threshold (0 mV unless given) in the recorded trace."},
+        {"firing_rate", "the spikes after the first over the time from the first spike to the last, a spike being an "
+                        "upward crossing of the threshold (0 mV unless given), timed by linear interpolation between "
+                        "recorded samples."},
+        {"first_spike", "the time of the first upward crossing of the threshold (0 mV unless given), interpolated "
+                        "linearly between recorded samples."},
+        {"last_interval", "the time between the last two upward crossings of the threshold (0 mV unless given)."},
+        {"conduction_velocity",
+         "the distance along the tree between the centres of the pieces that hold the two places (as the model joins "
+         "them), divided by the difference of the times at which the potential there first crosses the threshold "
+         "(0 mV unless given) upward, each interpolated linearly between recorded samples."},
+        {"rest", "the compartment's one stable steady state with every channel and pump, found as for " +
+                     Code("saltpan rest") + "."},
+        {"input_resistance", "the change of the steady potential per unit of current injected there at rest: the "
+                             "inverse of the membrane's slope conductance times its area, or for a compartment of a "
+                             "tree from the whole tree's Jacobian at the steady state."},
+    };
+    return table;
   }
 
   void software() {

@@ -41,4 +41,13 @@ std::optional<double> ghkZeroCurrentPotential(const std::vector<PermeantIon> &io
   return 0.5 * (lo + hi);
 }
 
+// A sinusoid of angular frequency w decays along the cable as exp(-x Re(gamma)) with
+// gamma = sqrt(1 + i w tau) / lambda0, and Re(sqrt(1 + i a)) = sqrt((1 + sqrt(1 + a^2)) / 2).
+double lengthConstantAt(double frequency, double diameter, double axialResistivity, double conductance,
+                        double capacitance) {
+  double lambda0 = std::sqrt(diameter / (4 * axialResistivity * conductance));
+  double a = 2 * M_PI * frequency * capacitance / conductance;
+  return lambda0 * std::sqrt(2 / (1 + std::sqrt(1 + a * a)));
+}
+
 } // namespace saltpan::physics

@@ -33,4 +33,11 @@ double ghkCurrent(const PermeantIon &ion, double v, double kelvin);
 /// for any valences). nullopt when no such potential exists (e.g. one ion, one side only).
 std::optional<double> ghkZeroCurrentPotential(const std::vector<PermeantIon> &ions, double kelvin);
 
+/// The length constant (m) of a cable at frequency f (Hz): the distance over which a sinusoidal
+/// potential falls by e, lambda0 * sqrt(2 / (1 + sqrt(1 + (2 pi f tau)^2))), with
+/// lambda0 = sqrt(d / (4 Ri G)) and tau = C / G (G in S/m2, C in F/m2, Ri in ohm m, d in m).
+/// At f = 0 it is lambda0.
+double lengthConstantAt(double frequency, double diameter, double axialResistivity, double conductance,
+                        double capacitance);
+
 } // namespace saltpan::physics

@@ -19,6 +19,24 @@ namespace saltpan {
 
 namespace {
 
+// A cable cut by its length constant needs its membrane at rest, which needs a lowered model:
+// a first, quiet analysis cuts it into one piece and is lowered to find the membrane; the
+// analysis that counts (and reports) then cuts it. Without such a cable, one analysis.
+bool analyzeCutting(Compilation &c) {
+  if (!cutsByLengthConstant(c.symbols))
+    return analyze(c.program, c.symbols, c.evaluator, c.diags, c.model);
+  std::optional<CableMembranes> membranes;
+  {
+    DiagnosticEngine quiet;
+    AnalyzedModel provisional;
+    ir::Model lowered;
+    if (analyze(c.program, c.symbols, c.evaluator, quiet, provisional) &&
+        lowerModel(c.program, provisional, c.evaluator, nullptr, quiet, lowered))
+      membranes = cableMembranes(provisional, lowered);
+  }
+  return analyze(c.program, c.symbols, c.evaluator, c.diags, c.model, membranes ? &*membranes : nullptr);
+}
+
 void run(const SourceFile &root, Compilation &c) {
   if (!loadProgram(root, c.sources, c.diags, c.program))
     return;
@@ -29,7 +47,7 @@ void run(const SourceFile &root, Compilation &c) {
   bool units = !c.symbols.chainTooDeep && checkUnits(c.program, c.evaluator, c.diags);
   if (!resolved || !units)
     return;
-  if (!analyze(c.program, c.symbols, c.evaluator, c.diags, c.model))
+  if (!analyzeCutting(c))
     return;
   bool charge = checkCharge(c.program, c.model, c.diags);
   bool physics = checkPhysics(c.program, c.model, c.evaluator, c.diags);

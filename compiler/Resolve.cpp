@@ -379,7 +379,7 @@ private:
     Context plain{"a compartment"};
     if (CableShape *cable = c.cable.get()) {
       for (Expr *e : {cable->length.get(), cable->diameter.get(), cable->diameterEnd.get(),
-                      cable->axialResistivity.get(), cable->pieceLength.get()})
+                      cable->axialResistivity.get(), cable->pieceLength.get(), cable->perLengthConstantAt.get()})
         expr(e, plain);
       if (!cable->parent.empty()) {
         cable->parentDecl = compartmentNamed(cable->parent, cable->parentRange);

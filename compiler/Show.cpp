@@ -186,6 +186,11 @@ std::string showJson(const Compilation &c, const ShownRest &rest) {
     j["axial_resistivity_ohm_cm"] = tidyDecimal(cable->axialResistivity * 100);
     j["pieces"] = cable->pieces;
     j["piece_length_um"] = tidyDecimal(cable->pieceLength() * 1e6);
+    j["cut_by_length_constant"] = cable->cutLengthConstant
+                                      ? json{{"pieces_per_length_constant", shape.pieces},
+                                             {"frequency_Hz", *cable->cutFrequency},
+                                             {"length_constant_um", *cable->cutLengthConstant * 1e6}}
+                                      : json(nullptr);
     j["length_constant_um"] = cable->lengthConstant ? json(*cable->lengthConstant * 1e6) : json(nullptr);
     j["electrotonic_length"] = cable->lengthConstant ? json(cable->length / *cable->lengthConstant) : json(nullptr);
     cables.push_back(j);
@@ -245,7 +250,12 @@ std::string showText(const Compilation &c, const ShownRest &rest) {
       line("  length " + num("%.6g um", cable->length, 1e6) + ", diameter " + num("%.4g um", cable->diameter, 1e6) +
            (cable->diameterEnd != cable->diameter ? " to " + num("%.4g um", cable->diameterEnd, 1e6) : "") +
            ", axial resistivity " + num("%.4g ohm*cm", cable->axialResistivity, 100) + ", " +
-           std::to_string(cable->pieces) + " pieces of " + num("%.4g um", cable->pieceLength(), 1e6));
+           std::to_string(cable->pieces) + (cable->pieces == 1 ? " piece of " : " pieces of ") +
+           num("%.4g um", cable->pieceLength(), 1e6) +
+           (cable->cutLengthConstant ? " (at most 1/" + std::to_string(shape.pieces) + " of its length constant at " +
+                                           num("%.4g Hz", cable->cutFrequency, 1) + ", " +
+                                           num("%.4g um", cable->cutLengthConstant, 1e6) + ")"
+                                     : std::string()));
       line("  length constant at rest " + num("%.4g um", cable->lengthConstant, 1e6) + ", electrotonic length " +
            num("%.4g",
                cable->lengthConstant ? std::optional<double>(cable->length / *cable->lengthConstant) : std::nullopt));

@@ -223,7 +223,7 @@ SweepPlan planSweep(Compilation &c, const SweepDecl &s) {
   for (auto &m : s.measures) {
     SweepMeasure sm;
     sm.decl = m.get();
-    sm.unit = displayUnit(measuredDimension(c, *m).value_or(Dimension::none()));
+    sm.unit = measuredUnit(c, *m);
     sm.args = measureArgs(c, *m);
     if (m->target) {
       auto it = std::find(plan.protocols.begin(), plan.protocols.end(), m->target);

@@ -35,7 +35,7 @@ word : IDENT | MODEL | USE | TEMPERATURE | ION | VALENCE | CONST | FN | OUTSIDE 
      | PROTOCOL | METHOD | STEP | TOLERANCE | DURATION | INJECT | RAMP | PULSES | WIDTH | EVERY | FROM | TO
      | RECORD | CLAMP | SYNAPSE | RISE | DECAY | PEAK | DYNAMIC | SHELL | EXPECT | WITHIN | RELATIVE | SOURCE
      | SWEEP | VARY | POINTS | LOGARITHMIC | VALUES | SAMPLE | LATIN_HYPERCUBE | UNIFORM | SEED | MEASURE
-     | CABLE | GROWS | END | AXIAL | RESISTIVITY | PIECES | PIECE ;
+     | CABLE | GROWS | END | AXIAL | RESISTIVITY | PIECES | PIECE | PER | CONSTANT ;
 // temperature 37 degC
 temperatureDecl : TEMPERATURE expr ;
 // ion Na valence +1
@@ -73,14 +73,15 @@ compartmentItem
 membraneEntry : IDENT expr (REVERSAL expr)? ';'? ;
 
 // cable NAME { grows from PARENT [end | at POSITION]; length L; diameter D [to D2];
-//              axial resistivity R; pieces N | piece length L; compartment items }
+//              axial resistivity R; pieces N [per length constant at F] | piece length L;
+//              compartment items }
 cableDecl : CABLE IDENT '{' (cableItem | compartmentItem)* '}' ;
 cableItem
   : GROWS FROM IDENT (END | position)?            # growsItem
   | LENGTH expr                                   # cableLengthItem
   | DIAMETER expr (TO expr)?                      # cableDiameterItem
   | AXIAL RESISTIVITY expr                        # axialItem
-  | PIECES NUMBER                                 # piecesItem
+  | PIECES NUMBER (PER LENGTH CONSTANT AT expr)?   # piecesItem
   | PIECE LENGTH expr                             # pieceLengthItem
   ;
 
@@ -264,6 +265,8 @@ AXIAL : 'axial' ;
 RESISTIVITY : 'resistivity' ;
 PIECES : 'pieces' ;
 PIECE : 'piece' ;
+PER : 'per' ;
+CONSTANT : 'constant' ;
 
 // An operator glued to a following unit word: "/ms", "*K", "/cm^2".
 UNIT_DIV : '/' UNIT_WORD ;

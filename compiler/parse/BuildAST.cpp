@@ -453,9 +453,11 @@ private:
         return true;
       };
       if (auto *c = dynamic_cast<P::PiecesItemContext *>(item)) {
-        // PIECES NUMBER
+        // PIECES NUMBER (PER LENGTH CONSTANT AT expr)?
         if (!setPieces(range(c)))
           continue;
+        if (c->expr())
+          cable.perLengthConstantAt = build(c->expr());
         double n = std::strtod(c->NUMBER()->getText().c_str(), nullptr);
         if (!(n >= 1 && n <= 1e6 && n == std::floor(n))) {
           auto &diag =

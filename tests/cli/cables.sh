@@ -138,6 +138,27 @@ expected = 6e-3 / (first_crossing(2) - first_crossing(1))
 assert 1.0 < expected < 2.0, expected
 assert abs(measured - expected) <= 1e-6 * expected, (measured, expected)
 PY
+expect_grep velocity out 'conduction_velocity\(axon.V at 2 mm, axon.V at 8 mm\) > 0 m/s: measured [0-9.]+ m/s; expected > 0 m/s'
+# A sweep's velocity column is in m/s too, and equals the expectation's measure; the cable's
+# parameter is named for the cable and sets every piece.
+cat "$AXON" - >"$TMP/velocity_sweep.saltpan" <<'SPEC'
+sweep sodium {
+  vary axon.SquidSodium1952.density values 120 mS/cm2, 60 mS/cm2
+  measure kick: conduction_velocity(axon.V at 2 mm, axon.V at 8 mm)
+}
+SPEC
+expect_rc velocity-sweep 0 sweep --sweep sodium --progress none -o "$TMP/velocity_sweep.csv" "$TMP/velocity_sweep.saltpan"
+"$PY" - "$TMP/velocity.json" "$TMP/velocity_sweep.csv" <<'PY' || fail "a sweep's conduction velocity is not the expectation's, in m/s"
+import csv, json, sys
+measured = json.load(open(sys.argv[1]))["expectations"][0]["measured_si"]
+rows = list(csv.DictReader(open(sys.argv[2])))
+column = "kick: conduction_velocity(axon.V at 2 mm, axon.V at 8 mm) (m/s)"
+assert column in rows[0], list(rows[0])
+assert abs(float(rows[0][column]) - measured) <= 1e-9 * measured, (rows[0][column], measured)
+# The pieces share the cable's parameter: half the sodium density everywhere slows the spike
+# (were one piece varied, the velocity between 2 and 8 mm would not change).
+assert float(rows[1][column]) < 0.9 * measured, (rows[1][column], measured)
+PY
 # Without a stimulus no spike arrives: the expectation fails and says where none came.
 sed 's/20 nA from 1 ms/0 nA from 1 ms/' "$AXON" >"$TMP/quiet.saltpan"
 expect_rc quiet 1 test "$TMP/quiet.saltpan"
