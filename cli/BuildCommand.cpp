@@ -72,7 +72,7 @@ options:
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault (also when
              the runtime archives or the C++ compiler driver cannot be found, or linking fails),
-             73 the output could not be written
+             73 the output could not be written or is the spec
 
 environment: SALTPAN_CXX  the C++ compiler driver that links (default: c++ on PATH; in a
                         sanitizer build of saltpan, the compiler that built it)
@@ -273,10 +273,13 @@ int buildCommand(const std::vector<std::string> &args) {
   std::vector<NamedFile> outputs = {{defaultOutput ? "the output" : "-o", o.output}};
   if (o.shared)
     outputs.push_back({"the header", header});
-  if (std::string clash = findOutputClash(outputs, {{"the spec", o.file}}); !clash.empty())
-    return usage(clash + (defaultOutput && stem == fs::path(o.file).filename().string()
-                              ? " (the spec's name has no .saltpan extension; name the output with -o)"
-                              : ""));
+  if (std::string clash = findOutputClash(outputs, {{"the spec", o.file}}); !clash.empty()) {
+    std::fprintf(stderr, "saltpan build: error: %s%s\n", clash.c_str(),
+                 defaultOutput && stem == fs::path(o.file).filename().string()
+                     ? " (the spec's name has no .saltpan extension; name the output with -o)"
+                     : "");
+    return CannotWrite;
+  }
 
   Compilation c;
   compileFile(o.file, c);

@@ -67,7 +67,7 @@ options:
   --help              show this help
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
-             73 the output file could not be written
+             73 the output file could not be written or is an input
 )";
 
 struct Options {
@@ -258,8 +258,10 @@ int showCommand(const std::vector<std::string> &args) {
   Compilation c;
   if (!compileAndReport(o.files[0], c, useColour()))
     return BadInput;
-  if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty())
-    return usageError("saltpan", clash, showHelp);
+  if (std::string clash = outputClash({{"-o", o.output}}, c.sources); !clash.empty()) {
+    std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
+    return CannotWrite;
+  }
   // The true rest beside the GHK potential: steady states of the model without a protocol.
   // Joined compartments rest together: each tree is solved as one system.
   ShownRest steady;

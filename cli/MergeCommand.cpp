@@ -29,7 +29,7 @@ options:
 Every point of every shard is checked (its number of values, their types), and the shards'
 columns must agree; anything else is refused, never joined into a ragged table.
 
-exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write
+exit status: 0 success, 64 bad usage, 65 the shards do not make one sweep, 73 cannot write, or -o names a shard
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -66,7 +66,7 @@ int mergeCommand(const std::vector<std::string> &args) {
     shardFiles.push_back({"the shard", in});
   if (std::string clash = findOutputClash(named, shardFiles); !clash.empty()) {
     std::fprintf(stderr, "saltpan merge: error: %s\n", clash.c_str());
-    return BadUsage;
+    return CannotWrite;
   }
 
   std::vector<sweep::Table> shards(inputs.size());

@@ -38,7 +38,7 @@ options:
   --help                   show this help
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors, 70 internal fault,
-             73 the output file could not be written
+             73 the output file could not be written or is an input
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -86,7 +86,7 @@ int methodsCommand(const std::vector<std::string> &args) {
     return BadInput;
   if (std::string clash = outputClash({{"-o", output}}, c.sources); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return BadUsage;
+    return CannotWrite;
   }
 
   MethodsOptions options;

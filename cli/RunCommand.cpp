@@ -47,7 +47,7 @@ options:
   --help               show this help
 
 exit status: 0 success, 64 bad usage, 65 the spec has errors or the simulation failed,
-             70 internal fault, 73 the output file could not be written
+             70 internal fault, 73 an output file could not be written or is an input
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -105,7 +105,7 @@ int runCommand(const std::vector<std::string> &args) {
     return BadInput;
   if (std::string clash = outputClash({{"-o", o.output}, {"--plot", o.plot}}, c.sources); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return BadUsage;
+    return CannotWrite;
   }
   auto all = protocols(c.program);
   const ast::ProtocolDecl *protocol = nullptr;

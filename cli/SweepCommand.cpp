@@ -61,7 +61,7 @@ options:
   --help                  show this help
 
 exit status: 0 success (failed points are reported in the output), 64 bad usage, 65 the spec has
-             errors, 70 internal fault, 73 an output could not be written
+             errors, 70 internal fault, 73 an output could not be written or is an input
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -196,8 +196,10 @@ int sweepCommand(const std::vector<std::string> &args) {
   std::string clash = outputClash(outputs, c.sources);
   if (clash.empty())
     clash = findOutputClash(outputs, {{"the spec", o.file}});
-  if (!clash.empty())
-    return usage(clash);
+  if (!clash.empty()) {
+    std::fprintf(stderr, "saltpan sweep: error: %s\n", clash.c_str());
+    return CannotWrite;
+  }
   auto sweeps = rootSweeps(c.program);
   const ast::SweepDecl *chosen = nullptr;
   for (const ast::SweepDecl *s : sweeps)

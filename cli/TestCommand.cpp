@@ -49,7 +49,7 @@ files are still measured. Control characters in names and strings are shown esca
 
 exit status: 0 every expectation passed, 1 some failed or there were none, 64 bad usage,
              65 a spec has errors or a folder cannot be read, 70 internal fault, 73 an output
-             file could not be written
+             file could not be written or is an input
 
 saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.
 )";
@@ -159,7 +159,7 @@ int testCommand(const std::vector<std::string> &args) {
     specs.push_back({"the spec", f});
   if (std::string clash = findOutputClash(outputs, specs); !clash.empty()) {
     std::fprintf(stderr, "saltpan: error: %s\n", clash.c_str());
-    return BadUsage;
+    return CannotWrite;
   }
   std::vector<FileResult> results(files.size());
   for (size_t i = 0; i < files.size(); ++i)

@@ -3,6 +3,7 @@
 #include "Sweep.h"
 
 #include "Diagnostics.h"
+#include "Nearest.h"
 #include "Pipeline.h"
 #include "RunSettings.h"
 
@@ -119,10 +120,23 @@ private:
     int p = model.findParam(a.parameter);
     if (p < 0) {
       auto &d = diags_.error(a.parameterRange, "there is no parameter '" + a.parameter + "' to vary");
+      std::vector<std::string> near = nearestNames(a.parameter, model.paramNames);
+      std::string hint;
+      for (const std::string &n : near)
+        hint += (hint.empty() ? "did you mean " : " or ") + ("'" + n + "'");
+      if (!hint.empty())
+        DiagnosticEngine::note(d, {}, hint + "?");
+      // A large tree has thousands: list a short model's, point to the listing otherwise.
+      constexpr size_t listed = 24;
       std::string names;
-      for (const std::string &n : model.paramNames)
-        names += (names.empty() ? "" : ", ") + n;
-      DiagnosticEngine::note(d, {}, "the parameters are " + names);
+      for (size_t i = 0; i < model.paramNames.size() && i < listed; ++i)
+        names += (names.empty() ? "" : ", ") + model.paramNames[i];
+      if (model.paramNames.size() > listed)
+        DiagnosticEngine::note(d, {},
+                               "the model has " + std::to_string(model.paramNames.size()) + " parameters, " + names +
+                                   ", ...; 'saltpan check --emit ir FILE' lists them all");
+      else
+        DiagnosticEngine::note(d, {}, "the parameters are " + names);
       return;
     }
     const Dimension &dim = model.paramDims[static_cast<size_t>(p)];

@@ -80,7 +80,7 @@ std::string helpText(const ModelBundle &b) {
   }
   text += "\n" + sweepList(b);
   text += "\nexit status: 0 success, 64 bad usage, 65 the simulation failed, 70 internal fault,\n"
-          "             73 the output file could not be written\n\n"
+          "             73 the output file could not be written or is this program\n\n"
           "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
   return text;
 }
@@ -115,8 +115,10 @@ int run(const std::vector<std::string> &args) {
     return *code;
 
   if (std::string clash = findOutputClash({{"-o", o.output}}, {{"this program", "/proc/self/exe"}});
-      !o.output.empty() && !clash.empty())
-    return usage(clash);
+      !o.output.empty() && !clash.empty()) {
+    std::fprintf(stderr, "%s: error: %s\n", program.c_str(), clash.c_str());
+    return CannotWrite;
+  }
 
   const ir::Model *chosen = nullptr;
   if (!o.protocol.empty()) {

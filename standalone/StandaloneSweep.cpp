@@ -43,7 +43,7 @@ std::string helpText(const ModelBundle &b, const std::string &program) {
          "  --help               show this help\n\n" +
          sweepList(b) +
          "\nexit status: 0 success (failed points are reported in the output), 64 bad usage,\n"
-         "             70 internal fault, 73 an output could not be written\n\n"
+         "             70 internal fault, 73 an output could not be written or is this program\n\n"
          "saltpan is a research modelling tool; it is not for clinical or diagnostic decisions.\n";
 }
 
@@ -89,8 +89,10 @@ int sweepMode(const ModelBundle &bundle, const std::vector<std::string> &args, c
     outputs.push_back({"-o", out});
   if (!o.outputs.empty())
     outputs.push_back({"the journal", o.outputs.front() + ".journal"});
-  if (std::string clash = findOutputClash(outputs, {{"this program", "/proc/self/exe"}}); !clash.empty())
-    return bad(clash);
+  if (std::string clash = findOutputClash(outputs, {{"this program", "/proc/self/exe"}}); !clash.empty()) {
+    std::fprintf(stderr, "%s sweep: error: %s\n", program.c_str(), clash.c_str());
+    return CannotWrite;
+  }
   sweep::ShardChoice shard;
   std::string error;
   if (!o.shard.empty() && !sweep::parseShard(o.shard, shard, error))

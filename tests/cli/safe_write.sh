@@ -8,20 +8,20 @@ cd "$TMP"
 short_run_spec spec.saltpan
 
 mkfifo fifo
-expect_rc fifo 64 run spec.saltpan -o fifo
+expect_rc fifo 73 run spec.saltpan -o fifo
 expect_grep fifo err "^saltpan: error: -o 'fifo': 'fifo' is a FIFO, not a regular file; saltpan writes outputs only to regular files"
 [ -p fifo ] || fail "fifo: the FIFO was replaced"
 expect_rc plotfifo 64 run spec.saltpan --plot fifo
 mkdir dir
-expect_rc dir 64 run spec.saltpan -o dir
+expect_rc dir 73 run spec.saltpan -o dir
 expect_grep dir err "'dir' is a directory"
-expect_rc methodsfifo 64 methods spec.saltpan -o fifo
-expect_rc junitfifo 64 test spec.saltpan --junit fifo
+expect_rc methodsfifo 73 methods spec.saltpan -o fifo
+expect_rc junitfifo 73 test spec.saltpan --junit fifo
 [ -p fifo ] || fail "the FIFO was replaced"
 if [ "$(id -u)" -eq 0 ]; then
   # A device node of our own (the null device's numbers), so the real /dev/null is never at risk.
   mknod null c 1 3
-  expect_rc device 64 run spec.saltpan -o null
+  expect_rc device 73 run spec.saltpan -o null
   expect_grep device err "'null' is a character device"
   [ -c null ] || fail "device: the device node was replaced by a regular file"
 fi

@@ -129,6 +129,14 @@ TEST_CASE("canonical layout: small pinned cases", "[format]") {
   // Places along a cable: a number and its unit or '%', each a word of its own.
   CHECK(fmt("protocol p { record d.V at 450um, d.V at 50%\n inject d at 90 %0.1 nA from 0 ms to 1 ms }\n") ==
         "protocol p {\n  record d.V at 450 um, d.V at 50 %\n  inject d at 90 % 0.1 nA from 0 ms to 1 ms\n}\n");
+  // Places in expectations and sweep measures, and the cutting rule of a cable.
+  CHECK(fmt("expect p: peak( d.V at 450um ) > 0 mV\n") == "expect p: peak(d.V at 450 um) > 0 mV\n");
+  CHECK(fmt("expect p: conduction_velocity(a.V at 2 mm,a.V at 50%) in 1 m/s to 2 m/s\n") ==
+        "expect p: conduction_velocity(a.V at 2 mm, a.V at 50 %) in 1 m/s to 2 m/s\n");
+  CHECK(fmt("sweep s { vary d.Leak.density values 1 mS/cm2 measure p: peak(d.V at 90%) }\n") ==
+        "sweep s {\n  vary d.Leak.density values 1 mS/cm2\n  measure p: peak(d.V at 90 %)\n}\n");
+  CHECK(fmt("cable d { pieces 10 per length  constant at 100Hz }\n") ==
+        "cable d { pieces 10 per length constant at 100 Hz }\n");
   // A division written without spaces stays a division by that name, glued.
   CHECK(fmt("fn f(x: 1, t: ms) -> 1/ms = x /t\n") == "fn f(x: 1, t: ms) -> 1/ms = x/t\n");
   // Empty blocks; several one-line declarations of one kind stay together.
