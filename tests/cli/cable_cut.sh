@@ -38,10 +38,12 @@ expect_grep text out "1 piece of 50 um"
 run methods methods "$SPEC"
 expect_grep methods out "as many as make each at most 1/10 of the length constant at"
 
-# The 1952 axon (Hodgkin & Huxley 1952) as a cable cut at 100 Hz: its G at rest is the leak
-# plus the open Na and K channels at the gates' steady states at -65 mV.
-sed -e 's/^  pieces .*/  pieces 20 per length constant at 100 Hz/' "$SRC/specs/reference/squid_axon_1952_cable.saltpan" \
-  >"$TMP/axon.saltpan"
+# The 1952 axon (Hodgkin & Huxley 1952: diameter 476 um, 35.4 ohm cm) as a 1 cm cable cut at
+# 100 Hz: its G at rest is the leak plus the open Na and K channels at the gates' steady states
+# at -65 mV.
+sed -n '1,/^}/p' "$SRC/tests/golden/cables/axon_velocity.saltpan" |
+  sed -e 's/^  pieces .*/  pieces 20 per length constant at 100 Hz/' -e 's/^  diameter .*/  diameter 476 um/' \
+    -e 's/^  axial resistivity .*/  axial resistivity 35.4 ohm*cm/' >"$TMP/axon.saltpan"
 grep -q "per length constant" "$TMP/axon.saltpan" || fail "the axon spec has no 'pieces' line to replace"
 run axon show --format json "$TMP/axon.saltpan"
 "$PY" - "$TMP/axon.out" <<'PY' || fail "the squid cable is not cut by its length constant at 100 Hz"
