@@ -990,12 +990,18 @@ private:
     return " for the whole run";
   }
 
-  void protocols() {
-    std::vector<const ProtocolDecl *> all;
+  // Every declaration of one kind, in every module, in order.
+  template <class Kind> std::vector<const Kind *> declarationsOf() const {
+    std::vector<const Kind *> all;
     for (const auto &module : c_.program.modules)
       for (const DeclPtr &decl : module->decls)
-        if (auto *p = dyn_cast<ProtocolDecl>(decl.get()))
-          all.push_back(p);
+        if (auto *d = dyn_cast<Kind>(decl.get()))
+          all.push_back(d);
+    return all;
+  }
+
+  void protocols() {
+    std::vector<const ProtocolDecl *> all = declarationsOf<ProtocolDecl>();
     d_.heading(2, "Protocols and numerical integration");
     if (all.empty()) {
       d_.para("The specification declares no protocol.");
@@ -1102,11 +1108,7 @@ private:
   // What the spec's expectations check, with their sources, and how the measures they use are
   // taken, so that a reader can repeat the check by other means.
   void checks() {
-    std::vector<const ExpectDecl *> all;
-    for (const auto &module : c_.program.modules)
-      for (const DeclPtr &decl : module->decls)
-        if (auto *e = dyn_cast<ExpectDecl>(decl.get()))
-          all.push_back(e);
+    std::vector<const ExpectDecl *> all = declarationsOf<ExpectDecl>();
     if (all.empty())
       return;
     d_.heading(2, "Reference checks");
